@@ -1,0 +1,84 @@
+"""Atomic publishing of a built site.
+
+The site is written into a temporary folder beside the target and swapped in only when the build
+succeeded, so a failed or interrupted build leaves the previous site exactly as it was. A lock file
+beside the target keeps two builds into one target from interleaving. A folder that does not carry
+our marker file is never replaced, so a mistyped `-o` cannot wipe out unrelated files.
+"""
+from __future__ import annotations
+
+import contextlib
+import fcntl
+import os
+import shutil
+import tempfile
+from pathlib import Path
+from typing import Iterator
+
+MARKER = ".aerialbook-site"
+
+
+class PublishError(Exception):
+    """The target cannot be published to (not ours, locked, not writable)."""
+
+
+@contextlib.contextmanager
+def target_lock(out_dir: Path) -> Iterator[None]:
+    """Hold an exclusive lock on `<parent>/.<name>.lock` while building into `out_dir`."""
+    out_dir.parent.mkdir(parents=True, exist_ok=True)
+    lock_path = out_dir.parent / f".{out_dir.name}.lock"
+    with open(lock_path, "w") as handle:
+        try:
+            fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except BlockingIOError:
+            raise PublishError(f"{out_dir}: another build is writing this site; try again when it ends") from None
+        try:
+            yield
+        finally:
+            fcntl.flock(handle, fcntl.LOCK_UN)
+
+
+def check_target(out_dir: Path) -> None:
+    """Refuse a target that exists, is not empty and was not written by us."""
+    if not out_dir.exists():
+        return
+    if not out_dir.is_dir():
+        raise PublishError(f"{out_dir}: exists and is not a folder, expected a folder for the site")
+    if any(out_dir.iterdir()) and not (out_dir / MARKER).exists():
+        raise PublishError(
+            f"{out_dir}: folder holds files not written by this tool, expected an empty folder or an earlier site"
+        )
+
+
+@contextlib.contextmanager
+def staging_dir(out_dir: Path) -> Iterator[Path]:
+    """Yield a fresh temporary folder beside `out_dir`; on success swap it in, on failure remove it."""
+    out_dir = out_dir.resolve()
+    with target_lock(out_dir):
+        check_target(out_dir)
+        stage = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.build-", dir=out_dir.parent))
+        try:
+            yield stage
+            (stage / MARKER).write_text("Written by aerialbook; this folder is replaced whole by each build.\n")
+            os.chmod(stage, 0o755)
+            swap_in(stage, out_dir)
+        except BaseException:
+            shutil.rmtree(stage, ignore_errors=True)
+            raise
+
+
+def swap_in(stage: Path, out_dir: Path) -> None:
+    """Replace `out_dir` by `stage` with two renames; the old site is removed only afterwards."""
+    old = None
+    if out_dir.exists():
+        old = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.old-", dir=out_dir.parent))
+        old.rmdir()
+        os.rename(out_dir, old)
+    try:
+        os.rename(stage, out_dir)
+    except OSError:
+        if old is not None:
+            os.rename(old, out_dir)
+        raise
+    if old is not None:
+        shutil.rmtree(old, ignore_errors=True)

@@ -1,0 +1,143 @@
+"""What the compute and check stages hand to rendering and reporting: plain frozen records.
+
+The compute stage fills `FleetResults`; the check stage turns them into `Discrepancy` records. Pages and
+reports read these and never call the physics themselves.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+SEVERITIES = ("blocking", "concern", "advisory")
+"""Severity names, most severe first. `blocking` left open makes `check` exit 1."""
+
+REVIEW_STATES = ("accepted", "action-raised", "no-fault")
+"""Dispositions an auditor records in reviews.yaml."""
+
+OPEN_STATES = ("open", "reopened")
+"""Derived states: no review yet, or the value changed since the reviewer saw it."""
+
+
+@dataclass(frozen=True)
+class Figure:
+    """One computed figure with what an auditor needs to follow the arithmetic.
+
+    `inputs` are (name, value-with-unit) pairs shown beside the formula; `source` names the method's
+    reference; `src` is the "file:line" of the registry value the figure rests on most directly.
+    """
+
+    key: str
+    label: str
+    value: float | str | None
+    unit: str
+    formula: str = ""
+    inputs: tuple[tuple[str, str], ...] = ()
+    source: str = ""
+    src: str = ""
+
+
+@dataclass(frozen=True)
+class Curve:
+    """A sampled curve, x and y as float arrays of equal length, with axis labels carrying units."""
+
+    x: np.ndarray
+    y: np.ndarray
+    x_label: str
+    y_label: str
+
+
+@dataclass(frozen=True)
+class PatternResult:
+    """A radiation pattern computed once per (antenna model content, frequency).
+
+    `key` is the content key (stable hash text) shared by every installation of the same model at the
+    same frequency; plots are drawn once per key. Cuts are gain in dBi against angle in degrees.
+    """
+
+    key: str
+    antenna: str
+    kind: str
+    freq_mhz: float
+    e_plane: Curve
+    h_plane: Curve
+    metrics: tuple[Figure, ...]
+
+
+@dataclass(frozen=True)
+class InstallationResult:
+    """Everything computed for one installation."""
+
+    aircraft: str
+    position: str
+    figures: tuple[Figure, ...]
+    pattern_key: str | None = None
+    vswr_modelled: Curve | None = None
+    vswr_measured: Curve | None = None
+    service_bands_mhz: tuple[tuple[float, float], ...] = ()
+    vswr_limit: float = 2.0
+
+    def figure(self, key: str) -> Figure | None:
+        """The figure with this key, or None when it could not be computed."""
+        for item in self.figures:
+            if item.key == key:
+                return item
+        return None
+
+
+@dataclass(frozen=True)
+class PairResult:
+    """Isolation between two installations on one aircraft (positions in sorted order)."""
+
+    aircraft: str
+    position_a: str
+    position_b: str
+    figures: tuple[Figure, ...]
+    near_field: bool
+
+    def figure(self, key: str) -> Figure | None:
+        for item in self.figures:
+            if item.key == key:
+                return item
+        return None
+
+
+@dataclass(frozen=True)
+class CableResult:
+    """A cable's attenuation table, its a·√f + b·f fit and the fit's residual."""
+
+    cable: str
+    table: Curve
+    fitted: Curve
+    figures: tuple[Figure, ...]
+
+
+@dataclass
+class FleetResults:
+    """All computed results of one build, keyed for lookup."""
+
+    installations: dict[tuple[str, str], InstallationResult] = field(default_factory=dict)
+    pairs: list[PairResult] = field(default_factory=list)
+    patterns: dict[str, PatternResult] = field(default_factory=dict)
+    cables: dict[str, CableResult] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Discrepancy:
+    """One problem found by a rule; `id` is `<aircraft>/<position>/<rule>` and never depends on order."""
+
+    id: str
+    rule: str
+    severity: str
+    aircraft: str
+    position: str
+    value: float | str | None
+    limit: float | str | None
+    unit: str
+    message: str
+    method: str
+    source: str
+    review: str = "open"
+    reviewer: str = ""
+    review_comment: str = ""
+    review_reference: str = ""

@@ -1,0 +1,241 @@
+"""Plots for the site, drawn with matplotlib's object API (never pyplot) into SVG text.
+
+Every plot is deterministic: element ids come from a fixed hash salt and no date is written, so the
+same data gives the same bytes. Backgrounds are transparent and colours mid-contrast; the site's dark
+theme inverts the image lightness with a CSS filter, so one file serves both themes.
+"""
+from __future__ import annotations
+
+import functools
+import io
+import math
+from dataclasses import dataclass
+
+import matplotlib
+import numpy as np
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.figure import Figure
+
+from registry.results import CableResult, Curve, InstallationResult, PatternResult
+
+INK = "#2b2f36"
+GRID = "#9aa3ad"
+LINE = "#1d63a8"
+SECOND = "#b8570f"
+LIMIT = "#b0262a"
+BAND = "#3f8f5f"
+
+RC = {
+    "svg.hashsalt": "aerialbook",
+    "svg.fonttype": "path",
+    "font.family": "DejaVu Sans",
+    "font.size": 9.0,
+    "axes.edgecolor": INK,
+    "axes.labelcolor": INK,
+    "text.color": INK,
+    "xtick.color": INK,
+    "ytick.color": INK,
+    "grid.color": GRID,
+    "grid.linewidth": 0.6,
+    "grid.alpha": 0.7,
+    "legend.frameon": True,
+    "legend.framealpha": 0.0,
+    "legend.edgecolor": GRID,
+    "savefig.transparent": True,
+    "path.simplify": False,
+}
+
+
+@dataclass(frozen=True)
+class Drawn:
+    """One plot: its SVG text and a sentence saying what it shows, for the image's alt text."""
+
+    svg: str
+    alt: str
+
+
+def _figure(width_in: float, height_in: float) -> Figure:
+    fig = Figure(figsize=(width_in, height_in), dpi=96)
+    FigureCanvasAgg(fig)
+    fig.patch.set_alpha(0.0)
+    return fig
+
+
+def _to_svg(fig: Figure) -> str:
+    buffer = io.StringIO()
+    fig.savefig(buffer, format="svg", metadata={"Date": None}, transparent=True)
+    return buffer.getvalue()
+
+
+def _styled(draw):
+    """Run a plot function inside the site's matplotlib settings (style, fixed SVG hash salt)."""
+
+    @functools.wraps(draw)
+    def wrapper(*args, **kwargs):
+        with matplotlib.rc_context(RC):
+            return draw(*args, **kwargs)
+
+    return wrapper
+
+
+def half_power_points(angle_deg: np.ndarray, gain_dbi: np.ndarray) -> tuple[float, float] | None:
+    """The two angles (degrees) either side of the peak where the gain falls 3 dB below it.
+
+    Walks outwards from the peak around the cut (treated as circular) and interpolates linearly
+    between samples. None when the cut never falls 3 dB below its peak (an omnidirectional cut).
+    """
+    angle = np.asarray(angle_deg, dtype=float)
+    gain = np.asarray(gain_dbi, dtype=float)
+    if angle.size < 3 or not np.isfinite(gain).any():
+        return None
+    gain = np.where(np.isfinite(gain), gain, -np.inf)
+    n = angle.size
+    peak = int(np.argmax(gain))
+    level = gain[peak] - 3.0
+    if not (gain < level).any():
+        return None
+    # a closed cut repeats its first angle at the end: walk over distinct samples only
+    span = angle[-1] - angle[0]
+    closed = math.isclose(span % 360.0, 0.0, abs_tol=1e-9) and span > 0
+    distinct = n - 1 if closed else n
+
+    def walk(step: int) -> float | None:
+        i = peak
+        for _ in range(distinct):
+            j = i + step
+            if closed:
+                j %= distinct
+            elif not 0 <= j < n:
+                return None
+            if gain[j] < level:
+                g0, g1 = gain[i], gain[j]
+                frac = 0.0 if not np.isfinite(g1) else (g0 - level) / (g0 - g1)
+                a0 = angle[i]
+                a1 = angle[j] if abs(angle[j] - a0) <= 180 else angle[j] + math.copysign(360.0, a0 - angle[j])
+                return float(a0 + frac * (a1 - a0))
+            i = j
+        return None
+
+    low, high = walk(-1), walk(+1)
+    if low is None or high is None:
+        return None
+    return low, high
+
+
+def beamwidth_deg(points: tuple[float, float]) -> float:
+    """Angular width between two half-power points, going through the peak side (0..360)."""
+    low, high = points
+    return float((high - low) % 360.0) or 360.0
+
+
+def _finite_peak(values: np.ndarray) -> float:
+    values = np.asarray(values, dtype=float)
+    return float(values[np.isfinite(values)].max())
+
+
+def _polar_cut(ax, curve: Curve, title: str, floor_db: float, top_db: float) -> str:
+    theta = np.radians(np.asarray(curve.x, dtype=float))
+    gain = np.asarray(curve.y, dtype=float)
+    shown = np.clip(np.where(np.isfinite(gain), gain, floor_db), floor_db, None)
+    ax.set_theta_zero_location("N")
+    ax.set_theta_direction(-1)
+    ax.patch.set_alpha(0.0)
+    ax.plot(theta, shown, color=LINE, linewidth=1.6)
+    ax.set_ylim(floor_db, top_db)
+    ticks = np.arange(math.ceil(floor_db / 10.0) * 10.0, top_db + 0.01, 10.0)
+    ax.set_yticks(ticks)
+    ax.set_yticklabels([f"{t:g}" for t in ticks], fontsize=7)
+    ax.set_rlabel_position(112.5)
+    ax.grid(True)
+    ax.set_title(title, pad=14, fontsize=10)
+    ax.text(math.radians(112.5), top_db + (top_db - floor_db) * 0.16, "dBi", fontsize=7, ha="center")
+    points = half_power_points(curve.x, curve.y)
+    if points is None:
+        ax.text(0.5, -0.14, f"{curve.x_label}; within 3 dB all round", transform=ax.transAxes,
+                ha="center", fontsize=8)
+        return "no half-power points (within 3 dB all round)"
+    peak = _finite_peak(gain)
+    for angle in points:
+        ax.plot([math.radians(angle)], [peak - 3.0], marker="o", markersize=5, color=SECOND, linestyle="none")
+    width = beamwidth_deg(points)
+    ax.text(0.5, -0.14, f"{curve.x_label}; half-power beamwidth {width:.0f}°", transform=ax.transAxes,
+            ha="center", fontsize=8, color=INK)
+    return f"half-power points at {points[0] % 360:.0f}° and {points[1] % 360:.0f}°, beamwidth {width:.0f}°"
+
+
+@_styled
+def pattern_plot(pattern: PatternResult) -> Drawn:
+    """E- and H-plane cuts side by side on polar axes, gain in dBi, half-power points marked."""
+    fig = _figure(7.2, 3.9)
+    peaks = [_finite_peak(c.y) for c in (pattern.e_plane, pattern.h_plane) if np.isfinite(c.y).any()]
+    top = math.ceil(max(peaks) / 5.0) * 5.0 + 5.0 if peaks else 10.0
+    floor = top - 40.0
+    notes = []
+    for index, (curve, name) in enumerate(((pattern.e_plane, "E-plane"), (pattern.h_plane, "H-plane"))):
+        ax = fig.add_subplot(1, 2, index + 1, projection="polar")
+        notes.append(f"{name}: " + _polar_cut(ax, curve, f"{name} gain", floor, top))
+    fig.subplots_adjust(left=0.06, right=0.94, top=0.84, bottom=0.14, wspace=0.45)
+    fig.suptitle(f"{pattern.antenna} at {pattern.freq_mhz:g} MHz", fontsize=10, y=0.98)
+    peak_text = f"peak {max(peaks):.1f} dBi; " if peaks else ""
+    alt = (f"Polar plots of the E-plane and H-plane gain of antenna model {pattern.antenna} at "
+           f"{pattern.freq_mhz:g} MHz, in dBi, {floor:g} to {top:g} dBi; {peak_text}" + "; ".join(notes) + ".")
+    return Drawn(_to_svg(fig), alt)
+
+
+@_styled
+def vswr_plot(result: InstallationResult, title: str) -> Drawn | None:
+    """VSWR against frequency: modelled, measured where a sweep exists, the limit, the band shaded."""
+    curves = [(c, name, colour, style) for c, name, colour, style in (
+        (result.vswr_modelled, "modelled", LINE, "-"),
+        (result.vswr_measured, "measured sweep", SECOND, "--"),
+    ) if c is not None and len(c.x)]
+    if not curves:
+        return None
+    fig = _figure(7.2, 3.4)
+    ax = fig.add_subplot(1, 1, 1)
+    ax.patch.set_alpha(0.0)
+    for index, (low, high) in enumerate(result.service_bands_mhz):
+        ax.axvspan(low, high, color=BAND, alpha=0.18, linewidth=0, label="service band" if index == 0 else None)
+    top = result.vswr_limit * 1.6
+    for curve, name, colour, style in curves:
+        y = np.asarray(curve.y, dtype=float)
+        ax.plot(curve.x, y, color=colour, linestyle=style, linewidth=1.6, label=name)
+        if np.isfinite(y).any():
+            top = max(top, min(float(np.nanmax(y)) * 1.05, 10.0))
+    ax.axhline(result.vswr_limit, color=LIMIT, linestyle=":", linewidth=1.4,
+               label=f"limit {result.vswr_limit:g}:1")
+    ax.set_ylim(1.0, top)
+    first = curves[0][0]
+    ax.set_xlabel(first.x_label)
+    ax.set_ylabel(first.y_label)
+    ax.set_title(title, fontsize=10)
+    ax.grid(True)
+    ax.legend(loc="upper right", fontsize=8)
+    fig.subplots_adjust(left=0.09, right=0.98, top=0.9, bottom=0.15)
+    bands = ", ".join(f"{low:g}–{high:g} MHz" for low, high in result.service_bands_mhz) or "none given"
+    names = " and ".join(name for _, name, _, _ in curves)
+    alt = (f"VSWR against frequency for {title}: {names} curve, limit {result.vswr_limit:g}:1 drawn as a "
+           f"dotted line, service band {bands} shaded.")
+    return Drawn(_to_svg(fig), alt)
+
+
+@_styled
+def attenuation_plot(cable: CableResult) -> Drawn:
+    """A cable's attenuation table as points and its a·√f + b·f fit as a line."""
+    fig = _figure(6.4, 3.2)
+    ax = fig.add_subplot(1, 1, 1)
+    ax.patch.set_alpha(0.0)
+    ax.plot(cable.fitted.x, cable.fitted.y, color=LINE, linewidth=1.6, label="fit a·√f + b·f")
+    ax.plot(cable.table.x, cable.table.y, color=SECOND, marker="o", markersize=5, linestyle="none",
+            label="catalogue table")
+    ax.set_xlabel(cable.table.x_label)
+    ax.set_ylabel(cable.table.y_label)
+    ax.set_title(f"{cable.cable} attenuation", fontsize=10)
+    ax.set_xlim(left=0.0)
+    ax.set_ylim(bottom=0.0)
+    ax.grid(True)
+    ax.legend(loc="upper left", fontsize=8)
+    fig.subplots_adjust(left=0.11, right=0.98, top=0.9, bottom=0.16)
+    alt = (f"Attenuation of cable {cable.cable} against frequency: {len(cable.table.x)} catalogue points "
+           f"and the fitted curve a·√f + b·f, {cable.table.y_label} against {cable.table.x_label}.")
+    return Drawn(_to_svg(fig), alt)

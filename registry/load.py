@@ -1,0 +1,350 @@
+"""Load a registry folder into a `Fleet`, or raise `DataError` with every problem found.
+
+Three passes, each collecting problems rather than stopping at the first:
+1. read each file (`yamlsource`: syntax, encoding, size, duplicate keys, aliases);
+2. validate it against its JSON Schema (`schemacheck`), each error on the line it concerns;
+3. build the model from the files that passed, then check what a schema cannot (`integrity`):
+   references, unique ids, ordered bands, sweep files present, and so on.
+The package's service table and default policy (`registry/data/`) are read the same way, and the fleet's
+`services.yaml` and `policy.yaml` are laid over them.
+"""
+from __future__ import annotations
+
+from datetime import date
+from pathlib import Path
+from typing import Any
+
+from registry import integrity, schemacheck
+from registry.errors import FILE_FIELD, DataError, Problem, Src, parse_path
+from registry.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
+                            Fuselage, GroundPlane, Installation, IsolationRule, Locator, Location, Measured,
+                            Modification, Policy, Review, Service, Wing, Zone, freeze)
+from registry.units import per_100ft_to_per_100m
+from registry.yamlsource import YamlDoc, read_yaml
+
+SHIPPED_DIR = Path(__file__).parent / "data"
+POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "feeder_loss_budget_db",
+               "connector_loss_db", "adapter_loss_db", "measurement_max_age_days",
+               "ground_plane_min_radius_wavelengths", "min_isolation_db")
+_MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
+
+
+def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None) -> Fleet:
+    """Read, validate and cross-check the registry in `data_dir`.
+
+    `shipped_dir` holds the package's `services.yaml` and `policy.yaml` (default: `registry/data/`).
+    Raises DataError listing every problem, sorted by file and line.
+    """
+    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR).load()
+
+
+class _Doc:
+    """A file that read and validated cleanly, with a factory for the `src`/`locator` of its objects."""
+
+    def __init__(self, doc: YamlDoc, file: Path):
+        self.data = doc.data
+        self.file = file
+        self.path = doc.path
+        self.srcs = {parts: placed.src for parts, placed in doc.index.items()}
+
+    def at(self, *parts: str | int) -> dict[str, Any]:
+        src = self.srcs.get(parts) or self.srcs[()]
+        return {"src": src, "locator": Locator(self.srcs, parts, src)}
+
+
+class _Run:
+    def __init__(self, data_dir: Path, shipped_dir: Path):
+        self.data_dir = data_dir
+        self.shipped_dir = shipped_dir
+        self.problems: list[Problem] = []
+
+    def problem(self, file: Path, found: str, expected: str) -> None:
+        self.problems.append(Problem.at(Src(str(file), 1, 1), FILE_FIELD, found, expected))
+
+    def read(self, file: Path, kind: str, required: bool = True) -> _Doc | None:
+        """The file read and validated, or None (its problems recorded; a missing required file is one)."""
+        if not file.is_file():
+            if required:
+                self.problem(file, "no such file", f"{file.name} ({kind} file, required)")
+            return None
+        doc, problems = read_yaml(file, str(file))
+        if doc is not None:
+            problems = schemacheck.check(doc, kind)
+        self.problems.extend(problems)
+        return _Doc(doc, file) if doc is not None and not problems else None
+
+    def read_folder(self, name: str, kind: str) -> list[_Doc | None]:
+        folder = self.data_dir / name
+        files = sorted(folder.glob("*.yaml")) if folder.is_dir() else []
+        for stray in sorted(folder.glob("*.yml")) if folder.is_dir() else []:
+            self.problem(stray, "a file ending in .yml", "the ending .yaml (other endings are not read)")
+        if not files:
+            self.problem(folder, "no .yaml files", f"at least one {name}/<id>.yaml file")
+        return [self.read(file, kind) for file in files]
+
+    def load(self) -> Fleet:
+        if not self.data_dir.is_dir():
+            self.problem(self.data_dir, "no folder", "a registry folder holding fleet.yaml")
+            raise DataError(self.problems)
+        fleet_doc = self.read(self.data_dir / "fleet.yaml", "fleet")
+        airframe_docs = self.read_folder("airframes", "airframe")
+        aircraft_docs = self.read_folder("aircraft", "aircraft")
+        antennas_doc = self.read(self.data_dir / "antennas.yaml", "antennas")
+        cables_doc = self.read(self.data_dir / "cables.yaml", "cables")
+        shipped_services = self.read(self.shipped_dir / "services.yaml", "services")
+        fleet_services = self.read(self.data_dir / "services.yaml", "services", required=False)
+        shipped_policy = self.read(self.shipped_dir / "policy.yaml", "policy")
+        fleet_policy = self.read(self.data_dir / "policy.yaml", "policy", required=False)
+        reviews_doc = self.read(self.data_dir / "reviews.yaml", "reviews", required=False)
+
+        airframes = [_airframe(doc) for doc in airframe_docs if doc]
+        antennas = [_antenna(antennas_doc, n, item) for n, item in enumerate(antennas_doc.data["models"])] \
+            if antennas_doc else None
+        cables = [_cable(cables_doc, n, item) for n, item in enumerate(cables_doc.data["cables"])] \
+            if cables_doc else None
+        services = self.services(shipped_services, fleet_services)
+        aircraft = [self.aircraft(doc) for doc in aircraft_docs if doc]
+        policy = self.policy(shipped_policy, fleet_policy)
+        reviews = [_review(reviews_doc, n, item) for n, item in enumerate(reviews_doc.data["reviews"])] \
+            if reviews_doc else []
+
+        catalogue = integrity.Catalogue(
+            airframes=None if None in airframe_docs else {item.id for item in airframes},
+            antennas=None if antennas is None else {item.id for item in antennas},
+            cables=None if cables is None else {item.id for item in cables},
+            services=None if services is None else {item.id for item in services},
+            aircraft=None if None in aircraft_docs else {item.id: set(item.installations) for item in aircraft},
+        )
+        self.problems += integrity.check_airframes(airframes)
+        self.problems += integrity.check_antennas(antennas or [])
+        self.problems += integrity.check_cables(cables or [])
+        self.problems += integrity.check_services(services or [])
+        self.problems += integrity.check_aircraft(aircraft, catalogue, self.data_dir)
+        self.problems += integrity.check_reviews(reviews, catalogue)
+        if policy is not None:
+            self.problems += integrity.check_policy(policy, catalogue)
+        if self.problems:
+            raise DataError(self.problems)
+        return Fleet(
+            **fleet_doc.at(),
+            operator=fleet_doc.data["operator"],
+            title=fleet_doc.data.get("title"),
+            data_dir=self.data_dir,
+            airframes=_by_id(airframes),
+            aircraft=_by_id(aircraft),
+            antennas=_by_id(antennas),
+            cables=_by_id(cables),
+            services=_by_id(services),
+            policy=policy,
+            reviews=FrozenMap((review.discrepancy, review) for review in reviews),
+        )
+
+    def aircraft(self, doc: _Doc) -> Aircraft:
+        data = doc.data
+        installations = [_installation(doc, n, item) for n, item in enumerate(data["installations"])]
+        self.problems += integrity.duplicates(installations, "position", "position in this aircraft")
+        return Aircraft(
+            **doc.at(),
+            id=data["id"],
+            registration=data["registration"],
+            airframe=data["airframe"],
+            serial=data.get("serial"),
+            modifications=tuple(
+                Modification(**doc.at("modifications", n), ref=item["ref"], date=_date(item["date"]),
+                             summary=item["summary"])
+                for n, item in enumerate(data.get("modifications", []))),
+            installations=FrozenMap((item.position, item) for item in installations),
+        )
+
+    def services(self, shipped: _Doc | None, fleet: _Doc | None) -> list[Service] | None:
+        """The shipped table with the fleet's entries added or replacing those of the same id."""
+        if shipped is None or (fleet is None and (self.data_dir / "services.yaml").is_file()):
+            return None
+        table: dict[str, Service] = {}
+        for doc in (shipped, fleet):
+            services = _services(doc, shipped=doc is shipped) if doc else []
+            self.problems += integrity.duplicates(services, "id", "service id in this file")
+            table.update((item.id, item) for item in services)
+        return list(table.values())
+
+    def policy(self, shipped: _Doc | None, fleet: _Doc | None) -> Policy | None:
+        """The shipped defaults with the fleet's keys laid over them (maps merged key by key)."""
+        if shipped is None or (fleet is None and (self.data_dir / "policy.yaml").is_file()):
+            return None
+        layers = [doc for doc in (fleet, shipped) if doc]
+        merged: dict[str, Any] = {}
+        for doc in reversed(layers):
+            for key, value in doc.data.items():
+                if key in _MERGED_POLICY_MAPS:
+                    merged[key] = {**merged.get(key, {}), **value}
+                else:
+                    merged[key] = value  # min_isolation_db rules are merged pair by pair below
+        missing = [key for key in POLICY_KEYS if key not in merged]
+        if "default" not in merged.get("feeder_loss_budget_db", {"default": 0}):
+            missing.append("feeder_loss_budget_db.default")
+        for key in missing:
+            self.problems.append(Problem.at(shipped.srcs[()], key, "nothing",
+                                            f"a value here or in {self.data_dir / 'policy.yaml'}"))
+        if missing:
+            return None
+        rules: dict[tuple[str, ...], IsolationRule] = {}
+        for doc in reversed(layers):
+            for n, item in enumerate(doc.data.get("min_isolation_db", [])):
+                rule = IsolationRule(**doc.at("min_isolation_db", n), services=tuple(item["services"]),
+                                     isolation_db=float(item["isolation_db"]))
+                rules[tuple(sorted(rule.services))] = rule
+        top = layers[0]
+        return Policy(
+            src=top.srcs[()],
+            locator=_LayeredLocator([doc.at()["locator"] for doc in layers]),
+            length_tolerance_pct=float(merged["length_tolerance_pct"]),
+            vswr_limit=float(merged["vswr_limit"]),
+            vswr_limit_by_service=FrozenMap({k: float(v) for k, v in merged["vswr_limit_by_service"].items()}),
+            feeder_loss_budget_db=FrozenMap({k: float(v) for k, v in merged["feeder_loss_budget_db"].items()}),
+            connector_loss_db=float(merged["connector_loss_db"]),
+            adapter_loss_db=float(merged["adapter_loss_db"]),
+            measurement_max_age_days=int(merged["measurement_max_age_days"]),
+            ground_plane_min_radius_wavelengths=float(merged["ground_plane_min_radius_wavelengths"]),
+            min_isolation_db=tuple(rules[pair] for pair in sorted(rules)),
+            sources=FrozenMap(merged.get("sources", {})),
+        )
+
+
+class _LayeredLocator(Locator):
+    """Finds a policy field in the first file (fleet, then shipped) that sets it."""
+
+    def __init__(self, layers: list[Locator]):
+        super().__init__(layers[-1].index, (), layers[-1].fallback)
+        self.layers = layers
+
+    def where(self, field_path: str) -> Src:
+        parts = parse_path(field_path)
+        for layer in self.layers:
+            if parts in layer.index:
+                return layer.index[parts]
+        for layer in self.layers:
+            if parts[:1] in layer.index:
+                return layer.where(field_path)
+        return self.fallback
+
+
+def _by_id(items: list[Any]) -> FrozenMap:
+    return FrozenMap((item.id, item) for item in items)
+
+
+def _date(text: str) -> date:
+    return date.fromisoformat(text)  # the schema has checked the format
+
+
+def _bands(pairs: list[list[float]]) -> tuple[tuple[float, float], ...]:
+    return tuple((float(low), float(high)) for low, high in pairs)
+
+
+def _airframe(doc: _Doc) -> Airframe:
+    data = doc.data
+    numbers = lambda mapping: {key: float(value) for key, value in mapping.items()}  # noqa: E731
+    return Airframe(
+        **doc.at(),
+        id=data["id"],
+        name=data["name"],
+        coord_unit=data["coord_unit"],
+        fuselage=Fuselage(**doc.at("fuselage"), **numbers(data["fuselage"])),
+        wing=Wing(**doc.at("wing"), **numbers(data["wing"])) if "wing" in data else None,
+        fin=Fin(**doc.at("fin"), **numbers(data["fin"])) if "fin" in data else None,
+        zones=tuple(Zone(**doc.at("zones", n), name=item["name"], sta_from=float(item["sta_from"]),
+                         sta_to=float(item["sta_to"]), material=item["material"],
+                         surfaces=tuple(item.get("surfaces", ())))
+                    for n, item in enumerate(data["zones"])),
+    )
+
+
+def _antenna(doc: _Doc, n: int, item: dict[str, Any]) -> AntennaModel:
+    return AntennaModel(
+        **doc.at("models", n),
+        id=item["id"],
+        description=item.get("description", ""),
+        kind=item["kind"],
+        polarisation=item["polarisation"],
+        impedance_ohm=float(item["impedance_ohm"]),
+        rated_vswr=float(item["rated_vswr"]),
+        bands_mhz=_bands(item["bands_mhz"]),
+        geometry=freeze(item["geometry"]),
+    )
+
+
+def _cable(doc: _Doc, n: int, item: dict[str, Any]) -> Cable:
+    if "attenuation_db_per_100m" in item:
+        unit, table = "db_per_100m", [(float(f), float(loss)) for f, loss in item["attenuation_db_per_100m"]]
+    else:
+        unit = "db_per_100ft"
+        table = [(float(f), per_100ft_to_per_100m(loss)) for f, loss in item["attenuation_db_per_100ft"]]
+    return Cable(
+        **doc.at("cables", n),
+        id=item["id"],
+        designation=item.get("designation", ""),
+        impedance_ohm=float(item["impedance_ohm"]),
+        velocity_factor=float(item["velocity_factor"]),
+        max_freq_mhz=float(item["max_freq_mhz"]),
+        attenuation_db_per_100m=tuple(table),
+        declared_unit=unit,
+    )
+
+
+def _services(doc: _Doc, shipped: bool) -> list[Service]:
+    services = []
+    for n, item in enumerate(doc.data["services"]):
+        bands = _bands(item["bands_mhz"])
+        services.append(Service(
+            **doc.at("services", n),
+            id=item["id"],
+            name=item["name"],
+            bands_mhz=bands,
+            design_freq_mhz=float(item.get("design_freq_mhz", (bands[0][0] + bands[0][1]) / 2)),
+            polarisation=item["polarisation"],
+            coverage=item["coverage"],
+            transmits=item["transmits"],
+            group=item["group"],
+            source=item.get("source", ""),
+            shipped=shipped,
+        ))
+    return services
+
+
+def _installation(doc: _Doc, n: int, item: dict[str, Any]) -> Installation:
+    at = ("installations", n)
+    feeder = item["feeder"]
+    ground_plane = item.get("ground_plane")
+    measured = item.get("measured")
+    return Installation(
+        **doc.at(*at),
+        position=item["position"],
+        service=item["service"],
+        antenna=item["antenna"],
+        location=Location(**doc.at(*at, "location"), **{k: float(v) for k, v in item["location"].items()}),
+        surface=item["surface"],
+        feeder=Feeder(**doc.at(*at, "feeder"), cable=feeder["cable"], length_m=float(feeder["length_m"]),
+                      connectors=int(feeder["connectors"]), adapters=int(feeder.get("adapters", 0))),
+        ground_plane=None if ground_plane is None else GroundPlane(
+            **doc.at(*at, "ground_plane"), type=ground_plane["type"],
+            radius_m=float(ground_plane["radius_m"]) if "radius_m" in ground_plane else None),
+        measured=None if measured is None else Measured(
+            **doc.at(*at, "measured"), date=_date(measured["date"]),
+            vswr=float(measured["vswr"]) if "vswr" in measured else None,
+            sweep=doc.file.parent / measured["sweep"] if "sweep" in measured else None),
+        coupler=item.get("coupler", False),
+        installed=_date(item["installed"]) if "installed" in item else None,
+        notes=item.get("notes", ""),
+    )
+
+
+def _review(doc: _Doc, n: int, item: dict[str, Any]) -> Review:
+    return Review(
+        **doc.at("reviews", n),
+        discrepancy=item["discrepancy"],
+        state=item["state"],
+        reviewer=item["reviewer"],
+        date=_date(item["date"]),
+        reference=item.get("reference", ""),
+        comment=item.get("comment", ""),
+        value_seen=item.get("value_seen"),
+    )

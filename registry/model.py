@@ -1,0 +1,364 @@
+"""The registry as frozen dataclasses: what `load_fleet` returns and every later stage reads.
+
+Every object carries `src`, the position of its mapping in the YAML, and `where(field)` gives the position
+of any field inside it (`installation.where("feeder.length_m")`), so a discrepancy can point to the line
+a value came from. Collections keyed by id are read-only mappings iterated in sorted id order.
+Lengths are in metres, frequencies in MHz; aircraft coordinates and airframe dimensions are in the
+airframe type's `coord_unit`. No physics here.
+"""
+from __future__ import annotations
+
+from collections.abc import Iterator, Mapping
+from dataclasses import dataclass, field
+from datetime import date
+from pathlib import Path
+from typing import Any
+
+from registry.errors import Src, format_path, parse_path
+
+SURFACES = ("top", "bottom", "fin", "nose", "tail", "wing_left", "wing_right", "side_left", "side_right")
+RULES = ("element-length", "band-coverage", "vswr-bandwidth", "measured-vswr", "feeder-loss",
+         "impedance-match", "cable-frequency", "isolation", "ground-plane", "antenna-suitability",
+         "measurement-age", "missing-data")
+"""Rule names a discrepancy id ends with (see docs/registry-format.md)."""
+
+
+class FrozenMap(Mapping):
+    """A read-only, hashable mapping whose keys iterate in sorted order."""
+
+    def __init__(self, items: Mapping[str, Any] | Iterator[tuple[str, Any]] | tuple = ()):
+        self._items = dict(sorted(dict(items).items()))
+
+    def __getitem__(self, key: str) -> Any:
+        return self._items[key]
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._items)
+
+    def __len__(self) -> int:
+        return len(self._items)
+
+    def __hash__(self) -> int:
+        return hash(tuple(self._items.items()))
+
+    def __repr__(self) -> str:
+        return f"FrozenMap({self._items!r})"
+
+
+def freeze(value: Any) -> Any:
+    """Plain data made immutable: mappings become FrozenMap, lists become tuples."""
+    if isinstance(value, Mapping):
+        return FrozenMap((key, freeze(item)) for key, item in value.items())
+    if isinstance(value, (list, tuple)):
+        return tuple(freeze(item) for item in value)
+    return value
+
+
+class Locator:
+    """Finds where a field of one object sits: `index` maps path tuples to positions, `prefix` is the object's."""
+
+    def __init__(self, index: Mapping[tuple[str | int, ...], Src], prefix: tuple[str | int, ...], fallback: Src):
+        self.index = index
+        self.prefix = prefix
+        self.fallback = fallback
+
+    def where(self, field_path: str) -> Src:
+        """The position of `field_path` (`feeder.length_m`, `bands_mhz[0][1]`), or of its nearest present parent."""
+        parts = self.prefix + parse_path(field_path)
+        while len(parts) >= len(self.prefix):
+            if parts in self.index:
+                return self.index[parts]
+            parts = parts[:-1]
+        return self.fallback
+
+    def field_path(self, field_path: str) -> str:
+        """The field's full path in its file, as messages show it (`installations[2].feeder.length_m`)."""
+        return format_path(self.prefix + parse_path(field_path))
+
+
+@dataclass(frozen=True, kw_only=True)
+class Sourced:
+    """Base of every model object: where it came from."""
+
+    src: Src = field(compare=False)
+    locator: Locator | None = field(default=None, repr=False, compare=False)
+
+    def where(self, field_path: str) -> Src:
+        """The source position of a field of this object (falls back to the object's own position)."""
+        return self.locator.where(field_path) if self.locator else self.src
+
+    def field_path(self, field_path: str) -> str:
+        """The field's full path in its file (`feeder.length_m` → `installations[2].feeder.length_m`)."""
+        return self.locator.field_path(field_path) if self.locator else field_path
+
+
+# --- aircraft -------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, kw_only=True)
+class Location(Sourced):
+    """Body-axis position in the airframe's coord_unit: station, buttline (+ right), waterline."""
+
+    sta: float
+    bl: float
+    wl: float
+
+
+@dataclass(frozen=True, kw_only=True)
+class GroundPlane(Sourced):
+    """`skin`, `plate` (with `radius_m`) or `none`."""
+
+    type: str
+    radius_m: float | None = None
+
+
+@dataclass(frozen=True, kw_only=True)
+class Feeder(Sourced):
+    cable: str
+    length_m: float
+    connectors: int
+    adapters: int = 0
+
+
+@dataclass(frozen=True, kw_only=True)
+class Measured(Sourced):
+    """The last measurement. `sweep` is the Touchstone file's path (joined onto the data folder)."""
+
+    date: date
+    vswr: float | None = None
+    sweep: Path | None = None
+
+
+@dataclass(frozen=True, kw_only=True)
+class Installation(Sourced):
+    position: str
+    service: str
+    antenna: str
+    location: Location
+    surface: str
+    feeder: Feeder
+    ground_plane: GroundPlane | None = None
+    measured: Measured | None = None
+    coupler: bool = False
+    installed: date | None = None
+    notes: str = ""
+
+
+@dataclass(frozen=True, kw_only=True)
+class Modification(Sourced):
+    ref: str
+    date: date
+    summary: str
+
+
+@dataclass(frozen=True, kw_only=True)
+class Aircraft(Sourced):
+    """One aircraft; `installations` maps position id to installation, in sorted position order."""
+
+    id: str
+    registration: str
+    airframe: str
+    installations: FrozenMap
+    serial: str | None = None
+    modifications: tuple[Modification, ...] = ()
+
+
+# --- airframe types -------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, kw_only=True)
+class Fuselage(Sourced):
+    nose_sta: float
+    tail_sta: float
+    width: float
+    height: float
+    centreline_wl: float
+
+
+@dataclass(frozen=True, kw_only=True)
+class Wing(Sourced):
+    root_le_sta: float
+    root_chord: float
+    span: float
+    sweep_deg: float
+
+
+@dataclass(frozen=True, kw_only=True)
+class Fin(Sourced):
+    root_le_sta: float
+    root_chord: float
+    height: float
+    sweep_deg: float
+
+
+@dataclass(frozen=True, kw_only=True)
+class Zone(Sourced):
+    """Skin material over stations [sta_from, sta_to); `surfaces` empty means every surface."""
+
+    name: str
+    sta_from: float
+    sta_to: float
+    material: str
+    surfaces: tuple[str, ...] = ()
+
+    def covers(self, sta: float, surface: str) -> bool:
+        return self.sta_from <= sta < self.sta_to and (not self.surfaces or surface in self.surfaces)
+
+
+@dataclass(frozen=True, kw_only=True)
+class Airframe(Sourced):
+    id: str
+    name: str
+    coord_unit: str
+    fuselage: Fuselage
+    zones: tuple[Zone, ...]
+    wing: Wing | None = None
+    fin: Fin | None = None
+
+    def zone_at(self, sta: float, surface: str) -> Zone | None:
+        """The zone covering `sta` on `surface`: one that lists the surface wins over one for every surface."""
+        covering = [zone for zone in self.zones if zone.covers(sta, surface)]
+        covering.sort(key=lambda zone: not zone.surfaces)
+        return covering[0] if covering else None
+
+    def material_at(self, sta: float, surface: str) -> str | None:
+        """`metal` or `composite` at `sta` on `surface`, or None when no zone covers it."""
+        zone = self.zone_at(sta, surface)
+        return zone.material if zone else None
+
+
+# --- catalogues -----------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, kw_only=True)
+class AntennaModel(Sourced):
+    """An antenna model; `geometry` holds the kind's keys (lengths in metres) as a read-only mapping."""
+
+    id: str
+    kind: str
+    polarisation: str
+    impedance_ohm: float
+    rated_vswr: float
+    bands_mhz: tuple[tuple[float, float], ...]
+    geometry: FrozenMap
+    description: str = ""
+
+
+@dataclass(frozen=True, kw_only=True)
+class Cable(Sourced):
+    """A cable type. `attenuation_db_per_100m` is always per 100 m; `declared_unit` says what the file used
+    (`db_per_100m` or `db_per_100ft`)."""
+
+    id: str
+    impedance_ohm: float
+    velocity_factor: float
+    max_freq_mhz: float
+    attenuation_db_per_100m: tuple[tuple[float, float], ...]
+    declared_unit: str
+    designation: str = ""
+
+
+@dataclass(frozen=True, kw_only=True)
+class Service(Sourced):
+    """A radio service; `design_freq_mhz` is the declared one or the centre of the first band.
+    `shipped` is true when the entry comes from the package's table rather than the fleet's file."""
+
+    id: str
+    name: str
+    bands_mhz: tuple[tuple[float, float], ...]
+    design_freq_mhz: float
+    polarisation: str
+    coverage: str
+    transmits: bool
+    group: str
+    source: str = ""
+    shipped: bool = False
+
+
+@dataclass(frozen=True, kw_only=True)
+class IsolationRule(Sourced):
+    services: tuple[str, str]
+    isolation_db: float
+
+
+@dataclass(frozen=True, kw_only=True)
+class Policy(Sourced):
+    """Thresholds the checks use: the shipped defaults with the fleet's overrides applied.
+    `where(key)` points into whichever file the key's value came from."""
+
+    length_tolerance_pct: float
+    vswr_limit: float
+    vswr_limit_by_service: FrozenMap
+    feeder_loss_budget_db: FrozenMap
+    connector_loss_db: float
+    adapter_loss_db: float
+    measurement_max_age_days: int
+    ground_plane_min_radius_wavelengths: float
+    min_isolation_db: tuple[IsolationRule, ...]
+    sources: FrozenMap = field(default_factory=FrozenMap)
+
+    def vswr_limit_for(self, service: str) -> float:
+        return self.vswr_limit_by_service.get(service, self.vswr_limit)
+
+    def feeder_loss_budget_for(self, service: str) -> float:
+        return self.feeder_loss_budget_db.get(service, self.feeder_loss_budget_db["default"])
+
+    def min_isolation_for(self, service_a: str, service_b: str) -> IsolationRule | None:
+        """The isolation rule for a pair of services (in either order), or None."""
+        pair = tuple(sorted((service_a, service_b)))
+        return next((rule for rule in self.min_isolation_db if tuple(sorted(rule.services)) == pair), None)
+
+
+@dataclass(frozen=True, kw_only=True)
+class Review(Sourced):
+    """An auditor's disposition of one discrepancy (`<aircraft>/<position>[+<position>]/<rule>`)."""
+
+    discrepancy: str
+    state: str
+    reviewer: str
+    date: date
+    reference: str = ""
+    comment: str = ""
+    value_seen: float | str | None = None
+
+    @property
+    def aircraft_id(self) -> str:
+        return self.discrepancy.split("/")[0]
+
+    @property
+    def positions(self) -> tuple[str, ...]:
+        return tuple(self.discrepancy.split("/")[1].split("+"))
+
+    @property
+    def rule(self) -> str:
+        return self.discrepancy.split("/")[2]
+
+
+@dataclass(frozen=True, kw_only=True)
+class Fleet(Sourced):
+    """The whole registry. Every mapping is keyed by id and iterates in sorted id order;
+    `reviews` is keyed by discrepancy id."""
+
+    operator: str
+    data_dir: Path
+    airframes: FrozenMap
+    aircraft: FrozenMap
+    antennas: FrozenMap
+    cables: FrozenMap
+    services: FrozenMap
+    policy: Policy
+    reviews: FrozenMap
+    title: str | None = None
+
+    @property
+    def site_title(self) -> str:
+        return self.title or self.operator
+
+    def installations(self) -> Iterator[tuple[Aircraft, Installation]]:
+        """Every (aircraft, installation), by aircraft id then position."""
+        for aircraft in self.aircraft.values():
+            for installation in aircraft.installations.values():
+                yield aircraft, installation
+
+    def airframe_of(self, aircraft: Aircraft) -> Airframe:
+        return self.airframes[aircraft.airframe]

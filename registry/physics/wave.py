@@ -1,0 +1,118 @@
+"""Wavelength, resonant element length, length deviation and ground-plane adequacy.
+
+lambda = c / f with c = 299 792 458 m/s exact (SI). Half-wave dipoles resonate a little short of lambda/2
+and monopoles a little short of lambda/4; two estimates are offered:
+
+* the trade's rule of thumb: 95 % of the free-space length (common practice, no single source);
+* an end-effect factor of the element's length-to-diameter ratio L/D,
+  K = 1 - A / (ln(2 L/D) - B), A = 0.219, B = 1.855: the form of the transmission-line model of a
+  dipole (shortening 42.5 ohm / ((pi/2) Z_a) with Schelkunoff's Z_a = 120 (ln(2L/D) - 1);
+  Balanis, Antenna Theory, 4th ed., ch. 4 and ch. 9), with A and B fitted by least squares to the
+  resonant lengths NEC-2 (thin-wire kernel) gives for 30 <= L/D <= 8000 (within 0.6 %).
+  For a monopole on a ground plane use the L/D of its image dipole, 2h/D.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from registry.units import C_M_PER_S
+
+#: the trade's shortening rule: resonant length = 95 % of the free-space half or quarter wavelength
+RULE_OF_THUMB_FACTOR = 0.95
+_END_A = 0.219
+_END_B = 1.855
+#: below this L/D the thin-wire end-effect fit does not apply
+MIN_LENGTH_TO_DIAMETER = 10.0
+
+def wavelength_m(freq_hz):
+    """Free-space wavelength lambda = c / f (m) for freq_hz (Hz). Floats or arrays."""
+    f = np.asarray(freq_hz, dtype=float)
+    if np.any(f <= 0):
+        raise ValueError("frequency must be positive")
+    out = C_M_PER_S / f
+    return out if np.ndim(freq_hz) else float(out)
+
+def frequency_hz(wavelength_m_):
+    """Frequency f = c / lambda (Hz) of a free-space wavelength (m)."""
+    lam = np.asarray(wavelength_m_, dtype=float)
+    if np.any(lam <= 0):
+        raise ValueError("wavelength must be positive")
+    out = C_M_PER_S / lam
+    return out if np.ndim(wavelength_m_) else float(out)
+
+def _fraction(element: str) -> float:
+    if element == "half_wave":
+        return 0.5
+    if element == "quarter_wave":
+        return 0.25
+    raise ValueError(f"element must be 'half_wave' or 'quarter_wave', got '{element}'")
+
+def free_space_length_m(freq_hz, element: str = "half_wave"):
+    """lambda/2 ('half_wave') or lambda/4 ('quarter_wave') in metres at freq_hz (Hz)."""
+    return _fraction(element) * wavelength_m(freq_hz)
+
+def rule_of_thumb_length_m(freq_hz, element: str = "half_wave"):
+    """Resonant length by the 95 % rule: 0.95 lambda/2 or 0.95 lambda/4 (m). Common practice."""
+    return RULE_OF_THUMB_FACTOR * free_space_length_m(freq_hz, element)
+
+def end_effect_factor(length_to_diameter):
+    """Shortening factor K = 1 - 0.219 / (ln(2 L/D) - 1.855) of a thin dipole (unitless).
+
+    length_to_diameter: L/D of the dipole (2h/D for a monopole). Raises ValueError below
+    MIN_LENGTH_TO_DIAMETER, where the thin-wire fit does not apply (e.g. blade antennas).
+    """
+    ld = np.asarray(length_to_diameter, dtype=float)
+    if np.any(ld < MIN_LENGTH_TO_DIAMETER):
+        raise ValueError(f"length-to-diameter ratio below {MIN_LENGTH_TO_DIAMETER:g}: thin-wire rule does not apply")
+    out = 1.0 - _END_A / (np.log(2.0 * ld) - _END_B)
+    return out if np.ndim(length_to_diameter) else float(out)
+
+def resonant_length_m(freq_hz: float, diameter_m: float, element: str = "half_wave") -> float:
+    """Resonant length (m) of a thin element of diameter D from the end-effect factor.
+
+    Solves L = K(L_dipole / D) * fraction * lambda by fixed-point iteration (K varies slowly with L),
+    where L_dipole = L for a half-wave dipole and 2L for a quarter-wave monopole.
+    """
+    free = free_space_length_m(freq_hz, element)
+    image = 1.0 if element == "half_wave" else 2.0
+    length = free
+    for _ in range(50):
+        new = end_effect_factor(image * length / diameter_m) * free
+        if abs(new - length) < 1e-12 * free:
+            break
+        length = new
+    return float(length)
+
+def length_deviation(installed_m, reference_m):
+    """(deviation_percent, deviation_mm) of an installed length from a reference length (both m).
+
+    percent = 100 (installed - reference)/reference; mm = 1000 (installed - reference). Positive: longer.
+    """
+    inst = np.asarray(installed_m, dtype=float)
+    ref = np.asarray(reference_m, dtype=float)
+    if np.any(ref <= 0):
+        raise ValueError("reference length must be positive")
+    pct = 100.0 * (inst - ref) / ref
+    mm = 1000.0 * (inst - ref)
+    if np.ndim(installed_m) or np.ndim(reference_m):
+        return pct, mm
+    return float(pct), float(mm)
+
+def ground_plane_ratio(radius_m: float, freq_low_hz: float) -> float:
+    """Ground-plane radius over a quarter wavelength at the lowest frequency served (unitless).
+
+    A monopole wants a conductive ground plane of at least lambda/4 radius around its base (common
+    practice): adequate when this ratio is >= 1. The lowest frequency has the longest wavelength.
+    """
+    if radius_m < 0:
+        raise ValueError("ground-plane radius must not be negative")
+    return float(radius_m / (wavelength_m(freq_low_hz) / 4.0))
+
+def ground_plane_adequate(radius_m: float, freq_low_hz: float) -> bool:
+    """True when the ground-plane radius is at least lambda/4 at the lowest frequency (common practice)."""
+    return ground_plane_ratio(radius_m, freq_low_hz) >= 1.0 - 1e-12
+
+def quarter_wave_radius_m(freq_low_hz: float) -> float:
+    """The minimum ground-plane radius lambda/4 (m) at the lowest frequency served."""
+    return float(wavelength_m(freq_low_hz) / 4.0)
+

@@ -15,6 +15,7 @@ import traceback
 from pathlib import Path
 
 from registry import __version__
+from registry.results import SEVERITIES
 
 EXIT_OK = 0
 EXIT_OPEN = 1
@@ -31,9 +32,19 @@ def make_parser() -> argparse.ArgumentParser:
     parser.add_argument("--debug", action="store_true", help="show a traceback on errors")
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
-    check = commands.add_parser("check", help="validate the registry and report its figures")
+    check = commands.add_parser(
+        "check", help="validate the registry, compute every figure and report the discrepancies",
+        description="Exit 0 when no blocking discrepancy is open, 1 when one is, 2 on data or usage errors.")
     check.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",
                        help="registry folder (default: fleet_data)")
+    check.add_argument("--format", choices=("text", "json", "csv"), default="text",
+                       help="report format (default: text)")
+    check.add_argument("--aircraft", action="append", metavar="ID",
+                       help="only this aircraft (id or registration); repeatable")
+    check.add_argument("--service", action="append", metavar="ID", help="only this service id; repeatable")
+    check.add_argument("--severity", action="append", choices=SEVERITIES, help="only this severity; repeatable")
+    check.add_argument("--details", action="store_true",
+                       help="also print every computed figure of every installation (text format)")
 
     build = commands.add_parser("build", help="publish the registry as a static site")
     build.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",
@@ -60,14 +71,35 @@ def run(args: argparse.Namespace) -> int:
 
     data_dir = Path(args.data_dir)
     if args.command == "check":
-        fleet = pipeline.load(data_dir)
-        print(pipeline.summary(fleet))
-        return EXIT_OK
+        return run_check(args, pipeline.run(data_dir))
     if args.command == "build":
         out_dir = pipeline.build(data_dir, Path(args.out))
         print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
         return EXIT_OK
     raise AssertionError(f"unhandled command {args.command}")
+
+
+def run_check(args: argparse.Namespace, outcome) -> int:
+    from registry import checks, report
+
+    fleet = outcome.fleet
+    unknown = [name for name in args.aircraft or () if name not in fleet.aircraft
+               and name not in {craft.registration for craft in fleet.aircraft.values()}]
+    unknown += [name for name in args.service or () if name not in fleet.services]
+    if unknown:
+        print(f"error: no aircraft or service named {', '.join(unknown)}", file=sys.stderr)
+        return EXIT_DATA
+    found = report.select(outcome.discrepancies, fleet, args.aircraft, args.service, args.severity)
+    as_of = outcome.as_of.isoformat()
+    if args.format == "json":
+        sys.stdout.write(report.as_json(found, outcome.stale_reviews, as_of))
+    elif args.format == "csv":
+        sys.stdout.write(report.as_csv(found))
+    else:
+        if args.details:
+            sys.stdout.write(report.details(fleet, outcome.results))
+        sys.stdout.write(report.as_text(fleet, found, outcome.stale_reviews, as_of))
+    return EXIT_OPEN if checks.gate_fails(found) else EXIT_OK
 
 
 def report_error(error: Exception, debug: bool) -> int:

@@ -4,16 +4,59 @@ Each stage is finished before the next starts, and no stage reaches back into an
 """
 from __future__ import annotations
 
+import os
+import subprocess
+from dataclasses import dataclass
+from datetime import date, datetime, timezone
 from pathlib import Path
 
-from registry import publish, render
+from registry import checks, compute, publish, render
 from registry.load import load_fleet
-from registry.model import Fleet
+from registry.model import Fleet, Review
+from registry.results import Discrepancy, FleetResults
+
+
+@dataclass
+class Outcome:
+    """Everything one run of the pipeline produced, before rendering."""
+
+    fleet: Fleet
+    as_of: date
+    results: FleetResults
+    discrepancies: list[Discrepancy]
+    stale_reviews: list[Review]
 
 
 def load(data_dir: Path) -> Fleet:
     """Load and validate the registry; raises DataError with every problem found."""
     return load_fleet(data_dir)
+
+
+def as_of_date(data_dir: Path) -> date:
+    """The date the registry speaks for: SOURCE_DATE_EPOCH, else the data's last commit, else today.
+
+    Measurement ages are counted to it, so the same revision of the data gives the same report.
+    """
+    epoch = os.environ.get("SOURCE_DATE_EPOCH")
+    if epoch and epoch.strip().isdigit():
+        return datetime.fromtimestamp(int(epoch), tz=timezone.utc).date()
+    try:
+        stamp = subprocess.run(["git", "log", "-1", "--format=%ct", "--", "."], cwd=data_dir,
+                               capture_output=True, text=True, timeout=20).stdout.strip()
+    except (OSError, subprocess.SubprocessError):
+        stamp = ""
+    if stamp.isdigit():
+        return datetime.fromtimestamp(int(stamp), tz=timezone.utc).date()
+    return datetime.now(tz=timezone.utc).date()
+
+
+def run(data_dir: Path) -> Outcome:
+    """Load, compute and check: every figure and every discrepancy of the registry."""
+    fleet = load(data_dir)
+    as_of = as_of_date(data_dir)
+    results = compute.compute_fleet(fleet, as_of)
+    found = checks.check_fleet(fleet, results)
+    return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
 
 def summary(fleet: Fleet) -> str:
@@ -29,8 +72,8 @@ def summary(fleet: Fleet) -> str:
 
 def build(data_dir: Path, out_dir: Path) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`."""
-    fleet = load(data_dir)
-    pages = render.render_site(fleet)
+    outcome = run(data_dir)
+    pages = render.render_site(outcome.fleet)
     with publish.staging_dir(out_dir) as stage:
         for rel_path, content in pages.items():
             target = stage / rel_path

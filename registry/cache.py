@@ -1,0 +1,154 @@
+"""Content-keyed memory of results that depend only on an antenna model's content and a frequency.
+
+A fleet has thousands of installations but few distinct antenna models: a pattern or an impedance
+sweep is computed once per (kind, geometry, frequency) and shared. The key is the content, never the
+model's id, so two models with the same geometry share one result and an edited geometry gets a new one.
+"""
+from __future__ import annotations
+
+import functools
+import hashlib
+
+import numpy as np
+
+from registry.model import AntennaModel
+from registry.physics import impedance, kinds, patterns
+from registry.results import Curve, Figure, PatternResult
+
+MHZ = 1e6
+
+
+def physics_geometry(model: AntennaModel) -> tuple[str, tuple[tuple[str, object], ...]]:
+    """The physics kind and canonical geometry of a catalogue antenna model (registry names → physics)."""
+    g = model.geometry
+    kind = model.kind
+    if kind == "quarter_wave_monopole":
+        return "monopole", kinds.canonical_geometry(
+            "monopole", {"height_m": g["element_length_m"], "diameter_m": g["element_diameter_m"]})
+    if kind == "half_wave_dipole":
+        return "dipole", kinds.canonical_geometry(
+            "dipole", {"length_m": g["element_length_m"], "diameter_m": g["element_diameter_m"]})
+    if kind == "folded_dipole":
+        return "folded_dipole", kinds.canonical_geometry("folded_dipole", {
+            "length_m": g["element_length_m"], "diameter_m": g["element_diameter_m"], "spacing_m": g["spacing_m"]})
+    if kind == "small_loop":
+        return "small_loop", kinds.canonical_geometry("small_loop", {"diameter_m": g["loop_diameter_m"]})
+    if kind == "yagi_uda":
+        elements = sorted(g["elements"], key=lambda element: element["position_m"])
+        driven = [i for i, element in enumerate(elements) if element["role"] == "driven"]
+        return "yagi", kinds.canonical_geometry("yagi", {
+            "element_lengths_m": [element["length_m"] for element in elements],
+            "element_positions_m": [element["position_m"] for element in elements],
+            "diameter_m": g["element_diameter_m"], "driven_index": driven[0]})
+    if kind == "linear_array":
+        params = {"n_elements": g["element_count"], "spacing_m": g["spacing_m"],
+                  "taper": g.get("taper", "uniform"),
+                  "element": "isotropic" if g.get("element", "isotropic") == "isotropic" else "half_wave_dipole"}
+        if "sidelobe_db" in g:
+            params["sidelobe_db"] = g["sidelobe_db"]
+        if "amplitudes" in g:
+            params["amplitudes"] = list(g["amplitudes"])
+        return "linear_array", kinds.canonical_geometry("linear_array", params)
+    if kind == "slotted_planar_array":
+        params = {"nx": g["columns"], "ny": g["rows"], "spacing_x_m": g["spacing_x_m"],
+                  "spacing_y_m": g["spacing_y_m"], "taper": g.get("taper", "uniform")}
+        if "sidelobe_db" in g:
+            params["sidelobe_db"] = g["sidelobe_db"]
+        return "slotted_array", kinds.canonical_geometry("slotted_array", params)
+    if kind == "parabolic_reflector":
+        return "parabolic", kinds.canonical_geometry(
+            "parabolic", {"diameter_m": g["diameter_m"], "edge_taper_db": g["edge_taper_db"]})
+    if kind == "patch":
+        return "patch", kinds.canonical_geometry("patch", {
+            "length_m": g["length_m"], "width_m": g["width_m"], "substrate_height_m": g["substrate_height_m"],
+            "eps_r": g["substrate_permittivity"]})
+    raise ValueError(f"no physics for antenna kind '{kind}'")
+
+
+def content_key(*parts: object) -> str:
+    """A short stable hash of the parts' repr (floats repr exactly, so equal content → equal key)."""
+    return hashlib.sha256(repr(parts).encode()).hexdigest()[:16]
+
+
+def pattern(model: AntennaModel, freq_mhz: float) -> PatternResult:
+    """The model's pattern at `freq_mhz`, computed once per distinct content."""
+    kind, geometry = physics_geometry(model)
+    return _pattern(kind, geometry, float(freq_mhz))
+
+
+@functools.lru_cache(maxsize=None)
+def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
+    raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)
+    m = raw.metrics
+    peak = m.peak_directivity_dbi
+    method = PATTERN_METHODS[kind]
+    figures = [
+        Figure("pattern.directivity_dbi", "Peak directivity", peak, "dBi", "D = 4π U_max / P_rad",
+               source=f"{method}; numerical integration over the sphere"),
+        Figure("pattern.hpbw_e_deg", "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°", source=method),
+        Figure("pattern.hpbw_h_deg", "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°", source=method),
+        Figure("pattern.front_to_back_db", "Front-to-back ratio", m.front_to_back_db, "dB", source=method),
+        Figure("pattern.first_sidelobe_db", "First sidelobe level", m.first_sidelobe_db, "dB", source=method),
+        Figure("pattern.azimuth_ripple_db", "Azimuth ripple", m.azimuth_ripple_db, "dB", source=method),
+    ]
+    return PatternResult(
+        key=content_key(kind, geometry, freq_mhz),
+        antenna="",
+        kind=kind,
+        freq_mhz=freq_mhz,
+        e_plane=Curve(np.asarray(raw.e_angle_deg), np.asarray(raw.e_db) + peak, "Angle (°)", "Gain (dBi)"),
+        h_plane=Curve(np.asarray(raw.h_angle_deg), np.asarray(raw.h_db) + peak, "Angle (°)", "Gain (dBi)"),
+        metrics=tuple(figures),
+    )
+
+
+def gain_toward_dbi(model: AntennaModel, freq_mhz: float, theta_rad: float, phi_rad: float) -> float:
+    """Gain (dBi, lossless so equal to directivity) of the model toward (θ, φ) in its own axes."""
+    kind, geometry = physics_geometry(model)
+    return _gain_toward(kind, geometry, float(freq_mhz), float(theta_rad), float(phi_rad))
+
+
+@functools.lru_cache(maxsize=None)
+def _gain_toward(kind: str, geometry: tuple, freq_mhz: float, theta_rad: float, phi_rad: float) -> float:
+    raw = _raw_grid(kind, geometry, freq_mhz)
+    theta_deg, phi_deg, gain = raw
+    i = int(np.argmin(np.abs(theta_deg - np.rad2deg(theta_rad))))
+    j = int(np.argmin(np.abs(phi_deg - np.rad2deg(phi_rad) % 360.0)))
+    return float(gain[i, j])
+
+
+@functools.lru_cache(maxsize=None)
+def _raw_grid(kind: str, geometry: tuple, freq_mhz: float):
+    raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)
+    return raw.theta_deg, raw.phi_deg, raw.gain_dbi
+
+
+def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mhz: float):
+    """(complex Z_in array over freqs_mhz, series resonance in MHz or nan, Re Z_in at design_mhz) for wire
+    kinds solved by the method of moments; None for kinds without an input-impedance model."""
+    kind, geometry = physics_geometry(model)
+    if kind not in kinds.WIRE_KINDS:
+        return None
+    return _impedance(kind, geometry, freqs_mhz, float(design_mhz))
+
+
+@functools.lru_cache(maxsize=None)
+def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_mhz: float):
+    freqs_hz = np.asarray(freqs_mhz) * MHZ
+    z = impedance.solve_wire_antenna(kind, geometry, freqs_hz).z_in_ohm
+    r_design = float(impedance.solve_wire_antenna(kind, geometry, [design_mhz * MHZ]).z_in_ohm[0].real)
+    resonance_hz = impedance.resonant_frequency_hz(kind, geometry, 0.5 * design_mhz * MHZ, 1.5 * design_mhz * MHZ)
+    return z, resonance_hz / MHZ, r_design
+
+
+PATTERN_METHODS = {
+    "dipole": "finite-dipole formula (Balanis, Antenna Theory, 4th ed., Eq. 4-62)",
+    "monopole": "finite-dipole formula over a perfect ground plane by image theory (Balanis 4th ed., §4.7)",
+    "folded_dipole": "antenna mode of a folded dipole: the dipole pattern (Balanis 4th ed., §9.5)",
+    "small_loop": "electrically small loop, sin θ pattern (Balanis 4th ed., §5.2)",
+    "yagi": "thin-wire method-of-moments currents, mutual coupling included (Richmond's PWS Galerkin)",
+    "linear_array": "array factor times element pattern (Balanis 4th ed., ch. 6)",
+    "slotted_array": "2-D array factor times the half-wave slot pattern (Balanis 4th ed., ch. 6 and 12)",
+    "parabolic": "circular aperture, parabolic-on-pedestal illumination (Balanis 4th ed., §12.7, ch. 15)",
+    "patch": "cavity model, two radiating slots (Balanis 4th ed., §14.2)",
+}

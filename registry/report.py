@@ -1,0 +1,114 @@
+"""The `check` command's report: terminal text grouped by aircraft, JSON and CSV."""
+from __future__ import annotations
+
+import csv
+import io
+import json
+from collections import Counter
+from dataclasses import asdict
+
+from registry.model import Fleet
+from registry.results import REVIEW_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
+
+FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",
+          "source", "review", "reviewer", "review_reference", "review_comment")
+STATES = ("open", "reopened") + REVIEW_STATES
+
+
+def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = None,
+           service: list[str] | None = None, severity: list[str] | None = None) -> list[Discrepancy]:
+    """Discrepancies matching every filter given (aircraft id or registration; service id; severity)."""
+    def service_of(item: Discrepancy) -> set[str]:
+        craft = fleet.aircraft[item.aircraft]
+        return {craft.installations[pos].service for pos in item.position.split("+")}
+
+    out = []
+    for item in found:
+        if aircraft and item.aircraft not in aircraft and fleet.aircraft[item.aircraft].registration not in aircraft:
+            continue
+        if service and not service_of(item) & set(service):
+            continue
+        if severity and item.severity not in severity:
+            continue
+        out.append(item)
+    return out
+
+
+def as_json(found: list[Discrepancy], stale: list, as_of: str) -> str:
+    return json.dumps({
+        "as_of": as_of,
+        "discrepancies": [{name: asdict(item)[name] for name in FIELDS} for item in found],
+        "stale_reviews": [{"discrepancy": review.discrepancy, "state": review.state,
+                           "source": f"{review.src.path}:{review.src.line}"} for review in stale],
+    }, indent=2, ensure_ascii=False) + "\n"
+
+
+def as_csv(found: list[Discrepancy]) -> str:
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(FIELDS)
+    for item in found:
+        row = asdict(item)
+        writer.writerow(["" if row[name] is None else row[name] for name in FIELDS])
+    return buffer.getvalue()
+
+
+def counts_line(found: list[Discrepancy]) -> str:
+    by_severity = Counter(item.severity for item in found)
+    by_state = Counter(item.review for item in found)
+    severities = ", ".join(f"{by_severity[name]} {name}" for name in SEVERITIES)
+    states = ", ".join(f"{by_state[name]} {name}" for name in STATES if by_state[name])
+    return f"{len(found)} discrepancies ({severities}); review: {states or 'none'}"
+
+
+def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> str:
+    """Grouped by aircraft, each with its counts; then stale reviews; then the fleet's totals."""
+    lines = [f"{fleet.operator}: {len(fleet.aircraft)} aircraft, "
+             f"{sum(len(a.installations) for a in fleet.aircraft.values())} installations, as of {as_of}", ""]
+    for craft in fleet.aircraft.values():
+        mine = [item for item in found if item.aircraft == craft.id]
+        lines.append(f"{craft.registration} ({craft.id}, {craft.airframe}): {counts_line(mine)}")
+        for item in mine:
+            value = f"{item.value}{(' ' + item.unit) if item.unit else ''}"
+            lines.append(f"  [{item.severity}] {item.id}  ({item.review})")
+            lines.append(f"      {item.message}")
+            lines.append(f"      value {value}, limit {item.limit}; {item.source}")
+        lines.append("")
+    for review in stale:
+        lines.append(f"stale review: {review.src.path}:{review.src.line}: {review.discrepancy} "
+                     f"({review.state}) matches no current discrepancy")
+    if stale:
+        lines.append("")
+    lines.append(f"fleet: {counts_line(found)}")
+    return "\n".join(lines) + "\n"
+
+
+def format_value(figure: Figure) -> str:
+    value = figure.value
+    if isinstance(value, float):
+        text = f"{value:.4g}" if abs(value) < 1e5 else f"{value:.6g}"
+    else:
+        text = "—" if value is None else str(value)
+    return f"{text} {figure.unit}".rstrip()
+
+
+def details(fleet: Fleet, results: FleetResults) -> str:
+    """Every computed figure of every installation and pair, for `check --details`."""
+    lines = []
+    for craft, installation in fleet.installations():
+        result = results.installations[(craft.id, installation.position)]
+        lines.append(f"{craft.registration} {installation.position} ({installation.service}, {installation.antenna})")
+        figures = list(result.figures)
+        if result.pattern_key:
+            figures += results.patterns[result.pattern_key].metrics
+        for figure in figures:
+            lines.append(f"  {figure.label:<52} {format_value(figure)}")
+        lines.append("")
+    for pair in results.pairs:
+        craft = fleet.aircraft[pair.aircraft]
+        note = "  (near field: indicative only)" if pair.near_field else ""
+        lines.append(f"{craft.registration} {pair.position_a} + {pair.position_b}{note}")
+        for figure in pair.figures:
+            lines.append(f"  {figure.label:<52} {format_value(figure)}")
+        lines.append("")
+    return "\n".join(lines)

@@ -80,6 +80,7 @@ class _Run:
             self.problem(stray, "a file ending in .yml", "the ending .yaml (other endings are not read)")
         if not files:
             self.problem(folder, "no .yaml files", f"at least one {name}/<id>.yaml file")
+            return [None]  # like a file that failed: references into this folder cannot be checked
         return [self.read(file, kind) for file in files]
 
     def load(self) -> Fleet:
@@ -109,11 +110,13 @@ class _Run:
             if reviews_doc else []
 
         catalogue = integrity.Catalogue(
-            airframes=None if None in airframe_docs else {item.id for item in airframes},
+            # an id that differs from its file name is reported once, not again at each reference to it
+            airframes=None if None in airframe_docs else {name for item in airframes for name in _names(item)},
             antennas=None if antennas is None else {item.id for item in antennas},
             cables=None if cables is None else {item.id for item in cables},
             services=None if services is None else {item.id for item in services},
-            aircraft=None if None in aircraft_docs else {item.id: set(item.installations) for item in aircraft},
+            aircraft=None if None in aircraft_docs else {
+                name: set(item.installations) for item in aircraft for name in _names(item)},
         )
         self.problems += integrity.check_airframes(airframes)
         self.problems += integrity.check_antennas(antennas or [])
@@ -226,6 +229,10 @@ class _LayeredLocator(Locator):
             if parts[:1] in layer.index:
                 return layer.where(field_path)
         return self.fallback
+
+
+def _names(item: Airframe | Aircraft) -> set[str]:
+    return {item.id, Path(item.src.path).stem}
 
 
 def _by_id(items: list[Any]) -> FrozenMap:

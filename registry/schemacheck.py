@@ -127,7 +127,10 @@ def _problems(error: ValidationError, doc: YamlDoc) -> list[Problem]:
                            f"an unknown key '{key}'", f"one of {', '.join(known)}{suggest(key, known)}")
                 for key in instance if key not in known]
     if kind == "required":
-        why = schema.get("description", "the key is required")
+        # a conditional requirement (if/then) says when it applies in the `then` schema's description
+        conditional = list(error.relative_schema_path)[-2:] == ["then", "required"]
+        why = schema.get("description", "") if conditional else ""
+        why = why or "the key is required"
         return [Problem.at(placed.src, format_path(parts + (name,)), "nothing", f"a value ({why})")
                 for name in error.validator_value if name not in instance]
     if kind in ("oneOf", "anyOf") and all(set(branch) == {"required"} for branch in error.validator_value):

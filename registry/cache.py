@@ -123,22 +123,32 @@ def _raw_grid(kind: str, geometry: tuple, freq_mhz: float):
     return raw.theta_deg, raw.phi_deg, raw.gain_dbi
 
 
-def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mhz: float):
-    """(complex Z_in array over freqs_mhz, series resonance in MHz or nan, Re Z_in at design_mhz) for wire
-    kinds solved by the method of moments; None for kinds without an input-impedance model."""
+def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mhz: float,
+                    centres_mhz: tuple[float, ...]):
+    """Modelled input impedance of a wire kind, or None for kinds without an input-impedance model.
+
+    Returns (Z_in over freqs_mhz, series resonance in MHz or nan, Re Z_in at design_mhz,
+    ((Z, dZ/dω) at each of centres_mhz)).
+    """
     kind, geometry = physics_geometry(model)
     if kind not in kinds.WIRE_KINDS:
         return None
-    return _impedance(kind, geometry, freqs_mhz, float(design_mhz))
+    return _impedance(kind, geometry, freqs_mhz, float(design_mhz), centres_mhz)
 
 
 @functools.lru_cache(maxsize=None)
-def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_mhz: float):
+def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_mhz: float,
+               centres_mhz: tuple[float, ...]):
     freqs_hz = np.asarray(freqs_mhz) * MHZ
     z = impedance.solve_wire_antenna(kind, geometry, freqs_hz).z_in_ohm
     r_design = float(impedance.solve_wire_antenna(kind, geometry, [design_mhz * MHZ]).z_in_ohm[0].real)
     resonance_hz = impedance.resonant_frequency_hz(kind, geometry, 0.5 * design_mhz * MHZ, 1.5 * design_mhz * MHZ)
-    return z, resonance_hz / MHZ, r_design
+    slopes = []
+    for centre in centres_mhz:
+        step = 1e-3 * centre * MHZ
+        z3 = impedance.solve_wire_antenna(kind, geometry, [centre * MHZ - step, centre * MHZ, centre * MHZ + step]).z_in_ohm
+        slopes.append((complex(z3[1]), complex((z3[2] - z3[0]) / (2 * step * 2 * np.pi))))
+    return z, resonance_hz / MHZ, r_design, tuple(slopes)
 
 
 PATTERN_METHODS = {

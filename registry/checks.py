@@ -94,13 +94,13 @@ def installation_discrepancies(fleet: Fleet, aircraft: Aircraft, installation: I
             covered, "interval comparison of rated and service bands"))
 
     limit = policy.vswr_limit_for(service.id)
-    modelled = fig("vswr.max_in_band")
-    if modelled is not None and modelled.value > limit:
+    needed, matchable = fig("vswr.needed_pct"), fig("vswr.bode_fano_pct")
+    if needed is not None and needed.value > matchable.value:
         out.append(make(
-            "vswr-bandwidth", ac, pos, modelled.value, limit, "",
-            f"Modelled VSWR reaches {modelled.value:.2f} inside the {service.name} band (limit {limit:g}); "
-            f"VSWR stays under the limit only over {fig('vswr.band_under_limit_mhz').value} MHz.",
-            modelled))
+            "vswr-bandwidth", ac, pos, needed.value, matchable.value, "%",
+            f"The {service.name} band is {needed.value:.1f} % wide but with its modelled Q of "
+            f"{fig('vswr.q').value:.1f} no matching network can hold VSWR {limit:g} over more than "
+            f"{matchable.value:.1f} %.", matchable))
 
     for key, what in (("measured.vswr", "Measured VSWR"), ("sweep.max_vswr", "Measured sweep VSWR")):
         measured = fig(key)

@@ -185,35 +185,57 @@ def in_bands(freqs_mhz: np.ndarray, bands) -> np.ndarray:
 
 def modelled_vswr(model: AntennaModel, service: Service, cable: Cable,
                   policy: Policy) -> tuple[list[Figure], Curve | None]:
-    """VSWR across the service band from the method-of-moments input impedance of the element.
+    """VSWR across the service band from the method-of-moments input impedance of the element, and
+    whether any matching network could hold the VSWR limit across each service band.
 
-    The element is solved bare; its matching network is taken as an ideal lossless transformer that
-    brings the element's resistance at the design frequency to the antenna's declared impedance. VSWR
-    is then taken against the feeder cable's characteristic impedance.
+    The curve is the bare element seen through an ideal lossless transformer that brings its resistance
+    at the design frequency to the antenna's declared impedance, against the feeder's impedance: the
+    antenna's own matching network is not modelled, so the curve is an indicator. The check uses the
+    Bode–Fano limit instead: with the element's Q from its modelled impedance slope,
+    Q ≈ ω₀·|Z′(ω₀)| / (2R₀) (Yaghjian and Best, IEEE Trans. AP-53, 2005), no lossless matching network
+    can hold |Γ| ≤ Γm over a fractional bandwidth wider than π / (Q·ln(1/Γm)) (Pozar, Microwave
+    Engineering, 4th ed., §5.9).
     """
     freqs_mhz = sweep_freqs_mhz(service)
-    sweep_result = cache.impedance_sweep(model, tuple(freqs_mhz.tolist()), service.design_freq_mhz)
-    if sweep_result is None:
+    centres = tuple((low + high) / 2 for low, high in service.bands_mhz)
+    solved = cache.impedance_sweep(model, tuple(freqs_mhz.tolist()), service.design_freq_mhz, centres)
+    if solved is None:
         return [], None
-    z_element, resonance_mhz, r_design = sweep_result
+    z_element, resonance_mhz, r_design, slopes = solved
     ratio = model.impedance_ohm / r_design
     vswr = mismatch.vswr_from_z(z_element * ratio, cable.impedance_ohm)
     band = in_bands(freqs_mhz, service.bands_mhz)
     limit = policy.vswr_limit_for(service.id)
+    gamma_max = (limit - 1) / (limit + 1)
     band_low, band_high = impedance.band_under_vswr(freqs_mhz, vswr, limit)
+    worst = None  # the band whose needed bandwidth comes closest to (or beyond) the Bode–Fano limit
+    for (low, high), centre, (z_centre, slope) in zip(service.bands_mhz, centres, slopes):
+        q = 2 * math.pi * centre * MHZ * abs(slope) / (2 * z_centre.real)
+        limit_pct = 100 * math.pi / (q * math.log(1 / gamma_max))
+        needed_pct = 100 * (high - low) / centre
+        if worst is None or needed_pct / limit_pct > worst[3] / worst[2]:
+            worst = (centre, q, limit_pct, needed_pct)
+    centre, q, limit_pct, needed_pct = worst
     src = where(model, "geometry")
     figures = [
         Figure("vswr.resonance_mhz", "Modelled series resonance", resonance_mhz, "MHz", "X_in(f) = 0",
                source=METHOD_MOM, src=src),
         Figure("vswr.r_design_ohm", "Element resistance at design frequency", r_design, "Ω",
                "Re Z_in(f_design)", source=METHOD_MOM, src=src),
-        Figure("vswr.max_in_band", "Modelled VSWR, worst in service band", float(vswr[band].max()), "",
-               "VSWR = (1 + |Γ|) / (1 − |Γ|), Γ = (Z·Z_ant/R − Z₀) / (Z·Z_ant/R + Z₀)",
+        Figure("vswr.max_in_band", "Modelled VSWR of the bare element, worst in band", float(vswr[band].max()), "",
+               "VSWR = (1 + |Γ|)/(1 − |Γ|), Γ = (Z·Z_ant/R − Z₀)/(Z·Z_ant/R + Z₀)",
                (("Z_ant", f"{model.impedance_ohm:g} Ω"), ("R", f"{r_design:.1f} Ω"),
                 ("Z₀ (cable)", f"{cable.impedance_ohm:g} Ω")),
-               "Pozar, Microwave Engineering, 4th ed., §2.3", src),
-        Figure("vswr.band_under_limit_mhz", f"Band with modelled VSWR ≤ {limit:g}",
+               "Pozar, Microwave Engineering, 4th ed., §2.3; matching network not modelled", src),
+        Figure("vswr.band_under_limit_mhz", f"Band with bare-element VSWR ≤ {limit:g}",
                "none" if math.isnan(band_low) else f"{band_low:.2f}–{band_high:.2f}", "MHz", src=src),
+        Figure("vswr.q", "Element Q", q, "", "Q ≈ ω₀·|Z′(ω₀)| / (2R₀)", (("f₀", f"{centre:g} MHz"),),
+               "Yaghjian and Best, IEEE Trans. Antennas Propag. 53(4), 2005", src),
+        Figure("vswr.needed_pct", "Fractional bandwidth the service needs", needed_pct, "%", "Δf / f₀",
+               (("f₀", f"{centre:g} MHz"),), src=where(service, "bands_mhz")),
+        Figure("vswr.bode_fano_pct", f"Widest band matchable to VSWR {limit:g}", limit_pct, "%",
+               "π / (Q·ln(1/Γm))", (("Q", f"{q:.2f}"), ("Γm", f"{gamma_max:.3f}")),
+               "Bode–Fano limit (Pozar, Microwave Engineering, 4th ed., §5.9)", src),
     ]
     curve = Curve(freqs_mhz, vswr, "Frequency (MHz)", "VSWR")
     return figures, curve

@@ -1,0 +1,61 @@
+"""Pure pieces of the compute and check stages: band arithmetic, reviews, the merge gate.
+
+Sources: interval arithmetic and the review rules are the product's own definitions (docs/registry-format.md);
+the mismatch figure of a 75 Ω cable on a 50 Ω antenna is Pozar, Microwave Engineering, 4th ed., §2.3
+(VSWR = Z_high / Z_low for two real impedances).
+"""
+from dataclasses import replace
+from datetime import date
+
+import pytest
+
+from registry import checks, compute
+from registry.errors import Src
+from registry.model import FrozenMap, Review
+from registry.results import Discrepancy
+
+
+def test_uncovered_band_is_service_minus_rated():
+    # common practice, no source: the 8.33 kHz VHF band starts at 117.975 MHz; an antenna rated 118-137 misses 25 kHz
+    assert compute.uncovered_mhz([(117.975, 137.0)], [(118.0, 137.0)]) == [(117.975, 118.0)]
+    assert compute.uncovered_mhz([(108.0, 118.0)], [(100.0, 110.0), (112.0, 120.0)]) == [(110.0, 112.0)]
+    assert compute.uncovered_mhz([(1030.0, 1090.0)], [(960.0, 1215.0)]) == []
+
+
+def test_uncovered_band_covers_every_service_band():
+    gaps = compute.uncovered_mhz([(121.45, 121.55), (406.0, 406.1)], [(118.0, 137.0)])
+    assert gaps == [(406.0, 406.1)]
+
+
+def discrepancy(value=3.4):
+    return Discrepancy(id="qx-aaa/VHF1/feeder-loss", rule="feeder-loss", severity="concern", aircraft="qx-aaa",
+                       position="VHF1", value=value, limit=3.0, unit="dB", message="m", method="", source="")
+
+
+def review(value_seen, state="accepted"):
+    return Review(src=Src("reviews.yaml", 3, 5), discrepancy="qx-aaa/VHF1/feeder-loss", state=state,
+                  reviewer="R. Marlow", date=date(2026, 1, 15), value_seen=value_seen)
+
+
+def test_review_with_same_value_applies():
+    out = checks.apply_reviews([discrepancy(3.4)], FrozenMap({"qx-aaa/VHF1/feeder-loss": review(3.4)}))
+    assert out[0].review == "accepted" and out[0].reviewer == "R. Marlow"
+
+
+def test_review_reopens_when_value_changed():
+    out = checks.apply_reviews([discrepancy(3.9)], FrozenMap({"qx-aaa/VHF1/feeder-loss": review(3.4)}))
+    assert out[0].review == "reopened"
+
+
+def test_review_without_discrepancy_is_stale():
+    reviews = FrozenMap({"qx-aaa/VHF1/feeder-loss": review(3.4)})
+    assert checks.stale_reviews([], reviews) == [reviews["qx-aaa/VHF1/feeder-loss"]]
+    assert checks.stale_reviews([discrepancy()], reviews) == []
+
+
+@pytest.mark.parametrize("severity, state, fails", [
+    ("blocking", "open", True), ("blocking", "reopened", True), ("blocking", "accepted", False),
+    ("blocking", "action-raised", False), ("concern", "open", False), ("advisory", "open", False),
+])
+def test_gate_fails_only_on_open_blocking(severity, state, fails):
+    assert checks.gate_fails([replace(discrepancy(), severity=severity, review=state)]) is fails

@@ -1,0 +1,145 @@
+"""The line-tracking YAML layer: positions, YAML 1.1 behaviour kept, and what it refuses."""
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from registry.errors import Src
+from registry.yamlsource import MAX_ALIAS_VALUES, MAX_DEPTH, read_yaml
+
+
+def read(tmp_path: Path, text: str | bytes):
+    path = tmp_path / "doc.yaml"
+    path.write_bytes(text.encode("utf-8") if isinstance(text, str) else text)
+    return read_yaml(path, "doc.yaml")
+
+
+def messages(tmp_path: Path, text: str | bytes) -> list[str]:
+    doc, problems = read(tmp_path, text)
+    assert doc is None
+    return [str(problem) for problem in problems]
+
+
+def test_positions_of_keys_and_values(tmp_path):
+    doc, problems = read(tmp_path, "a: 1\nb:\n  - {c: x, d: 2}\n  - plain\n")
+    assert problems == []
+    assert doc.data == {"a": 1, "b": [{"c": "x", "d": 2}, "plain"]}
+    assert doc.index[("a",)].key == Src("doc.yaml", 1, 1)
+    assert doc.index[("a",)].value == Src("doc.yaml", 1, 4)
+    assert doc.index[("b", 0, "d")].key == Src("doc.yaml", 3, 12)
+    assert doc.index[("b", 1)].key is None and doc.index[("b", 1)].value == Src("doc.yaml", 4, 5)
+    assert doc.placed(("b", 0, "missing")) == doc.index[("b", 0)]
+
+
+def test_scalars_follow_yaml_1_1_and_dates_stay_text(tmp_path):
+    # YAML 1.1 (yaml.org/type/bool.html): yes/no are booleans; a float needs a dot (yaml.org/type/float.html),
+    # so 1e3 stays text. Dates are kept as written for the schema's `format: date`.
+    doc, _ = read(tmp_path, "a: yes\nb: 1e3\nc: 1.0e+3\nd: 2025-02-11\ne: ~\nf: 0x10\n")
+    assert doc.data == {"a": True, "b": "1e3", "c": 1000.0, "d": "2025-02-11", "e": None, "f": 16}
+    assert doc.index[("a",)].text == "yes"
+
+
+def test_merge_keys_with_explicit_keys_winning(tmp_path):
+    # YAML 1.1 merge key (yaml.org/type/merge.html): keys written in the mapping override merged ones.
+    doc, problems = read(tmp_path, "base: &b {x: 1, y: 2}\nthing:\n  <<: *b\n  y: 3\n")
+    assert problems == []
+    assert doc.data["thing"] == {"x": 1, "y": 3}
+    assert doc.index[("thing", "x")].key.line == 1  # a merged value points at the line it was written on
+
+
+def test_merge_key_needs_a_mapping(tmp_path):
+    assert messages(tmp_path, "thing:\n  <<: 5\n  y: 3\n") == [
+        "doc.yaml:2:3: error: thing.<<: found a merge key (<<) with a value that is not a mapping, "
+        "expected an alias of a mapping, e.g. <<: *common"]
+
+
+def test_duplicate_keys_are_errors_even_in_flow_mappings(tmp_path):
+    assert messages(tmp_path, "a: {x: 1, x: 2}\n") == [
+        "doc.yaml:1:11: error: a.x: found a second 'x' key (the first is on line 1), expected each key once"]
+
+
+def test_alias_that_contains_itself(tmp_path):
+    assert messages(tmp_path, "a: &a [1, *a]\n") == [
+        "doc.yaml:1:4: error: a[1]: found an alias inside its own anchor, expected data that does not contain itself"]
+
+
+def test_aliases_are_bounded_but_allowed_in_moderation(tmp_path):
+    doc, problems = read(tmp_path, "a: &a [1, 2, 3]\nb: *a\nc: *a\n")
+    assert problems == [] and doc.data["c"] == [1, 2, 3]
+    width = 4
+    levels = 1
+    while width ** levels <= MAX_ALIAS_VALUES:
+        levels += 1
+    lines = ["l0: &l0 x"] + [f"l{n}: &l{n} [{', '.join([f'*l{n - 1}'] * width)}]" for n in range(1, levels + 1)]
+    result = messages(tmp_path, "\n".join(lines) + "\n")
+    assert len(result) == 1 and f"aliases (*name) that copy more than {MAX_ALIAS_VALUES} values" in result[0]
+
+
+def test_merge_keys_cannot_multiply_without_bound(tmp_path):
+    lines = ["m0: &m0 {" + ", ".join(f"k{n}: {n}" for n in range(10)) + "}"]
+    for level in range(1, 8):
+        lines.append(f"m{level}a: &m{level}a {{<<: [*m{level - 1}]}}")
+        lines.append(f"m{level}: &m{level} {{<<: [*m{level}a, *m{level - 1}, *m{level}a, *m{level - 1}]}}")
+    result = messages(tmp_path, "\n".join(lines) + "\n")
+    assert len(result) == 1 and "aliases (*name) that copy more than" in result[0]
+
+
+def test_nesting_depth_is_limited(tmp_path):
+    # the top-level mapping is the first level, so the list opened at column 3 + MAX_DEPTH is one too many
+    deep = "a: " + "[" * (MAX_DEPTH + 5) + "]" * (MAX_DEPTH + 5) + "\n"
+    assert messages(tmp_path, deep) == [
+        f"doc.yaml:1:{3 + MAX_DEPTH}: error: (file): found lists and mappings nested more than {MAX_DEPTH} deep, "
+        f"expected at most {MAX_DEPTH} levels"]
+
+
+def test_tags_are_refused(tmp_path):
+    assert messages(tmp_path, "a: !!python/object:os.system x\n") == [
+        "doc.yaml:1:4: error: a: found the tag !!python/object:os.system, expected plain YAML without tags"]
+    assert messages(tmp_path, "a: !!int abc\n") == [
+        "doc.yaml:1:4: error: a: found 'abc' marked !!int, expected a value that can be read as !!int"]
+
+
+def test_non_finite_numbers_are_refused(tmp_path):
+    assert messages(tmp_path, "a: .nan\nb: -.inf\n") == [
+        "doc.yaml:1:4: error: a: found .nan, expected a finite number",
+        "doc.yaml:2:4: error: b: found -.inf, expected a finite number"]
+
+
+def test_control_characters_and_second_documents(tmp_path):
+    assert messages(tmp_path, "a: 1\nb: \x07\n") == [
+        "doc.yaml:2:4: error: (file): found the control character U+0007, expected printable text"]
+    assert messages(tmp_path, "a: 1\n---\nb: 2\n") == [
+        "doc.yaml:2:1: error: (file): found a second document (a line starting ---), expected one document per file"]
+
+
+def test_utf8_bom_is_accepted(tmp_path):
+    doc, problems = read(tmp_path, b"\xef\xbb\xbfa: 1\n")
+    assert problems == [] and doc.data == {"a": 1}
+
+
+def test_comment_only_file_is_empty(tmp_path):
+    assert messages(tmp_path, "# yaml-language-server: $schema=x.json\n\n") == [
+        "doc.yaml:1:1: error: (file): found an empty file, expected a YAML mapping of keys and values"]
+
+
+def test_truncated_inside_quoted_text(tmp_path):
+    assert messages(tmp_path, 'a: 1\nb: "half a sentence') == [
+        "doc.yaml:2:20: error: (file): found the end of the file inside quoted text that starts on line 2, "
+        "expected the rest of the file (is it cut short?)"]
+
+
+def test_unreadable_file(tmp_path):
+    doc, problems = read_yaml(tmp_path, "folder.yaml")  # a folder cannot be read as a file
+    assert doc is None and len(problems) == 1
+    assert str(problems[0]).startswith("folder.yaml:1:1: error: (file): found a file that cannot be read")
+
+
+@pytest.mark.parametrize("text, expected", [
+    ("a:\n  b: 1\n \tc: 2\n", "doc.yaml:3:2: error: (file): found a tab in the indentation, "
+                              "expected spaces (YAML does not allow tabs for indentation)"),
+    ("a: b: c\n", "doc.yaml:1:5: error: (file): found invalid YAML (mapping values are not allowed here), "
+                  "expected well-formed YAML (check the indentation, colons and quotes here or just above)"),
+])
+def test_syntax_messages(tmp_path, text, expected):
+    assert messages(tmp_path, text) == [expected]

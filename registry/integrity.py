@@ -132,10 +132,12 @@ def check_services(services: list[Service]) -> list[Problem]:
     for service in services:
         unordered = bands(service)
         problems += unordered
-        inside = any(low <= service.design_freq_mhz <= high for low, high in service.bands_mhz)
-        if not unordered and not inside:
+        # a split band (receive / transmit) may be served by one element cut between its parts
+        lowest = min(low for low, _ in service.bands_mhz)
+        highest = max(high for _, high in service.bands_mhz)
+        if not unordered and not lowest <= service.design_freq_mhz <= highest:
             problems.append(problem(service, "design_freq_mhz", f"{service.design_freq_mhz:g} MHz",
-                                    "a frequency inside one of the service's bands"))
+                                    f"a frequency within the service's bands, {lowest:g} to {highest:g} MHz"))
     return problems
 
 

@@ -141,6 +141,13 @@ def test_reviews_keyed_by_discrepancy(fleet):
     assert fleet.reviews["qx-fca/VHF1/feeder-loss"].value_seen == 3.4
 
 
+def test_good_registry_loads_with_the_package_service_table_and_policy():
+    fleet = load_fleet(GOOD)  # registry/data/services.yaml and policy.yaml
+    assert fleet.services["vhf_com"].src.path.endswith("services.yaml")
+    assert fleet.services["vhf_com"].shipped and not fleet.services["dme"].shipped
+    assert fleet.policy.vswr_limit == 1.9  # the fleet's policy.yaml still wins
+
+
 def test_optional_files_may_be_left_out(tmp_path):
     data = tmp_path / "registry"
     shutil.copytree(GOOD, data)

@@ -36,6 +36,9 @@ EXPECTED = {
     "band_edges_reversed": [
         'services.yaml:5:17: error: services[0].bands_mhz[0]: found [137, 131], expected the lower band edge first (low < high)',
     ],
+    "design_freq_outside_bands": [
+        "services.yaml:6:5: error: services[0].design_freq_mhz: found 150 MHz, expected a frequency within the service's bands, 131 to 137 MHz",
+    ],
     "duplicate_id": [
         "cables.yaml:20:5: error: cables[2].id: found 'FXC-400' again (first on line 3), expected each cable id once, ignoring upper and lower case",
     ],

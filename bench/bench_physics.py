@@ -1,0 +1,54 @@
+"""Benchmark of the physics core: prints a table of wall-clock times (not a test; nothing asserted).
+
+Targets: a pattern on a 1-degree grid for any kind under 50 ms; a 5-element Yagi at 41 frequencies
+under 1 s. Run: .venv/bin/python bench/bench_physics.py
+"""
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+from registry.physics.impedance import solve_wire_antenna
+from registry.physics.patterns import pattern_for_kind
+from registry.physics.wave import wavelength_m
+
+F = 300e6
+LAM = wavelength_m(F)
+CASES = {
+    "dipole": {"length_m": 0.48 * LAM, "diameter_m": 0.002},
+    "monopole": {"height_m": 0.24 * LAM, "diameter_m": 0.002},
+    "folded_dipole": {"length_m": 0.48 * LAM, "diameter_m": 0.002, "spacing_m": 0.02},
+    "small_loop": {"diameter_m": 0.02},
+    "yagi": {"element_lengths_m": tuple(v * LAM for v in (0.488, 0.466, 0.436, 0.430, 0.426)),
+             "element_positions_m": tuple(v * LAM for v in (0.0, 0.2, 0.4, 0.65, 0.95)), "diameter_m": 0.004},
+    "linear_array": {"n_elements": 16, "spacing_m": 0.5 * LAM, "taper": "chebyshev", "sidelobe_db": 30.0},
+    "slotted_array": {"nx": 24, "ny": 24, "spacing_x_m": 0.7 * LAM, "spacing_y_m": 0.7 * LAM, "taper": "cosine"},
+    "parabolic": {"diameter_m": 24 * LAM, "edge_taper_db": 12.0, "taper_exponent": 2},
+    "patch": {"length_m": 0.3 * LAM, "width_m": 0.4 * LAM, "substrate_height_m": 0.01 * LAM, "eps_r": 2.2},
+}
+
+
+def best_of(fn, repeats=5):
+    times = []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t)
+    return min(times)
+
+
+def main():
+    print(f"{'case':40s} {'best of 5':>10s}")
+    for kind, geometry in CASES.items():
+        dt = best_of(lambda: pattern_for_kind(kind, geometry, F, step_deg=1.0))
+        print(f"{'pattern 1 deg grid: ' + kind:40s} {dt * 1e3:8.1f} ms")
+    freqs = np.linspace(0.95 * F, 1.05 * F, 41)
+    dt = best_of(lambda: solve_wire_antenna("yagi", CASES["yagi"], freqs), repeats=3)
+    print(f"{'5-element Yagi, 41 frequencies':40s} {dt * 1e3:8.1f} ms")
+    dt = best_of(lambda: solve_wire_antenna("dipole", CASES["dipole"], freqs), repeats=3)
+    print(f"{'dipole, 41 frequencies':40s} {dt * 1e3:8.1f} ms")
+
+
+if __name__ == "__main__":
+    main()

@@ -11,8 +11,8 @@ from pathlib import Path
 from typing import Iterable
 
 from registry.errors import Problem
-from registry.model import (RULES, Aircraft, Airframe, AntennaModel, Cable, Installation, Policy, Review,
-                            Service, Sourced)
+from registry.model import (RULES, Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
+                            Review, Service, Sourced)
 from registry.schemacheck import suggest
 
 
@@ -24,7 +24,6 @@ class Catalogue:
     antennas: set[str] | None
     cables: set[str] | None
     services: set[str] | None
-    aircraft: dict[str, set[str]] | None
 
 
 def problem(obj: Sourced, field: str, found: str, expected: str) -> Problem:
@@ -172,7 +171,12 @@ def check_installation(item: Installation, known: Catalogue, data_dir: Path) -> 
     return problems
 
 
-def check_reviews(reviews: list[Review], known: Catalogue) -> list[Problem]:
+def check_reviews(reviews: list[Review]) -> list[Problem]:
+    """Reviews that could never match a discrepancy: an unknown rule, a pair not in sorted order.
+
+    A review naming an aircraft or position that no longer exists is left to the check stage, which
+    reports it as stale rather than refusing the registry.
+    """
     problems = duplicates(reviews, "discrepancy", "discrepancy id")
     for review in reviews:
         if review.rule not in RULES:
@@ -182,17 +186,18 @@ def check_reviews(reviews: list[Review], known: Catalogue) -> list[Problem]:
         if len(positions) == 2 and not positions[0] < positions[1]:
             problems.append(problem(review, "discrepancy", f"the positions '{'+'.join(positions)}'",
                                     f"two different positions in sorted order ('{'+'.join(sorted(positions))}')"))
-        if known.aircraft is None:
-            continue
-        if review.aircraft_id not in known.aircraft:
-            problems.append(problem(review, "discrepancy", f"the aircraft '{review.aircraft_id}'",
-                                    f"an aircraft id from aircraft/{suggest(review.aircraft_id, known.aircraft)}"))
-            continue
-        installed = known.aircraft[review.aircraft_id]
-        for position in positions:
-            if position not in installed:
-                problems.append(problem(review, "discrepancy", f"the position '{position}'",
-                                        f"a position of {review.aircraft_id}{suggest(position, installed)}"))
+    return problems
+
+
+def duplicate_pairs(rules: list[IsolationRule]) -> list[Problem]:
+    """Isolation rules in one file naming the same pair of services (in either order) twice."""
+    first: dict[tuple[str, ...], IsolationRule] = {}
+    problems = []
+    for rule in rules:
+        earlier = first.setdefault(tuple(sorted(rule.services)), rule)
+        if earlier is not rule:
+            problems.append(problem(rule, "services", f"the pair {' + '.join(rule.services)} again "
+                                                      f"(first on line {earlier.src.line})", "each pair once"))
     return problems
 
 

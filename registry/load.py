@@ -115,15 +115,13 @@ class _Run:
             antennas=None if antennas is None else {item.id for item in antennas},
             cables=None if cables is None else {item.id for item in cables},
             services=None if services is None else {item.id for item in services},
-            aircraft=None if None in aircraft_docs else {
-                name: set(item.installations) for item in aircraft for name in _names(item)},
         )
         self.problems += integrity.check_airframes(airframes)
         self.problems += integrity.check_antennas(antennas or [])
         self.problems += integrity.check_cables(cables or [])
         self.problems += integrity.check_services(services or [])
         self.problems += integrity.check_aircraft(aircraft, catalogue, self.data_dir)
-        self.problems += integrity.check_reviews(reviews, catalogue)
+        self.problems += integrity.check_reviews(reviews)
         if policy is not None:
             self.problems += integrity.check_policy(policy, catalogue)
         if self.problems:
@@ -192,10 +190,11 @@ class _Run:
             return None
         rules: dict[tuple[str, ...], IsolationRule] = {}
         for doc in reversed(layers):
-            for n, item in enumerate(doc.data.get("min_isolation_db", [])):
-                rule = IsolationRule(**doc.at("min_isolation_db", n), services=tuple(item["services"]),
-                                     isolation_db=float(item["isolation_db"]))
-                rules[tuple(sorted(rule.services))] = rule
+            layer = [IsolationRule(**doc.at("min_isolation_db", n), services=tuple(item["services"]),
+                                   isolation_db=float(item["isolation_db"]))
+                     for n, item in enumerate(doc.data.get("min_isolation_db", []))]
+            self.problems += integrity.duplicate_pairs(layer)
+            rules.update((tuple(sorted(rule.services)), rule) for rule in layer)
         top = layers[0]
         return Policy(
             src=top.srcs[()],
@@ -231,7 +230,7 @@ class _LayeredLocator(Locator):
         return self.fallback
 
 
-def _names(item: Airframe | Aircraft) -> set[str]:
+def _names(item: Airframe) -> set[str]:
     return {item.id, Path(item.src.path).stem}
 
 

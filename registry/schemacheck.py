@@ -41,7 +41,7 @@ _EXPONENT_WITHOUT_DOT = re.compile(r"[-+]?\d+[eE][-+]?\d+")
 @functools.cache
 def validator(kind: str) -> Draft202012Validator:
     """The validator for one file kind: fleet, airframe, antennas, cables, services, policy, aircraft, reviews."""
-    text = resources.files("registry").joinpath("schemas", f"{kind}.schema.json").read_text(encoding="utf-8")
+    text = (resources.files("registry") / "schemas" / f"{kind}.schema.json").read_text(encoding="utf-8")
     return Draft202012Validator(json.loads(text), format_checker=Draft202012Validator.FORMAT_CHECKER)
 
 

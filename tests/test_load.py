@@ -158,6 +158,17 @@ def test_optional_files_may_be_left_out(tmp_path):
     assert "ops_data" not in fleet.services and fleet.services["dme"].shipped
 
 
+def test_review_of_a_removed_position_still_loads(tmp_path):
+    # the check stage reports such a review as stale; the loader refuses only reviews that can never match
+    data = tmp_path / "registry"
+    shutil.copytree(GOOD, data)
+    reviews = data / "reviews.yaml"
+    reviews.write_text(reviews.read_text(encoding="utf-8").replace("qx-fca/VHF1/feeder-loss", "qx-fca/VHF9/feeder-loss"),
+                       encoding="utf-8")
+    fleet = load_fleet(data, FIXTURES / "shipped")
+    assert fleet.reviews["qx-fca/VHF9/feeder-loss"].positions == ("VHF9",)
+
+
 def test_problem_prints_gcc_style():
     problem = Problem("fleet_data/aircraft/qx-fca.yaml", 14, 17, "installations[2].feeder.length_m",
                       "-3.5", "a positive number of metres")

@@ -42,6 +42,9 @@ EXPECTED = {
     "duplicate_id": [
         "cables.yaml:20:5: error: cables[2].id: found 'FXC-400' again (first on line 3), expected each cable id once, ignoring upper and lower case",
     ],
+    "duplicate_isolation_pair": [
+        "policy.yaml:7:5: error: min_isolation_db[1].services: found the pair dme + dme again (first on line 5), expected each pair once",
+    ],
     "duplicate_key": [
         "aircraft/qx-fcb.yaml:14:7: error: installations[0].feeder.length_m: found a second 'length_m' key (the first is on line 13), expected each key once",
     ],

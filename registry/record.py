@@ -1,0 +1,199 @@
+"""The build record: one JSON document holding the registry, every computed figure and every discrepancy.
+
+Every build writes it into the site as `record.json`; `build.py diff` compares two of them. The format is
+described in docs/build-record.md and by the JSON Schema in registry/schemas/record.schema.json.
+
+Deterministic by construction: keys are sorted, nothing depends on the clock except the as-of date the
+registry speaks for, paths are relative to the data folder, registry numbers keep 10 significant digits
+(which leaves any number typed into YAML unchanged) and computed figures keep 6. The same registry and
+the same as-of date give the same bytes.
+"""
+from __future__ import annotations
+
+import dataclasses
+import json
+import math
+from datetime import date
+from pathlib import Path
+from typing import Any, Mapping
+
+from registry import __version__
+from registry.results import Figure
+
+FORMAT_VERSION = 1
+RECORD_NAME = "record.json"
+SCHEMA_PATH = Path(__file__).parent / "schemas" / "record.schema.json"
+REGISTRY_DIGITS = 10
+FIGURE_DIGITS = 6
+SKIPPED_FIELDS = ("src", "locator")
+"""Model fields left out of the record: where a value sits in a file is not part of what it is."""
+
+
+class RecordError(Exception):
+    """A record cannot be read or made: not JSON, wrong format version, not valid against the schema,
+    or a git revision that cannot be exported. The command line reports it as a data or usage error."""
+
+
+def round_sig(value: float, digits: int) -> float | str:
+    """`value` to `digits` significant digits; infinities and NaN become the strings "inf", "-inf", "nan"."""
+    value = float(value)
+    if not math.isfinite(value):
+        return "nan" if math.isnan(value) else ("inf" if value > 0 else "-inf")
+    if value == 0:
+        return 0.0
+    return float(f"{value:.{digits}g}")
+
+
+def plain(value: Any, data_dir: Path, digits: int = REGISTRY_DIGITS) -> Any:
+    """A model value as JSON data: dataclasses and mappings become objects, tuples lists, dates ISO text,
+    paths text relative to the data folder, floats rounded to `digits` significant digits."""
+    if dataclasses.is_dataclass(value) and not isinstance(value, type):
+        return {item.name: plain(getattr(value, item.name), data_dir, digits)
+                for item in dataclasses.fields(value) if item.name not in SKIPPED_FIELDS}
+    if isinstance(value, Mapping):
+        return {str(key): plain(item, data_dir, digits) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [plain(item, data_dir, digits) for item in value]
+    if isinstance(value, bool) or value is None or isinstance(value, str):
+        return value
+    if isinstance(value, int):
+        return int(value)
+    if isinstance(value, float):
+        return round_sig(value, digits)
+    if isinstance(value, date):
+        return value.isoformat()
+    if isinstance(value, Path):
+        return relative_path(value, data_dir)
+    if hasattr(value, "item"):  # a numpy scalar
+        return plain(value.item(), data_dir, digits)
+    raise TypeError(f"cannot record a value of type {type(value).__name__}")
+
+
+def relative_path(path: Path | str, data_dir: Path) -> str:
+    """`path` relative to the data folder, with forward slashes, whether it was given relative or absolute."""
+    path = Path(path)
+    for base, target in ((Path(data_dir), path), (Path(data_dir).resolve(), path.resolve())):
+        try:
+            return target.relative_to(base).as_posix()
+        except ValueError:
+            continue
+    return path.as_posix()
+
+
+def relative_src(text: str, data_dir: Path) -> str:
+    """A "file:line" with the file made relative to the data folder."""
+    if not text:
+        return ""
+    file, _, line = str(text).rpartition(":")
+    if not file or not line.isdigit():
+        return relative_path(text, data_dir)
+    return f"{relative_path(file, data_dir)}:{line}"
+
+
+def figures(items: tuple[Figure, ...] | list[Figure]) -> dict[str, dict[str, Any]]:
+    """Figures keyed by their key: label, unit and value (6 significant digits); the first of a key wins."""
+    out: dict[str, dict[str, Any]] = {}
+    for item in items:
+        if item.key and item.key not in out:
+            value = item.value
+            out[item.key] = {"label": item.label, "unit": item.unit,
+                             "value": round_sig(value, FIGURE_DIGITS) if isinstance(value, (int, float))
+                             and not isinstance(value, bool) else value}
+    return out
+
+
+def to_record(outcome) -> dict[str, Any]:
+    """The record of one pipeline run (`pipeline.Outcome`) as plain JSON data."""
+    fleet, results = outcome.fleet, outcome.results
+    data_dir = Path(fleet.data_dir)
+    aircraft = {}
+    for craft in fleet.aircraft.values():
+        entry = plain(craft, data_dir)
+        entry["modifications"] = sorted(entry["modifications"], key=lambda mod: (mod["date"], mod["ref"]))
+        aircraft[craft.id] = entry
+    installations = {}
+    for (aircraft_id, position), result in results.installations.items():
+        installations[f"{aircraft_id}/{position}"] = {
+            "aircraft": aircraft_id, "position": position, "pattern_key": result.pattern_key,
+            "figures": figures(result.figures)}
+    pairs = {}
+    for pair in results.pairs:
+        pairs[f"{pair.aircraft}/{pair.position_a}+{pair.position_b}"] = {
+            "aircraft": pair.aircraft, "positions": [pair.position_a, pair.position_b],
+            "near_field": bool(pair.near_field), "figures": figures(pair.figures)}
+    patterns = {key: {"antenna": pattern.antenna, "kind": pattern.kind,
+                      "freq_mhz": round_sig(pattern.freq_mhz, FIGURE_DIGITS), "metrics": figures(pattern.metrics)}
+                for key, pattern in results.patterns.items()}
+    cables = {cable_id: {"figures": figures(result.figures)} for cable_id, result in results.cables.items()}
+    discrepancies = {}
+    for item in outcome.discrepancies:
+        entry = plain(item, data_dir, FIGURE_DIGITS)
+        entry["source"] = relative_src(item.source, data_dir)
+        discrepancies[item.id] = entry
+    return {
+        "format_version": FORMAT_VERSION,
+        "generator": {"name": "aerialbook", "version": __version__},
+        "as_of": outcome.as_of.isoformat(),
+        "fleet": {"operator": fleet.operator, "title": fleet.title},
+        "registry": {
+            "aircraft": aircraft,
+            "airframes": {key: plain(value, data_dir) for key, value in fleet.airframes.items()},
+            "antennas": {key: plain(value, data_dir) for key, value in fleet.antennas.items()},
+            "cables": {key: plain(value, data_dir) for key, value in fleet.cables.items()},
+            "services": {key: plain(value, data_dir) for key, value in fleet.services.items()},
+            "policy": plain(fleet.policy, data_dir),
+        },
+        "figures": {"installations": installations, "pairs": pairs, "patterns": patterns, "cables": cables},
+        "discrepancies": discrepancies,
+        "stale_reviews": sorted(({"discrepancy": review.discrepancy, "state": review.state}
+                                 for review in outcome.stale_reviews), key=lambda entry: entry["discrepancy"]),
+    }
+
+
+def dumps(record: Mapping[str, Any]) -> str:
+    """The record as JSON text: sorted keys, two-space indent, UTF-8 characters kept, a final newline."""
+    return json.dumps(record, sort_keys=True, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def write(record: Mapping[str, Any], path: Path) -> None:
+    Path(path).write_text(dumps(record), encoding="utf-8")
+
+
+def schema() -> dict[str, Any]:
+    return json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
+
+
+def validate(record: Any, where: str) -> dict[str, Any]:
+    """`record` if it is a record this version can read; RecordError naming `where` and the first problem."""
+    import jsonschema
+
+    if not isinstance(record, dict):
+        raise RecordError(f"{where}: found {type(record).__name__}, expected a JSON object (a build record)")
+    version = record.get("format_version")
+    if version != FORMAT_VERSION:
+        raise RecordError(f"{where}: format_version: found {version!r}, expected {FORMAT_VERSION} "
+                          f"(this aerialbook reads build records of format version {FORMAT_VERSION})")
+    validator = jsonschema.Draft202012Validator(schema())
+    problems = sorted(validator.iter_errors(record), key=lambda error: list(map(str, error.absolute_path)))
+    if problems:
+        first = problems[0]
+        field = ".".join(str(part) for part in first.absolute_path) or "(record)"
+        more = f" (and {len(problems) - 1} more)" if len(problems) > 1 else ""
+        raise RecordError(f"{where}: {field}: {first.message}{more}")
+    return record
+
+
+def read(path: Path) -> dict[str, Any]:
+    """A record file, checked against the schema; RecordError if it cannot be used."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise RecordError(f"{path}: no such file") from None
+    except (OSError, UnicodeDecodeError) as error:
+        raise RecordError(f"{path}: cannot be read ({error})") from None
+    try:
+        data = json.loads(text)
+    except json.JSONDecodeError as error:
+        raise RecordError(f"{path}:{error.lineno}:{error.colno}: not JSON ({error.msg})") from None
+    return validate(data, str(path))

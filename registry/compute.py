@@ -43,7 +43,7 @@ def compute_fleet(fleet: Fleet, as_of: date) -> FleetResults:
         figures: list[Figure] = []
         figures += length_figures(installation, model, service)
         figures += band_figures(installation, model, service)
-        modelled = modelled_vswr(model, service, cable, fleet.policy)
+        modelled = ([], None) if installation.coupler else modelled_vswr(model, service, cable, fleet.policy)
         figures += modelled[0]
         measured, measured_curve = measured_figures(installation, service, cable, fleet.policy, as_of)
         figures += measured
@@ -169,11 +169,13 @@ def band_figures(installation: Installation, model: AntennaModel, service: Servi
 
 
 def sweep_freqs_mhz(service: Service, points: int = 41) -> np.ndarray:
-    """Frequencies (MHz) spanning every service band with a 10 % margin each side."""
+    """Frequencies (MHz) spanning every service band with a 10 % margin each side, plus each band's edges
+    and centre so that even a narrow band has points inside it."""
     low = min(low for low, _ in service.bands_mhz)
     high = max(high for _, high in service.bands_mhz)
     margin = 0.1 * (high - low) + 0.01 * low
-    return np.linspace(low - margin, high + margin, points)
+    edges = [value for low_b, high_b in service.bands_mhz for value in (low_b, (low_b + high_b) / 2, high_b)]
+    return np.unique(np.round(np.concatenate([np.linspace(low - margin, high + margin, points), edges]), 6))
 
 
 def in_bands(freqs_mhz: np.ndarray, bands) -> np.ndarray:

@@ -73,7 +73,8 @@ def summary(fleet: Fleet) -> str:
 def build(data_dir: Path, out_dir: Path) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`."""
     outcome = run(data_dir)
-    pages = render.render_site(outcome.fleet)
+    pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
+                               render.build_info(data_dir))
     with publish.staging_dir(out_dir) as stage:
         for rel_path, content in pages.items():
             target = stage / rel_path

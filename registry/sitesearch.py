@@ -1,0 +1,71 @@
+"""The site's search index: one entry per aircraft, installation, antenna model, cable and service.
+
+The index is written as a JavaScript file that assigns a global (`window.AERIALBOOK_SEARCH`), loaded with
+a plain <script> tag, so search works from file:// where a browser refuses to fetch JSON.
+Entries are sorted and serialised with sorted keys so the file is byte-identical between builds.
+"""
+from __future__ import annotations
+
+import json
+from typing import Callable
+
+from registry.model import Fleet
+
+Paths = dict[str, Callable[..., str]]
+
+
+def entry(kind: str, title: str, url: str, keys: list[str], text: list[str]) -> dict[str, str]:
+    """`keys` are exact identifiers (position ids, part numbers) that rank first; `text` is free text."""
+    return {
+        "kind": kind,
+        "title": title,
+        "url": url,
+        "keys": " ".join(sorted({key.lower() for key in keys if key})),
+        "text": " · ".join(part for part in text if part),
+    }
+
+
+def build_entries(fleet: Fleet, plain_text: Callable[[str], str],
+                  paths: Paths) -> list[dict[str, str]]:
+    """Every searchable thing in the fleet, sorted by kind then title."""
+    entries = []
+    for aircraft in fleet.aircraft.values():
+        airframe = fleet.airframes.get(aircraft.airframe)
+        entries.append(entry(
+            "aircraft", aircraft.registration, paths["aircraft"](aircraft.id),
+            [aircraft.id, aircraft.registration, aircraft.airframe, aircraft.serial or ""],
+            [airframe.name if airframe else aircraft.airframe,
+             f"serial {aircraft.serial}" if aircraft.serial else "",
+             f"{len(aircraft.installations)} installations",
+             *(f"{mod.ref}: {mod.summary}" for mod in aircraft.modifications)]))
+        for installation in aircraft.installations.values():
+            service = fleet.services.get(installation.service)
+            model = fleet.antennas.get(installation.antenna)
+            entries.append(entry(
+                "installation", f"{aircraft.registration} {installation.position}",
+                paths["installation"](aircraft.id, installation.position),
+                [installation.position, aircraft.registration, aircraft.id, installation.antenna,
+                 installation.feeder.cable, installation.service],
+                [service.name if service else installation.service,
+                 f"{installation.antenna} {model.description if model else ''}".strip(),
+                 f"{installation.surface.replace('_', ' ')} surface",
+                 f"feeder {installation.feeder.cable}",
+                 plain_text(installation.notes)]))
+    for model in fleet.antennas.values():
+        entries.append(entry("antenna model", model.id, paths["antenna"](model.id), [model.id],
+                             [model.description, model.kind.replace("_", " "), f"{model.polarisation} polarisation"]))
+    for cable in fleet.cables.values():
+        entries.append(entry("cable", cable.id, paths["cable"](cable.id), [cable.id],
+                             [cable.designation, f"{cable.impedance_ohm:g} ohm"]))
+    for service in fleet.services.values():
+        entries.append(entry("service", service.name, paths["service"](service.id), [service.id],
+                             [service.group, service.coverage.replace("_", " "), service.source]))
+    return sorted(entries, key=lambda e: (e["kind"], e["title"], e["url"]))
+
+
+def index_script(entries: list[dict[str, str]]) -> str:
+    """The index as a script that sets `window.AERIALBOOK_SEARCH`."""
+    payload = json.dumps(entries, ensure_ascii=False, sort_keys=True, separators=(",", ":"))
+    # keep "</script" and line separators harmless whatever the data holds
+    payload = payload.replace("</", "<\\/").replace("\u2028", "\\u2028").replace("\u2029", "\\u2029")
+    return f"window.AERIALBOOK_SEARCH = {payload};\n"

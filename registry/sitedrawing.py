@@ -9,6 +9,7 @@ from the few dimensions the registry holds; antenna positions are exact.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 
 from registry.model import Airframe
@@ -52,12 +53,14 @@ class Marker:
 @dataclass(frozen=True)
 class PlacedMarker:
     marker: Marker
+    ident: str
     x: str
     y: str
     shape: str
     far_side: bool
     label_x: str
     label_y: str
+    leader: str
     tip_x: str
     tip_y: str
     tip_w: str
@@ -111,6 +114,23 @@ def _shape(kind: str, x: float, y: float, r: float) -> str:
     return f"M{n(x - s)},{n(y - s)} H{n(x + s)} V{n(y + s)} H{n(x - s)} Z"
 
 
+def label_levels(items: list[tuple[str, float, float]], char_w: float, pad: float) -> dict[str, int]:
+    """Stack labels (key, x, text length) into levels so no two labels on one level overlap."""
+    ends: list[float] = []
+    levels = {}
+    for key, x, chars in sorted(items, key=lambda item: (item[1], item[0])):
+        half = chars * char_w / 2 + pad
+        for level, end in enumerate(ends):
+            if x - half > end:
+                ends[level] = x + half
+                levels[key] = level
+                break
+        else:
+            ends.append(x + half)
+            levels[key] = len(ends) - 1
+    return levels
+
+
 def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> Drawing:
     """Plan and side view of `airframe` with `markers`; `ident` makes the clip-path ids unique."""
     fus = airframe.fuselage
@@ -119,8 +139,8 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> D
     nose = min(NOSE_FRACTION * length, 1.4 * fus.width)
     tail = TAIL_FRACTION * length
     unit = airframe.coord_unit
-    font = length * 0.027
-    radius = length * 0.012
+    font = length * 0.025
+    radius = length * 0.0095
     margin = length * 0.06
     gap = length * 0.08
 
@@ -181,9 +201,63 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> D
     side_top_y = -side_top - margin * 0.6
     side_bottom_y = -bottom + margin * 0.6
 
+    # ---- labels: stacked above or below the outline, joined to their marker by a leader ----
+    small = font * 0.85
+    line_h = small * 1.35
+    char_w = small * 0.62
+
+    def layout_labels(view: str) -> tuple[dict[str, tuple[float, float, str]], float, float]:
+        """Per position: (label x, label baseline y, leader path); and the extent the labels reach."""
+        groups: dict[bool, list[tuple[Marker, float, float]]] = {True: [], False: []}
+        for m in markers:
+            if view == "plan":
+                x, y = m.sta, -m.bl
+                above = m.surface != "bottom"
+                edge_above, edge_below = -half_w, half_w
+            else:
+                x, y = m.sta, -m.wl
+                above = m.wl >= fus.centreline_wl
+                edge_above, edge_below = -top, -bottom
+            groups[above].append((m, x, y))
+        placed: dict[str, tuple[float, float, str]] = {}
+        reach_top, reach_bottom = 0.0, 0.0
+        for above, group in groups.items():
+            levels = label_levels([(m.position, x, len(m.position)) for m, x, _ in group], char_w, small * 0.3)
+            for m, x, y in group:
+                level = levels[m.position]
+                if above:
+                    base = min(y, edge_above) - radius * 2.2 - small * 0.3
+                    label_y = base - level * line_h
+                    leader = f"M{n(x)},{n(y - radius * 1.3)} V{n(label_y + small * 0.25)}"
+                    reach_top = min(reach_top, label_y - small)
+                else:
+                    base = max(y, edge_below) + radius * 2.2 + small
+                    label_y = base + level * line_h
+                    leader = f"M{n(x)},{n(y + radius * 1.3)} V{n(label_y - small * 0.95)}"
+                    reach_bottom = max(reach_bottom, label_y + small * 0.3)
+                placed[m.position] = (x, label_y, leader)
+        return placed, reach_top, reach_bottom
+
+    plan_labels, plan_reach_top, plan_reach_bottom = layout_labels("plan")
+    side_labels, side_reach_top, side_reach_bottom = layout_labels("side")
+    plan_top = min(plan_top, plan_reach_top - font * 0.4)
+    plan_bottom = max(plan_bottom, plan_reach_bottom + font * 0.4)
+    side_top_y = min(side_top_y, side_reach_top - font * 0.4)
+    side_bottom_y = max(side_bottom_y, side_reach_bottom + font * 0.4)
+
     # ---- layout: plan view on the left, side view on the right, both with an STA scale ----
+    fin_end = x1
+    if airframe.fin:
+        f = airframe.fin
+        fin_end = max(f.root_le_sta + f.root_chord,
+                      f.root_le_sta + f.height * math.tan(math.radians(f.sweep_deg)) + f.root_chord * FIN_TIP_RATIO)
+    wing_end = x1
+    if airframe.wing:
+        w = airframe.wing
+        wing_end = max(w.root_le_sta + w.root_chord, w.root_le_sta + w.span / 2 * math.tan(math.radians(w.sweep_deg))
+                       + w.root_chord * TIP_CHORD_RATIO)
     left = min(x0, min((m.sta for m in markers), default=x0)) - margin
-    right = max(x1, max((m.sta for m in markers), default=x1)) + margin
+    right = max(x1, fin_end, wing_end, max((m.sta for m in markers), default=x1)) + margin
     view_width = right - left
     title_space = font * 2.2
     scale_space = font * 3.8
@@ -211,6 +285,7 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> D
         return tuple(paths)
 
     def place(view: str, top_limit: float) -> tuple[PlacedMarker, ...]:
+        labels = plan_labels if view == "plan" else side_labels
         placed = []
         for m in sorted(markers, key=lambda m: (m.sta, m.position)):
             if view == "plan":
@@ -219,9 +294,10 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> D
             else:
                 x, y = m.sta, -m.wl
                 far = m.surface in ("side_right", "wing_right")
+            label_x, label_y, leader = labels[m.position]
             lines = m.tip_lines
-            tip_font = font * 0.85
-            tip_w = max(len(line) for line in lines) * tip_font * 0.58 + tip_font * 1.2
+            tip_font = small
+            tip_w = max(len(line) for line in lines) * tip_font * 0.6 + tip_font * 1.2
             tip_h = len(lines) * tip_font * 1.3 + tip_font * 0.6
             tip_x = min(max(x - tip_w / 2, left), right - tip_w)
             tip_y = y - radius * 2.4 - tip_h
@@ -231,8 +307,8 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> D
                 (n(tip_x + tip_font * 0.6), n(tip_y + tip_font * (1.25 + 1.3 * i)), line)
                 for i, line in enumerate(lines))
             placed.append(PlacedMarker(
-                marker=m, x=n(x), y=n(y), shape=_shape(m.status, x, y, radius), far_side=far,
-                label_x=n(x + radius * 1.5), label_y=n(y - radius * 1.3),
+                marker=m, ident=f"{view}-{ident}-{re.sub(r'[^A-Za-z0-9_-]', '_', m.position)}", x=n(x), y=n(y), shape=_shape(m.status, x, y, radius), far_side=far,
+                label_x=n(label_x), label_y=n(label_y), leader=leader,
                 tip_x=n(tip_x), tip_y=n(tip_y), tip_w=n(tip_w), tip_h=n(tip_h), tip_lines=text_lines))
         return tuple(placed)
 
@@ -292,6 +368,8 @@ class ChartRow:
     kind: str          # "service" or "antenna"
     covers: bool
     bars: tuple[Bar, ...]
+    note_x: str
+    note: str
 
 
 @dataclass(frozen=True)
@@ -318,25 +396,33 @@ def band_chart(groups: list[tuple[str, str, str, tuple[tuple[float, float], ...]
 
     `groups` holds (service label, sub-label, href, bands, [(model label, sub-label, href, bands, covers)]).
     """
-    label_width = 260.0
-    plot_width = 720.0
+    label_width = 250.0
+    plot_width = 640.0
     lo, hi = math.log10(CHART_MIN_MHZ), math.log10(CHART_MAX_MHZ)
 
     def fx(mhz: float) -> float:
         mhz = min(max(mhz, CHART_MIN_MHZ), CHART_MAX_MHZ)
         return label_width + (math.log10(mhz) - lo) / (hi - lo) * plot_width
 
+    def note_at(bands) -> float:
+        return max(fx(b) for _, b in bands) + 8.0 if bands else label_width
+
+    def bands_note(bands) -> str:
+        return ", ".join(f"{_freq_label(a)}–{_freq_label(b)}" for a, b in bands)
+
     rows = []
     backgrounds = []
     y = 28.0
     for index, (label, sub, href, bands, antennas) in enumerate(groups):
         start = y
-        bars = tuple(Bar(n(fx(a)), n(max(fx(b) - fx(a), 2.5)), f"{a:g}–{b:g} MHz") for a, b in bands)
-        rows.append(ChartRow(n(y), "16", label, sub, href, "service", True, bars))
+        bars = tuple(Bar(n(fx(a)), n(max(fx(b) - fx(a), 4.0)), f"{a:g}–{b:g} MHz") for a, b in bands)
+        rows.append(ChartRow(n(y), "16", label, sub, href, "service", True, bars, n(note_at(bands)),
+                             bands_note(bands)))
         y += 22.0
         for a_label, a_sub, a_href, a_bands, covers in antennas:
-            a_bars = tuple(Bar(n(fx(a)), n(max(fx(b) - fx(a), 2.5)), f"{a:g}–{b:g} MHz") for a, b in a_bands)
-            rows.append(ChartRow(n(y), "10", a_label, a_sub, a_href, "antenna", covers, a_bars))
+            a_bars = tuple(Bar(n(fx(a)), n(max(fx(b) - fx(a), 4.0)), f"{a:g}–{b:g} MHz") for a, b in a_bands)
+            rows.append(ChartRow(n(y), "10", a_label, a_sub, a_href, "antenna", covers, a_bars,
+                                 n(note_at(a_bands)), "rated " + bands_note(a_bands)))
             y += 17.0
         y += 8.0
         if index % 2 == 0:
@@ -346,5 +432,5 @@ def band_chart(groups: list[tuple[str, str, str, tuple[tuple[float, float], ...]
     while value <= CHART_MAX_MHZ * 1.0001:
         decades.append((n(fx(value)), _freq_label(value)))
         value *= 10
-    return BandChart(width=n(label_width + plot_width + 30.0), height=n(y + 10.0), label_width=n(label_width),
+    return BandChart(width=n(label_width + plot_width + 200.0), height=n(y + 10.0), label_width=n(label_width),
                      decades=tuple(decades), rows=tuple(rows), row_backgrounds=tuple(backgrounds))

@@ -97,7 +97,7 @@
         if (visible) {
           shown += 1;
           var sev = row.getAttribute("data-severity");
-          var state = row.getAttribute("data-state");
+          var state = (row.getAttribute("data-state") || "").split(" ")[0];
           bySeverity[sev] = (bySeverity[sev] || 0) + 1;
           byState[state] = (byState[state] || 0) + 1;
         }

@@ -1,8 +1,8 @@
 """The command line: parse arguments, run a pipeline stage, decide the exit code.
 
 Exit codes are decided here and only here:
-  0  success
-  1  open discrepancies of the top severity (`check` only)
+  0  success (`diff`: the two builds are the same)
+  1  open discrepancies of the top severity (`check`); the two builds differ (`diff`)
   2  data errors or usage errors
   3  an internal error (a bug: please report it with the output of --debug)
 Library code never calls sys.exit and never prints; it raises DataError or PublishError.
@@ -19,6 +19,7 @@ from registry.results import SEVERITIES
 
 EXIT_OK = 0
 EXIT_OPEN = 1
+EXIT_DIFFERENT = 1
 EXIT_DATA = 2
 EXIT_INTERNAL = 3
 
@@ -51,6 +52,28 @@ def make_parser() -> argparse.ArgumentParser:
                        help="registry folder (default: fleet_data)")
     build.add_argument("-o", "--out", default="site", metavar="OUT",
                        help="site folder, replaced whole on success (default: site)")
+    build.add_argument("--compare", metavar="OLD",
+                       help="add a page of what changed since OLD: a built site, a record file, a registry "
+                            "folder, or git:REV (DATA_DIR at git revision REV)")
+
+    diff = commands.add_parser(
+        "diff", help="show what changed between two builds of the registry",
+        description="Compare OLD with NEW. Each is a built site (its record.json), a record file, a registry "
+                    "folder, or git:REV (the registry folder at git revision REV). Exit 0 when they are the "
+                    "same, 1 when they differ, 2 on data or usage errors.")
+    diff.add_argument("sides", nargs="*", metavar="OLD [NEW]",
+                      help="NEW defaults to fleet_data; with --git only NEW may be given")
+    diff.add_argument("--git", metavar="REV", help="OLD is the registry folder at git revision REV (same as git:REV)")
+    diff.add_argument("--data", metavar="DATA_DIR",
+                      help="registry folder whose history git:REV reads (default: NEW when it is a registry "
+                           "folder, else fleet_data)")
+    diff.add_argument("--format", choices=("text", "json"), default="text", help="output format (default: text)")
+    diff.add_argument("--rel-tol", type=float, default=1e-3, metavar="FRACTION",
+                      help="a figure has moved when it differs by more than this fraction (default: 0.001)")
+    diff.add_argument("--abs-tol", type=float, default=1e-3, metavar="VALUE",
+                      help="...and by more than this, in its own unit (default: 0.001)")
+    diff.add_argument("--as-of", metavar="YYYY-MM-DD",
+                      help="compute registry folders and git revisions as of this date (default: NEW's as-of date)")
     return parser
 
 
@@ -69,12 +92,21 @@ def main(argv: list[str]) -> int:
 def run(args: argparse.Namespace) -> int:
     from registry import pipeline
 
+    if args.command == "diff":
+        return run_diff(args)
     data_dir = Path(args.data_dir)
     if args.command == "check":
         return run_check(args, pipeline.run(data_dir))
     if args.command == "build":
-        out_dir = pipeline.build(data_dir, Path(args.out))
+        baseline = None
+        if args.compare:
+            from registry import diff
+            baseline = diff.read_side(args.compare, run=pipeline.run, git_data_dir=data_dir,
+                                      as_of=pipeline.as_of_date(data_dir))
+        out_dir = pipeline.build(data_dir, Path(args.out), baseline=baseline)
         print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
+        if baseline is not None:
+            print(f"changes since {baseline.label}: open {out_dir / 'changes.html'}")
         return EXIT_OK
     raise AssertionError(f"unhandled command {args.command}")
 
@@ -102,9 +134,42 @@ def run_check(args: argparse.Namespace, outcome) -> int:
     return EXIT_OPEN if checks.gate_fails(found) else EXIT_OK
 
 
+def run_diff(args: argparse.Namespace) -> int:
+    from datetime import date
+
+    from registry import diff, pipeline
+
+    sides = list(args.sides)
+    if args.git:
+        sides.insert(0, diff.GIT_PREFIX + args.git)
+    if not 1 <= len(sides) <= 2:
+        print("error: diff: expected OLD [NEW], or --git REV [NEW]", file=sys.stderr)
+        return EXIT_DATA
+    if len(sides) == 1:
+        sides.append("fleet_data")
+    if args.rel_tol < 0 or args.abs_tol < 0:
+        print("error: diff: tolerances must not be negative", file=sys.stderr)
+        return EXIT_DATA
+    try:
+        as_of = date.fromisoformat(args.as_of) if args.as_of else None
+    except ValueError:
+        print(f"error: diff: --as-of: found {args.as_of!r}, expected a date YYYY-MM-DD", file=sys.stderr)
+        return EXIT_DATA
+    old_spec, new_spec = sides
+    git_dir = Path(args.data) if args.data else (
+        Path(new_spec) if Path(new_spec).joinpath("fleet.yaml").is_file() else Path("fleet_data"))
+    new = diff.read_side(new_spec, run=pipeline.run, git_data_dir=git_dir, as_of=as_of)
+    old = diff.read_side(old_spec, run=pipeline.run, git_data_dir=git_dir,
+                         as_of=as_of or date.fromisoformat(new.record["as_of"]))
+    comparison = diff.compare(old.record, new.record, diff.Tolerance(args.rel_tol, args.abs_tol), old.label, new.label)
+    sys.stdout.write(diff.as_json(comparison) if args.format == "json" else diff.as_text(comparison))
+    return EXIT_OK if comparison.same else EXIT_DIFFERENT
+
+
 def report_error(error: Exception, debug: bool) -> int:
     from registry.errors import DataError
     from registry.publish import PublishError
+    from registry.record import RecordError
 
     if debug:
         traceback.print_exception(error, file=sys.stderr)
@@ -113,7 +178,7 @@ def report_error(error: Exception, debug: bool) -> int:
             print(problem, file=sys.stderr)
         print(error.summary(), file=sys.stderr)
         return EXIT_DATA
-    if isinstance(error, PublishError):
+    if isinstance(error, (PublishError, RecordError)):
         print(f"error: {error}", file=sys.stderr)
         return EXIT_DATA
     if isinstance(error, OSError):

@@ -11,6 +11,7 @@ from datetime import date, datetime, timezone
 from pathlib import Path
 
 from registry import checks, compute, publish, render
+from registry import diff, record
 from registry.load import load_fleet
 from registry.model import Fleet, Review
 from registry.results import Discrepancy, FleetResults
@@ -50,10 +51,13 @@ def as_of_date(data_dir: Path) -> date:
     return datetime.now(tz=timezone.utc).date()
 
 
-def run(data_dir: Path) -> Outcome:
-    """Load, compute and check: every figure and every discrepancy of the registry."""
+def run(data_dir: Path, as_of: date | None = None) -> Outcome:
+    """Load, compute and check: every figure and every discrepancy of the registry.
+
+    `as_of` overrides the date measurement ages are counted to (`build.py diff` computes both sides
+    of a comparison as of one date)."""
     fleet = load(data_dir)
-    as_of = as_of_date(data_dir)
+    as_of = as_of or as_of_date(data_dir)
     results = compute.compute_fleet(fleet, as_of)
     found = checks.check_fleet(fleet, results)
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
@@ -70,11 +74,20 @@ def summary(fleet: Fleet) -> str:
     ])
 
 
-def build(data_dir: Path, out_dir: Path) -> Path:
-    """Load, compute, check and render the registry, then publish it atomically to `out_dir`."""
+def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None) -> Path:
+    """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
+
+    The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a comparison with it
+    (`changes.html`)."""
     outcome = run(data_dir)
+    built = record.to_record(outcome)
+    comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
+                  if baseline is not None else None)
     pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
                                render.build_info(data_dir))
+    pages[record.RECORD_NAME] = record.dumps(built)
+    if comparison is not None and "changes.html" not in pages:
+        pages["changes.html"] = changes_html(comparison, outcome.fleet, data_dir)
     with publish.staging_dir(out_dir) as stage:
         for rel_path, content in pages.items():
             target = stage / rel_path
@@ -84,3 +97,12 @@ def build(data_dir: Path, out_dir: Path) -> Path:
             else:
                 target.write_text(content, encoding="utf-8")
     return out_dir
+
+
+def changes_html(comparison: diff.Comparison, fleet: Fleet, data_dir: Path) -> str:
+    """The changes page, rendered here until render.render_site renders it with the other pages."""
+    context = diff.changes_page(comparison, aircraft_href=render.aircraft_path,
+                                installation_href=render.installation_path)
+    return render.environment().get_template("changes.html").render(
+        root="", nav="changes", page_title="Changes in this build", crumbs=[], build=render.build_info(data_dir),
+        site={"title": fleet.site_title, "operator": fleet.operator}, **context)

@@ -89,11 +89,11 @@ def length_figures(installation: Installation, model: AntennaModel, service: Ser
     image_ratio = (2.0 if element == "quarter_wave" else 1.0) * length_m / diameter_m
     wavelength_m = wave.wavelength_m(freq_hz)
     rule_m = wave.rule_of_thumb_length_m(freq_hz, element)
-    if image_ratio >= wave.MIN_LENGTH_TO_DIAMETER:
+    try:
         factor = wave.end_effect_factor(image_ratio)
         resonant_m = wave.resonant_length_m(freq_hz, diameter_m, element)
         reference = "end effect"
-    else:  # a fat element: the thin-wire fit does not apply, fall back on the trade's rule
+    except ValueError:  # a fat element: the thin-wire fit does not apply, fall back on the trade's rule
         factor = wave.RULE_OF_THUMB_FACTOR
         resonant_m = rule_m
         reference = "95 % rule (element too thick for the end-effect fit)"

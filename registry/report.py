@@ -58,7 +58,8 @@ def counts_line(found: list[Discrepancy]) -> str:
     by_state = Counter(item.review for item in found)
     severities = ", ".join(f"{by_severity[name]} {name}" for name in SEVERITIES)
     states = ", ".join(f"{by_state[name]} {name}" for name in STATES if by_state[name])
-    return f"{len(found)} discrepancies ({severities}); review: {states or 'none'}"
+    noun = "discrepancy" if len(found) == 1 else "discrepancies"
+    return f"{len(found)} {noun} ({severities}); review: {states or 'none'}"
 
 
 def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> str:
@@ -70,7 +71,10 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> 
         lines.append(f"{craft.registration} ({craft.id}, {craft.airframe}): {counts_line(mine)}")
         for item in mine:
             value = f"{item.value}{(' ' + item.unit) if item.unit else ''}"
-            lines.append(f"  [{item.severity}] {item.id}  ({item.review})")
+            review = item.review
+            if item.reviewer:
+                review += f" by {item.reviewer}" + (f", {item.review_reference}" if item.review_reference else "")
+            lines.append(f"  [{item.severity}] {item.id}  ({review})")
             lines.append(f"      {item.message}")
             lines.append(f"      value {value}, limit {item.limit}; {item.source}")
         lines.append("")

@@ -1,0 +1,30 @@
+"""Shared fixtures: the demo registry built once per test session."""
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+DEMO_DATA = Path(__file__).resolve().parent.parent / "fleet_data"
+
+
+@pytest.fixture(scope="session")
+def demo_data() -> Path:
+    return DEMO_DATA
+
+
+@pytest.fixture(scope="session")
+def demo_fleet():
+    from registry import pipeline
+
+    return pipeline.load(DEMO_DATA)
+
+
+@pytest.fixture(scope="session")
+def demo_site(tmp_path_factory) -> Path:
+    """The demo fleet's site, built once through the whole pipeline."""
+    from registry import pipeline
+
+    out = tmp_path_factory.mktemp("demo") / "site"
+    pipeline.build(DEMO_DATA, out)
+    return out

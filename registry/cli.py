@@ -10,6 +10,7 @@ Library code never calls sys.exit and never prints; it raises DataError or Publi
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import traceback
 from pathlib import Path
@@ -85,6 +86,9 @@ def main(argv: list[str]) -> int:
         return EXIT_OK if stop.code == 0 else EXIT_DATA
     try:
         return run(args)
+    except BrokenPipeError:  # the reader (head, less) went away: not an error of ours
+        sys.stdout = open(os.devnull, "w")
+        return EXIT_OK
     except Exception as error:  # noqa: BLE001 - the one place that turns errors into exit codes
         return report_error(error, debug=args.debug)
 
@@ -156,8 +160,8 @@ def run_diff(args: argparse.Namespace) -> int:
         print(f"error: diff: --as-of: found {args.as_of!r}, expected a date YYYY-MM-DD", file=sys.stderr)
         return EXIT_DATA
     old_spec, new_spec = sides
-    git_dir = Path(args.data) if args.data else (
-        Path(new_spec) if Path(new_spec).joinpath("fleet.yaml").is_file() else Path("fleet_data"))
+    kinds = [diff.side_kind(spec) for spec in sides]
+    git_dir = Path(args.data) if args.data else Path(new_spec) if kinds[1] == "registry" else Path("fleet_data")
     new = diff.read_side(new_spec, run=pipeline.run, git_data_dir=git_dir, as_of=as_of)
     old = diff.read_side(old_spec, run=pipeline.run, git_data_dir=git_dir,
                          as_of=as_of or date.fromisoformat(new.record["as_of"]))

@@ -651,18 +651,31 @@ def read_side(spec: str, *, run: Callable[..., Any], git_data_dir: Path | str = 
     `run(data_dir, as_of)` is the pipeline's `run`; registry folders are computed as of `as_of`
     (None: the pipeline's own choice). Raises RecordError when `spec` names nothing usable.
     """
-    if spec.startswith(GIT_PREFIX):
+    kind = side_kind(spec)
+    if kind == "git":
         return git_side(spec[len(GIT_PREFIX):], Path(git_data_dir), run, as_of)
+    path = Path(spec)
+    if kind == "site":
+        return Side(f"site {spec}", build_record.read(path / build_record.RECORD_NAME))
+    if kind == "registry":
+        return Side(f"registry {spec}", build_record.to_record(run(path, as_of)))
+    return Side(f"record {spec}", build_record.read(path))
+
+
+def side_kind(spec: str) -> str:
+    """`git`, `site`, `registry` or `record`: what `spec` names (RecordError when it names nothing usable)."""
+    if spec.startswith(GIT_PREFIX):
+        return "git"
     path = Path(spec)
     if path.is_dir():
         if (path / build_record.RECORD_NAME).is_file():
-            return Side(f"site {spec}", build_record.read(path / build_record.RECORD_NAME))
+            return "site"
         if (path / "fleet.yaml").is_file():
-            return Side(f"registry {spec}", build_record.to_record(run(path, as_of)))
+            return "registry"
         raise RecordError(f"{spec}: found a folder with neither {build_record.RECORD_NAME} nor fleet.yaml, "
                           "expected a built site, a registry folder, a record file or git:REV")
     if path.is_file():
-        return Side(f"record {spec}", build_record.read(path))
+        return "record"
     raise RecordError(f"{spec}: no such file or folder, expected a built site, a registry folder, "
                       "a record file or git:REV")
 
@@ -690,7 +703,8 @@ def git_side(rev: str, data_dir: Path, run: Callable[..., Any], as_of: date | No
         raise RecordError(f"git:{rev}: no such revision in the repository of {data_dir}")
     short = commit.stdout.decode().strip()
     subdir = prefix.stdout.decode().strip()
-    archive = git(data_dir, "archive", "--format=tar", f"{rev}:{subdir}")
+    top = git(data_dir, "rev-parse", "--show-toplevel").stdout.decode().strip()
+    archive = git(Path(top), "archive", "--format=tar", f"{rev}:{subdir}")  # from the top: a subfolder limits archive
     if archive.returncode != 0:
         message = archive.stderr.decode(errors="replace").strip().splitlines()
         raise RecordError(f"git:{rev}: {data_dir} cannot be exported at that revision "

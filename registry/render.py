@@ -61,7 +61,7 @@ FIGURE_GROUPS = {
     "cable": "Cable attenuation fit",
 }
 
-FEEDER_COMPONENT = re.compile(r"^feeder\.(?P<part>[a-z_]+)_loss_db$")
+FEEDER_COMPONENT = re.compile(r"^feeder\.(?P<part>(?!return_|total_)[a-z_]+)_loss_db$")
 FEEDER_TOTAL_KEY = "feeder.total_loss_db"
 
 NOTES_TAGS = {"p", "br", "strong", "em", "b", "i", "code", "pre", "ul", "ol", "li", "blockquote", "a",
@@ -473,8 +473,13 @@ class Site:
             if pair.aircraft != aircraft.id or installation.position not in (pair.position_a, pair.position_b):
                 continue
             other = pair.position_b if pair.position_a == installation.position else pair.position_a
-            pairs.append({"other": other, "href": installation_path(aircraft.id, other)
-                          if other in aircraft.installations else None,
+            other_install = aircraft.installations.get(other)
+            pairs.append({"other": other, "href": installation_path(aircraft.id, other) if other_install else None,
+                          "service": self.fleet.services[other_install.service].name
+                          if other_install and other_install.service in self.fleet.services else "",
+                          "distance": fmt_figure(pair.figure("pair.distance_m")),
+                          "isolation": fmt_figure(pair.figure("pair.isolation_db")),
+                          "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
                           "near_field": pair.near_field, "figures": [self.figure_view(f) for f in pair.figures]})
         items = self.by_position.get((aircraft.id, installation.position), [])
         zone = airframe.zone_at(installation.location.sta, installation.surface)
@@ -632,6 +637,10 @@ class Site:
 
 
 # ---- small pieces --------------------------------------------------------------------------------------
+
+
+def fmt_figure(figure: Figure | None) -> str:
+    return fmt(figure.value, figure.unit) if figure is not None else "—"
 
 
 def bands_text(bands: Iterable[tuple[float, float]]) -> str:

@@ -100,6 +100,7 @@ def small_results() -> FleetResults:
         Figure("feeder.cable_loss_db", "Cable loss", 1.9, "dB", "α(f) · ℓ / 100"),
         Figure("feeder.connector_loss_db", "Connector loss", 0.3, "dB", "n · L_c"),
         Figure("feeder.mismatch_loss_db", "Mismatch loss", 0.12, "dB", "−10·log₁₀(1 − |Γ|²)"),
+        Figure("feeder.return_loss_db", "Return loss at the antenna", 17.7, "dB", "−20·log₁₀|Γ|"),
         Figure("feeder.total_loss_db", "Total feeder loss", 2.32, "dB", "sum", (("budget", "3 dB"),)),
     )
     results = FleetResults()
@@ -109,7 +110,10 @@ def small_results() -> FleetResults:
             vswr_modelled=Curve(freq, 1 + 0.002 * (freq - 127) ** 2, "frequency (MHz)", "VSWR"),
             service_bands_mhz=((117.975, 137.0),), vswr_limit=2.0)
     results.patterns[pattern.key] = pattern
-    results.pairs.append(PairResult("qx-tqa", "VHF1", "VHF2", (Figure("isolation.db", "Isolation", 31.0, "dB"),), True))
+    results.pairs.append(PairResult("qx-tqa", "VHF1", "VHF2", (
+        Figure("pair.distance_m", "Distance between the antennas", 2.4, "m"),
+        Figure("pair.isolation_db", "Isolation", 31.0, "dB", "I = 20·log₁₀(4πd/λ) − G_A − G_B"),
+        Figure("pair.min_isolation_db", "Policy minimum", 40.0, "dB")), True))
     table = Curve(np.array([100.0, 1000.0]), np.array([15.0, 50.0]), "frequency (MHz)", "attenuation (dB/100 m)")
     results.cables["QX-C400"] = CableResult("QX-C400", table, table, (Figure("cable.a", "Conductor term a", 1.4, "dB"),))
     return results
@@ -183,10 +187,14 @@ def test_installation_page_shows_figures_breakdown_and_pair():
     html = text(site(), "aircraft/qx-tqa/VHF1.html")
     assert "λ = c / f" in html and "SI definition of c" in html
     assert "aircraft/qx-tqa.yaml:12" in html and "/data/fleet" not in html
-    assert "Total feeder loss" not in html.split('class="loss-bar"')[1].split("</div>")[0]
+    bar = html.split('class="loss-bar"')[1].split("</div>")[0]
+    assert "Total feeder loss" not in bar and "Return loss" not in bar  # parts only: return loss is no loss
+    assert bar.count("<span") == 3
     assert "Feeder loss: 2.32 dB" in html and "budget 3 dB" in html
     assert 'href="../../aircraft/qx-tqa/VHF2.html">VHF2</a>' in html and "Near field" in html
     assert "Isolation 31 dB below" in html
+    pair_row = html.split('id="isolation"')[1].split("</tr>")[1]
+    assert "2.4 m" in pair_row and "31 dB" in pair_row and "40 dB" in pair_row and "indicative" in pair_row
 
 
 def test_discrepancy_links_go_to_installation_and_audit_rows_carry_filters():

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from registry.model import Aircraft, Fleet, Installation, Review
+from registry.sources import where
 from registry.results import Discrepancy, Figure, FleetResults, InstallationResult, SEVERITIES
 
 DIRECTIONAL_KINDS = ("yagi_uda", "linear_array", "slotted_planar_array", "parabolic_reflector")
@@ -89,8 +90,8 @@ def installation_discrepancies(fleet: Fleet, aircraft: Aircraft, installation: I
     if covered is not None and covered.value < 100.0 - 1e-9:
         out.append(make(
             "band-coverage", ac, pos, covered.value, 100.0, "%",
-            f"Antenna {model.id} is rated for {fig('band.rated_mhz').value} MHz but {service.name} needs "
-            f"{fig('band.service_mhz').value} MHz; {fig('band.uncovered_mhz').value} MHz is not covered.",
+            f"Antenna {model.id} is rated for {fig('band.rated_mhz').value} but {service.name} needs "
+            f"{fig('band.service_mhz').value}; {fig('band.uncovered_mhz').value} is not covered.",
             covered, "interval comparison of rated and service bands"))
 
     limit = policy.vswr_limit_for(service.id)
@@ -128,7 +129,7 @@ def installation_discrepancies(fleet: Fleet, aircraft: Aircraft, installation: I
             f"Cable {cable.id} is {cable.impedance_ohm:g} Ω but antenna {model.id} is "
             f"{model.impedance_ohm:g} Ω: the joint alone gives VSWR "
             f"{max(cable.impedance_ohm, model.impedance_ohm) / min(cable.impedance_ohm, model.impedance_ohm):.2f}.",
-            Figure("", "", cable.impedance_ohm, "Ω", src=_where(installation, "feeder.cable")),
+            Figure("", "", cable.impedance_ohm, "Ω", src=where(installation, "feeder.cable")),
             "Pozar, Microwave Engineering, 4th ed., §2.3"))
 
     top_mhz = max(high for _, high in service.bands_mhz)
@@ -137,7 +138,7 @@ def installation_discrepancies(fleet: Fleet, aircraft: Aircraft, installation: I
             "cable-frequency", ac, pos, top_mhz, cable.max_freq_mhz, "MHz",
             f"Cable {cable.id} is rated to {cable.max_freq_mhz:g} MHz but carries {service.name} up to "
             f"{top_mhz:g} MHz.",
-            Figure("", "", top_mhz, "MHz", src=_where(installation, "feeder.cable")), "cable catalogue"))
+            Figure("", "", top_mhz, "MHz", src=where(installation, "feeder.cable")), "cable catalogue"))
 
     out += ground_plane_discrepancies(ac, pos, result)
     out += suitability_discrepancies(ac, pos, installation, service, model)
@@ -158,7 +159,7 @@ def missing_data(ac: str, pos: str, installation: Installation, service, result:
     gaps: list[tuple[str, str]] = []
     if service.transmits and installation.measured is None:
         gaps.append(("no measured VSWR or sweep for a transmitting service, so the measured-VSWR check cannot run",
-                     _where(installation, "service")))
+                     where(installation, "service")))
     unreadable = result.figure("sweep.error")
     if unreadable is not None:
         gaps.append((f"the measured sweep cannot be used ({unreadable.value})", unreadable.src))
@@ -204,7 +205,7 @@ def suitability_discrepancies(ac: str, pos: str, installation: Installation, ser
     if not problems:
         return []
     return [make("antenna-suitability", ac, pos, model.polarisation, service.polarisation, "",
-                 "; ".join(problems) + ".", Figure("", "", None, "", src=_where(installation, "antenna")),
+                 "; ".join(problems) + ".", Figure("", "", None, "", src=where(installation, "antenna")),
                  "service table (polarisation, coverage)")]
 
 
@@ -257,8 +258,3 @@ def is_open(item: Discrepancy) -> bool:
 def gate_fails(found: list[Discrepancy]) -> bool:
     """True when a discrepancy of the top severity is open: `check` then exits 1."""
     return any(item.severity == SEVERITIES[0] and is_open(item) for item in found)
-
-
-def _where(obj, field: str) -> str:
-    src = obj.where(field)
-    return f"{src.path}:{src.line}"

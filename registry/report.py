@@ -89,6 +89,8 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> 
 
 def format_value(figure: Figure) -> str:
     value = figure.value
+    if isinstance(value, float) and value != value:
+        return "n/a"
     if isinstance(value, float):
         text = f"{value:.4g}" if abs(value) < 1e5 else f"{value:.6g}"
     else:

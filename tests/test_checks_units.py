@@ -9,7 +9,8 @@ from datetime import date
 
 import pytest
 
-from registry import checks, compute
+from registry import checks
+from registry.figures_element import uncovered_mhz
 from registry.errors import Src
 from registry.model import FrozenMap, Review
 from registry.results import Discrepancy
@@ -17,13 +18,13 @@ from registry.results import Discrepancy
 
 def test_uncovered_band_is_service_minus_rated():
     # common practice, no source: the 8.33 kHz VHF band starts at 117.975 MHz; an antenna rated 118-137 misses 25 kHz
-    assert compute.uncovered_mhz([(117.975, 137.0)], [(118.0, 137.0)]) == [(117.975, 118.0)]
-    assert compute.uncovered_mhz([(108.0, 118.0)], [(100.0, 110.0), (112.0, 120.0)]) == [(110.0, 112.0)]
-    assert compute.uncovered_mhz([(1030.0, 1090.0)], [(960.0, 1215.0)]) == []
+    assert uncovered_mhz([(117.975, 137.0)], [(118.0, 137.0)]) == [(117.975, 118.0)]
+    assert uncovered_mhz([(108.0, 118.0)], [(100.0, 110.0), (112.0, 120.0)]) == [(110.0, 112.0)]
+    assert uncovered_mhz([(1030.0, 1090.0)], [(960.0, 1215.0)]) == []
 
 
 def test_uncovered_band_covers_every_service_band():
-    gaps = compute.uncovered_mhz([(121.45, 121.55), (406.0, 406.1)], [(118.0, 137.0)])
+    gaps = uncovered_mhz([(121.45, 121.55), (406.0, 406.1)], [(118.0, 137.0)])
     assert gaps == [(406.0, 406.1)]
 
 

@@ -12,10 +12,12 @@ from registry.schemacheck import ID_PATTERN, number_words, unit_of
 
 SCHEMAS = sorted((Path(__file__).parent.parent / "registry" / "schemas").glob("*.schema.json"))
 KINDS = ["aircraft", "airframe", "antennas", "cables", "fleet", "policy", "reviews", "services"]
+REGISTRY_SCHEMAS = [path for path in SCHEMAS if path.name.removesuffix(".schema.json") in KINDS]
+"""The schemas of registry files; the others (the build record's) are not edited by hand."""
 
 
 def test_one_schema_per_file_kind():
-    assert [path.name.removesuffix(".schema.json") for path in SCHEMAS] == KINDS
+    assert [path.name.removesuffix(".schema.json") for path in REGISTRY_SCHEMAS] == KINDS
 
 
 def _objects(schema, where="#"):
@@ -38,7 +40,7 @@ def test_schema_is_valid_draft_2020_12_with_id(path):
     assert schema["$id"].endswith(f"/{path.name}")
 
 
-@pytest.mark.parametrize("path", SCHEMAS, ids=lambda path: path.name)
+@pytest.mark.parametrize("path", REGISTRY_SCHEMAS, ids=lambda path: path.name)
 def test_every_property_has_help_and_every_object_is_closed(path):
     schema = json.loads(path.read_text(encoding="utf-8"))
     for where, obj in _objects(schema):

@@ -1,0 +1,225 @@
+"""Figures of the element itself: resonant length, band coverage, modelled VSWR and matchability,
+ground plane. Pure functions of the model objects; physics from registry.physics."""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from registry import cache
+from registry.model import AntennaModel, Cable, Installation, Policy, Service
+from registry.physics import impedance, mismatch, wave
+from registry.results import Curve, Figure
+from registry.sources import where
+
+MHZ = 1e6
+MONOPOLE_KINDS = ("quarter_wave_monopole",)
+ELEMENT_KINDS = {"quarter_wave_monopole": 0.25, "half_wave_dipole": 0.5, "folded_dipole": 0.5}
+"""Kinds whose single element is cut to a fraction of a wavelength: the fraction."""
+
+
+# --- element length -------------------------------------------------------------------------------------
+
+
+def length_figures(installation: Installation, model: AntennaModel, service: Service) -> list[Figure]:
+    """Installed element length against the resonant length at the service's design frequency."""
+    fraction = ELEMENT_KINDS.get(model.kind)
+    if fraction is None or installation.coupler:
+        return []
+    freq_hz = service.design_freq_mhz * MHZ
+    element = "quarter_wave" if fraction == 0.25 else "half_wave"
+    length_m = float(model.geometry["element_length_m"])
+    diameter_m = float(model.geometry["element_diameter_m"])
+    image_ratio = (2.0 if element == "quarter_wave" else 1.0) * length_m / diameter_m
+    wavelength_m = wave.wavelength_m(freq_hz)
+    rule_m = wave.rule_of_thumb_length_m(freq_hz, element)
+    try:
+        factor = wave.end_effect_factor(image_ratio)
+        resonant_m = wave.resonant_length_m(freq_hz, diameter_m, element)
+        reference = "end effect"
+    except ValueError:  # a fat element: the thin-wire fit does not apply, fall back on the trade's rule
+        factor = wave.RULE_OF_THUMB_FACTOR
+        resonant_m = rule_m
+        reference = "95 % rule (element too thick for the end-effect fit)"
+    deviation_pct, deviation_mm = wave.length_deviation(length_m, resonant_m)
+    src = where(model, "geometry.element_length_m")
+    name = "λ/4" if fraction == 0.25 else "λ/2"
+    return [
+        Figure("length.design_freq_mhz", "Design frequency", service.design_freq_mhz, "MHz",
+               source=f"service table: {service.source}", src=where(service, "bands_mhz")),
+        Figure("length.wavelength_m", "Free-space wavelength", wavelength_m, "m", "λ = c / f",
+               (("c", "299 792 458 m/s"), ("f", f"{service.design_freq_mhz:g} MHz")), "SI definition of c"),
+        Figure("length.rule95_m", f"Resonant length, 95 % rule ({name})", rule_m, "m", f"0.95 · {name}",
+               (("λ", f"{wavelength_m:.4f} m"),), "common practice, no source"),
+        Figure("length.resonant_m", f"Resonant length, {reference} ({name})", resonant_m, "m",
+               f"K(L/D) · {name}", (("L/D of the dipole or image dipole", f"{image_ratio:.1f}"),
+                                    ("K", f"{factor:.4f}")),
+               "K = 1 − 0.219 / (ln(2L/D) − 1.855): transmission-line model of a dipole (Balanis, Antenna "
+               "Theory, 4th ed., ch. 4 and 9), constants fitted to NEC-2 resonant lengths"),
+        Figure("length.installed_m", "Installed element length", length_m, "m", src=src),
+        Figure("length.deviation_pct", "Deviation from resonant length", deviation_pct, "%",
+               "(ℓ − ℓ_res) / ℓ_res · 100", (("ℓ", f"{length_m:.4f} m"), ("ℓ_res", f"{resonant_m:.4f} m")),
+               src=src),
+        Figure("length.deviation_mm", "Deviation from resonant length", deviation_mm, "mm", "ℓ − ℓ_res",
+               src=src),
+    ]
+
+
+# --- band coverage --------------------------------------------------------------------------------------
+
+
+def uncovered_mhz(service_bands, rated_bands) -> list[tuple[float, float]]:
+    """The parts of the service bands (MHz) that no rated band covers, as (low, high) pairs."""
+    gaps = []
+    for low, high in service_bands:
+        pieces = [(low, high)]
+        for r_low, r_high in rated_bands:
+            next_pieces = []
+            for p_low, p_high in pieces:
+                if r_high <= p_low or r_low >= p_high:
+                    next_pieces.append((p_low, p_high))
+                    continue
+                if p_low < r_low:
+                    next_pieces.append((p_low, r_low))
+                if r_high < p_high:
+                    next_pieces.append((r_high, p_high))
+            pieces = next_pieces
+        gaps += pieces
+    return gaps
+
+
+def format_bands(bands) -> str:
+    """`108–117.975, 328.6–335.4 MHz`, or `none`."""
+    text = ", ".join(f"{low:g}–{high:g}" for low, high in bands)
+    return f"{text} MHz" if text else "none"
+
+
+def band_figures(installation: Installation, model: AntennaModel, service: Service) -> list[Figure]:
+    """The antenna's rated band(s) against the service band(s)."""
+    gaps = uncovered_mhz(service.bands_mhz, model.bands_mhz)
+    total = sum(high - low for low, high in service.bands_mhz)
+    missing = sum(high - low for low, high in gaps)
+    return [
+        Figure("band.service_mhz", "Service band", format_bands(service.bands_mhz), "",
+               source=service.source, src=where(service, "bands_mhz")),
+        Figure("band.rated_mhz", "Antenna rated band", format_bands(model.bands_mhz), "",
+               src=where(model, "bands_mhz")),
+        Figure("band.uncovered_mhz", "Service band not covered", format_bands(gaps), "",
+               "service bands − rated bands", src=where(model, "bands_mhz")),
+        Figure("band.covered_pct", "Share of the service band covered", 100.0 * (total - missing) / total, "%",
+               src=where(model, "bands_mhz")),
+    ]
+
+
+# --- modelled VSWR --------------------------------------------------------------------------------------
+
+
+def sweep_freqs_mhz(service: Service, points: int = 41) -> np.ndarray:
+    """Frequencies (MHz) spanning every service band with a 10 % margin each side, plus each band's edges
+    and centre so that even a narrow band has points inside it."""
+    low = min(low for low, _ in service.bands_mhz)
+    high = max(high for _, high in service.bands_mhz)
+    margin = 0.1 * (high - low) + 0.01 * low
+    edges = [value for low_b, high_b in service.bands_mhz for value in (low_b, (low_b + high_b) / 2, high_b)]
+    return np.unique(np.round(np.concatenate([np.linspace(low - margin, high + margin, points), edges]), 6))
+
+
+def in_bands(freqs_mhz: np.ndarray, bands) -> np.ndarray:
+    mask = np.zeros(freqs_mhz.shape, dtype=bool)
+    for low, high in bands:
+        mask |= (freqs_mhz >= low - 1e-9) & (freqs_mhz <= high + 1e-9)
+    return mask
+
+
+def modelled_vswr(model: AntennaModel, service: Service, cable: Cable,
+                  policy: Policy) -> tuple[list[Figure], Curve | None]:
+    """VSWR across the service band from the method-of-moments input impedance of the element, and
+    whether any matching network could hold the VSWR limit across each service band.
+
+    The curve is the bare element seen through an ideal lossless transformer that brings its resistance
+    at the design frequency to the antenna's declared impedance, against the feeder's impedance: the
+    antenna's own matching network is not modelled, so the curve is an indicator. The check uses the
+    Bode–Fano limit instead: with the element's Q from its modelled impedance slope,
+    Q ≈ ω₀·|Z′(ω₀)| / (2R₀) (Yaghjian and Best, IEEE Trans. AP-53, 2005), no lossless matching network
+    can hold |Γ| ≤ Γm over a fractional bandwidth wider than π / (Q·ln(1/Γm)) (Pozar, Microwave
+    Engineering, 4th ed., §5.9).
+    """
+    freqs_mhz = sweep_freqs_mhz(service)
+    centres = tuple((low + high) / 2 for low, high in service.bands_mhz)
+    solved = cache.impedance_sweep(model, tuple(freqs_mhz.tolist()), service.design_freq_mhz, centres)
+    if solved is None:
+        return [], None
+    z_element, resonance_mhz, r_design, slopes = solved
+    ratio = model.impedance_ohm / r_design
+    vswr = mismatch.vswr_from_z(z_element * ratio, cable.impedance_ohm)
+    band = in_bands(freqs_mhz, service.bands_mhz)
+    limit = policy.vswr_limit_for(service.id)
+    gamma_max = (limit - 1) / (limit + 1)
+    band_low, band_high = impedance.band_under_vswr(freqs_mhz, vswr, limit)
+    worst = None  # the band whose needed bandwidth comes closest to (or beyond) the Bode–Fano limit
+    for (low, high), centre, (z_centre, slope) in zip(service.bands_mhz, centres, slopes):
+        q = 2 * math.pi * centre * MHZ * abs(slope) / (2 * z_centre.real)
+        limit_pct = 100 * math.pi / (q * math.log(1 / gamma_max))
+        needed_pct = 100 * (high - low) / centre
+        if worst is None or needed_pct / limit_pct > worst[3] / worst[2]:
+            worst = (centre, q, limit_pct, needed_pct)
+    centre, q, limit_pct, needed_pct = worst
+    src = where(model, "geometry")
+    figures = [
+        Figure("vswr.resonance_mhz", "Modelled series resonance", resonance_mhz, "MHz", "X_in(f) = 0",
+               source=METHOD_MOM, src=src),
+        Figure("vswr.r_design_ohm", "Element resistance at design frequency", r_design, "Ω",
+               "Re Z_in(f_design)", source=METHOD_MOM, src=src),
+        Figure("vswr.max_in_band", "Modelled VSWR of the bare element, worst in band", float(vswr[band].max()), "",
+               "VSWR = (1 + |Γ|)/(1 − |Γ|), Γ = (Z·Z_ant/R − Z₀)/(Z·Z_ant/R + Z₀)",
+               (("Z_ant", f"{model.impedance_ohm:g} Ω"), ("R", f"{r_design:.1f} Ω"),
+                ("Z₀ (cable)", f"{cable.impedance_ohm:g} Ω")),
+               "Pozar, Microwave Engineering, 4th ed., §2.3; matching network not modelled", src),
+        Figure("vswr.band_under_limit_mhz", f"Band with bare-element VSWR ≤ {limit:g}",
+               "none" if math.isnan(band_low) else f"{band_low:.2f}–{band_high:.2f} MHz", "", src=src),
+        Figure("vswr.q", "Element Q", q, "", "Q ≈ ω₀·|Z′(ω₀)| / (2R₀)", (("f₀", f"{centre:g} MHz"),),
+               "Yaghjian and Best, IEEE Trans. Antennas Propag. 53(4), 2005", src),
+        Figure("vswr.needed_pct", "Fractional bandwidth the service needs", needed_pct, "%", "Δf / f₀",
+               (("f₀", f"{centre:g} MHz"),), src=where(service, "bands_mhz")),
+        Figure("vswr.bode_fano_pct", f"Widest band matchable to VSWR {limit:g}", limit_pct, "%",
+               "π / (Q·ln(1/Γm))", (("Q", f"{q:.2f}"), ("Γm", f"{gamma_max:.3f}")),
+               "Bode–Fano limit (Pozar, Microwave Engineering, 4th ed., §5.9)", src),
+    ]
+    curve = Curve(freqs_mhz, vswr, "Frequency (MHz)", "VSWR")
+    return figures, curve
+
+
+METHOD_MOM = ("thin-wire method of moments, piecewise-sinusoidal Galerkin (Richmond); monopole by image "
+              "theory; checked against NEC-2")
+
+
+# --- ground plane ---------------------------------------------------------------------------------------
+
+
+def ground_plane_figures(installation: Installation, model: AntennaModel, service: Service,
+                         material: str | None, policy: Policy) -> list[Figure]:
+    """For monopoles: what the element stands on and whether it reaches the policy's radius."""
+    if model.kind not in MONOPOLE_KINDS:
+        return []
+    low_mhz = min(low for low, _ in service.bands_mhz)
+    required_m = policy.ground_plane_min_radius_wavelengths * wave.wavelength_m(low_mhz * MHZ)
+    plane = installation.ground_plane
+    plane_type = plane.type if plane is not None else "skin"
+    src = where(installation, "ground_plane") if plane is not None else where(installation, "surface")
+    if plane_type == "plate":
+        radius: float | str = float(plane.radius_m)
+    elif plane_type == "skin" and material == "metal":
+        radius = "metal skin"
+    else:
+        radius = 0.0
+    return [
+        Figure("ground.material", "Skin material at the base", material or "unknown (no zone covers it)", "",
+               src=where(installation, "location")),
+        Figure("ground.type", "Ground plane", plane_type, "", src=src),
+        Figure("ground.radius_m", "Ground-plane radius", radius, "m" if isinstance(radius, float) else "", src=src),
+        Figure("ground.required_m", "Required radius at the lowest service frequency", required_m, "m",
+               "k · λ(f_low)", (("k", f"{policy.ground_plane_min_radius_wavelengths:g} λ"),
+                                ("f_low", f"{low_mhz:g} MHz")), "common practice, no source (λ/4 radius)"),
+    ]
+
+

@@ -59,6 +59,7 @@ def make_parser() -> argparse.ArgumentParser:
 
     diff = commands.add_parser(
         "diff", help="show what changed between two builds of the registry",
+        usage="build.py diff [options] OLD [NEW]\n       build.py diff [options] --git REV [NEW]",
         description="Compare OLD with NEW. Each is a built site (its record.json), a record file, a registry "
                     "folder, or git:REV (the registry folder at git revision REV). Exit 0 when they are the "
                     "same, 1 when they differ, 2 on data or usage errors.")

@@ -20,10 +20,11 @@ import subprocess
 import tarfile
 import tempfile
 from collections import defaultdict
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import asdict, dataclass, field, replace
 from datetime import date
 from pathlib import Path
-from typing import Any, Callable, Iterable, Mapping
+from typing import Any
 
 from registry import record as build_record
 from registry.record import RecordError

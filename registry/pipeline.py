@@ -10,8 +10,7 @@ from dataclasses import dataclass
 from datetime import date, datetime, timezone
 from pathlib import Path
 
-from registry import checks, compute, publish, render
-from registry import diff, record
+from registry import checks, compute, diff, publish, record, render
 from registry.load import load_fleet
 from registry.model import Fleet, Review
 from registry.results import Discrepancy, FleetResults
@@ -77,8 +76,8 @@ def summary(fleet: Fleet) -> str:
 def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
-    The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a comparison with it
-    (`changes.html`)."""
+    The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
+    comparison with it (`changes.html`)."""
     outcome = run(data_dir)
     built = record.to_record(outcome)
     comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")

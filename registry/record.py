@@ -13,9 +13,10 @@ from __future__ import annotations
 import dataclasses
 import json
 import math
+from collections.abc import Mapping
 from datetime import date
 from pathlib import Path
-from typing import Any, Mapping
+from typing import Any
 
 from registry import __version__
 from registry.results import Figure

@@ -32,6 +32,8 @@ from registry.results import (OPEN_STATES, REVIEW_STATES, SEVERITIES, Discrepanc
 
 TEMPLATE_DIR = Path(__file__).resolve().parent.parent / "site_templates"
 STATIC_DIR = TEMPLATE_DIR / "static"
+PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent) + "/"
+"""Shipped files (registry/data/...) are shown relative to the package's folder, never as absolute paths."""
 
 SEVERITY_LABELS = {"blocking": "Blocking", "concern": "Concern", "advisory": "Advisory"}
 STATUS_LABELS = {**SEVERITY_LABELS, "clear": "No open findings"}
@@ -288,7 +290,7 @@ class Site:
     def src_text(self, text: str) -> str:
         """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
         text = str(text)
-        for prefix in (self.data_prefix, str(Path(self.fleet.data_dir).resolve()).rstrip("/") + "/"):
+        for prefix in (self.data_prefix, str(Path(self.fleet.data_dir).resolve()).rstrip("/") + "/", PACKAGE_PREFIX):
             if text.startswith(prefix):
                 return text[len(prefix):]
         return text

@@ -120,7 +120,11 @@
     }
 
     selects.forEach(function (select) { select.addEventListener("change", apply); });
-    form.addEventListener("reset", function () { setTimeout(apply, 0); });
+    form.addEventListener("reset", function (event) {
+      event.preventDefault();
+      selects.forEach(function (select) { select.value = ""; });
+      apply();
+    });
     form.addEventListener("submit", function (event) { event.preventDefault(); apply(); });
     form.hidden = false;
     document.querySelectorAll("[data-needs-script]").forEach(function (el) { el.hidden = false; });

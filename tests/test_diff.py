@@ -427,3 +427,16 @@ def test_demo_modification_scenario_end_to_end(tmp_path, monkeypatch, capsys):
     assert came | {new for _, new in moves} == new_positions - old_positions
     assert main(["diff", str(before), str(DEMO)]) == 1
     assert capsys.readouterr().out.splitlines()[-1].startswith("installations: ")
+
+
+def test_changed_severity_is_reported(pair):
+    old, _ = pair
+    before = record.to_record(pipeline.run(old))
+    after = json.loads(record.dumps(before))
+    after["discrepancies"]["qx-fca/GS1/element-length"]["severity"] = "blocking"  # as a rule change would do
+    result = diff.compare(before, after)
+    [change] = result.discrepancies
+    assert change.aspects == (diff.FieldChange("severity", before["discrepancies"]["qx-fca/GS1/element-length"]
+                                               ["severity"], "blocking"),)
+    assert result.counts()["severity_changes"] == 1 and not result.same
+    assert "             severity: concern → blocking\n" in diff.as_text(result)

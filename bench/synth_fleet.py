@@ -26,13 +26,14 @@ from __future__ import annotations
 
 import argparse
 import functools
+import itertools
 import math
 import random
 import shutil
 import sys
 from collections import defaultdict
 from dataclasses import dataclass, field
-from datetime import date, datetime, timedelta, timezone
+from datetime import UTC, date, datetime, timedelta
 from pathlib import Path
 
 import yaml
@@ -44,7 +45,7 @@ if str(ROOT) not in sys.path:
 DEMO_DIR = ROOT / "fleet_data"
 AS_OF = date(2026, 9, 30)
 """The day the synthetic registry speaks for: measurement dates are drawn back from it."""
-AS_OF_EPOCH = int(datetime(AS_OF.year, AS_OF.month, AS_OF.day, tzinfo=timezone.utc).timestamp())
+AS_OF_EPOCH = int(datetime(AS_OF.year, AS_OF.month, AS_OF.day, tzinfo=UTC).timestamp())
 
 DEFAULT_SEED = 1
 DEFAULT_INSTALLATIONS = 30
@@ -215,7 +216,7 @@ def attenuation_db_per_m(cable, freq_mhz: float) -> float:
     points = [(math.log(f), math.log(a)) for f, a in table]
     x = math.log(freq_mhz)
     (x0, y0), (x1, y1) = (points[0], points[1]) if x <= points[0][0] else (points[-2], points[-1])
-    for (xa, ya), (xb, yb) in zip(points, points[1:]):
+    for (xa, ya), (xb, yb) in itertools.pairwise(points):
         if xa <= x <= xb:
             (x0, y0), (x1, y1) = (xa, ya), (xb, yb)
             break

@@ -26,6 +26,10 @@ SURFACE_AXES = {
 """The antenna's own z and x axes in airframe (STA aft, BL right, WL up) components, by surface: z is the
 outward normal (the axis of a monopole, the boresight of an aperture)."""
 COORD_UNITS = {"in": "inch", "mm": "mm"}
+GAIN_FLOOR_DBI = -20.0
+"""The lowest gain one antenna is taken to have toward another. Models on an infinite ground plane or
+with deep nulls give far less, but a real airframe scatters and diffracts energy into those directions;
+flooring the gain keeps the isolation conservative (common practice, no source)."""
 
 
 def antenna_axes(installation: Installation, model: AntennaModel):
@@ -57,10 +61,10 @@ def pair_result(fleet: Fleet, aircraft_id: str, a: Installation, b: Installation
     a_to_b = coupling.direction_vector(point_a, point_b, unit)
     worst = None
     for freq_mhz in sorted({fleet.services[a.service].design_freq_mhz, fleet.services[b.service].design_freq_mhz}):
-        gain_a = cache.gain_toward_dbi(model_a, freq_mhz, *np.deg2rad(
-            coupling.antenna_angles_deg(a_to_b, *antenna_axes(a, model_a))))
-        gain_b = cache.gain_toward_dbi(model_b, freq_mhz, *np.deg2rad(
-            coupling.antenna_angles_deg(-a_to_b, *antenna_axes(b, model_b))))
+        gain_a = max(GAIN_FLOOR_DBI, cache.gain_toward_dbi(model_a, freq_mhz, *np.deg2rad(
+            coupling.antenna_angles_deg(a_to_b, *antenna_axes(a, model_a)))))
+        gain_b = max(GAIN_FLOOR_DBI, cache.gain_toward_dbi(model_b, freq_mhz, *np.deg2rad(
+            coupling.antenna_angles_deg(-a_to_b, *antenna_axes(b, model_b)))))
         result = coupling.isolation(point_a, point_b, unit, freq_mhz * MHZ, gain_a, gain_b,
                                     size_m(model_a), size_m(model_b))
         if worst is None or result.isolation_db < worst[0].isolation_db:
@@ -73,8 +77,10 @@ def pair_result(fleet: Fleet, aircraft_id: str, a: Installation, b: Installation
         Figure("pair.distance_m", "Distance between the antennas", result.distance_m, "m",
                "|P_B − P_A| from STA/BL/WL", (("unit", unit),), src=src),
         Figure("pair.freq_mhz", "Evaluated at", freq_mhz, "MHz", source="lower-isolation design frequency"),
-        Figure("pair.gain_a_dbi", f"Gain of {a.position} toward {b.position}", gain_a, "dBi", source="pattern"),
-        Figure("pair.gain_b_dbi", f"Gain of {b.position} toward {a.position}", gain_b, "dBi", source="pattern"),
+        Figure("pair.gain_a_dbi", f"Gain of {a.position} toward {b.position}", gain_a, "dBi",
+               f"max(G(θ, φ), {GAIN_FLOOR_DBI:g} dBi)", source="the antenna's pattern; floor: common practice"),
+        Figure("pair.gain_b_dbi", f"Gain of {b.position} toward {a.position}", gain_b, "dBi",
+               f"max(G(θ, φ), {GAIN_FLOOR_DBI:g} dBi)", source="the antenna's pattern; floor: common practice"),
         Figure("pair.path_loss_db", "Free-space loss", result.free_space_loss_db, "dB", "20·log₁₀(4πd/λ)",
                source=friis),
         Figure("pair.isolation_db", "Isolation", result.isolation_db, "dB", "I = 20·log₁₀(4πd/λ) − G_A − G_B",

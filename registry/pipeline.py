@@ -83,10 +83,8 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None) -> P
     comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
                   if baseline is not None else None)
     pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
-                               render.build_info(data_dir))
+                               render.build_info(data_dir), comparison)
     pages[record.RECORD_NAME] = record.dumps(built)
-    if comparison is not None and "changes.html" not in pages:
-        pages["changes.html"] = changes_html(comparison, outcome.fleet, data_dir)
     with publish.staging_dir(out_dir) as stage:
         for rel_path, content in pages.items():
             target = stage / rel_path
@@ -96,12 +94,3 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None) -> P
             else:
                 target.write_text(content, encoding="utf-8")
     return out_dir
-
-
-def changes_html(comparison: diff.Comparison, fleet: Fleet, data_dir: Path) -> str:
-    """The changes page, rendered here until render.render_site renders it with the other pages."""
-    context = diff.changes_page(comparison, aircraft_href=render.aircraft_path,
-                                installation_href=render.installation_path)
-    return render.environment().get_template("changes.html").render(
-        root="", nav="changes", page_title="Changes in this build", crumbs=[], build=render.build_info(data_dir),
-        site={"title": fleet.site_title, "operator": fleet.operator}, **context)

@@ -186,7 +186,7 @@ def pattern_plot(pattern: PatternResult) -> Drawn:
 def vswr_plot(result: InstallationResult, title: str) -> Drawn | None:
     """VSWR against frequency: modelled, measured where a sweep exists, the limit, the band shaded."""
     curves = [(c, name, colour, style) for c, name, colour, style in (
-        (result.vswr_modelled, "modelled", LINE, "-"),
+        (result.vswr_modelled, "modelled, bare element", LINE, "-"),
         (result.vswr_measured, "measured sweep", SECOND, "--"),
     ) if c is not None and len(c.x)]
     if not curves:

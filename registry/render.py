@@ -26,6 +26,7 @@ import markdown
 import nh3
 
 from registry import __version__, plots, sitedrawing, sitesearch
+from registry.diff import Comparison, changes_page
 from registry.model import Aircraft, Fleet, Installation
 from registry.results import (OPEN_STATES, REVIEW_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
                               InstallationResult)
@@ -50,6 +51,8 @@ NAV_ITEMS = (
     ("methods", "Methods & cautions", "methods.html"),
     ("search", "Search", "search.html"),
 )
+CHANGES_NAV = ("changes", "Changes", "changes.html")
+"""Shown in the navigation only when the build was compared with an earlier one."""
 
 FIGURE_GROUPS = {
     "length": "Element length",
@@ -258,16 +261,19 @@ def severity_rank(name: str) -> int:
 
 
 def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Discrepancy],
-                build_info: BuildInfo) -> dict[str, str | bytes]:
-    """Every file of the site, keyed by its path relative to the site root."""
-    return Site(fleet, results, list(discrepancies), build_info).render()
+                build_info: BuildInfo, comparison: Comparison | None = None) -> dict[str, str | bytes]:
+    """Every file of the site, keyed by its path relative to the site root. With a `comparison` to an
+    earlier build, the site also gets a changes page and each changed page a mark."""
+    return Site(fleet, results, list(discrepancies), build_info, comparison).render()
 
 
 class Site:
     """Builds the page contexts and renders them; holds the lookups every page shares."""
 
-    def __init__(self, fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo):
+    def __init__(self, fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo,
+                 comparison: Comparison | None = None):
         self.fleet = fleet
+        self.comparison = comparison
         self.results = results
         self.build = build
         self.env = environment()
@@ -304,9 +310,15 @@ class Site:
 
     def page(self, path: str, template: str, nav: str, title: str, crumbs: list[tuple[str, str | None]],
              **context: Any) -> None:
+        context.setdefault("change_marks", ())
         self.files[path] = self.env.get_template(template).render(
             root=root_of(path), nav=nav, page_title=title, crumbs=crumbs, build=self.build,
-            site={"title": self.fleet.site_title, "operator": self.fleet.operator}, **context)
+            site={"title": self.fleet.site_title, "operator": self.fleet.operator},
+            nav_items=NAV_ITEMS + ((CHANGES_NAV,) if self.comparison is not None else ()), **context)
+
+    def marks(self, aircraft_id: str, position: str | None = None) -> tuple[str, ...]:
+        """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
+        return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
 
     def figure_view(self, figure: Figure) -> dict[str, Any]:
         return {
@@ -375,6 +387,7 @@ class Site:
             "measured_vswr": exact(measured.vswr) if measured and measured.vswr is not None else "—",
             "measured_date": measured.date.isoformat() if measured else "",
             "status": self.status_of(aircraft.id, installation.position),
+            "changed": bool(self.marks(aircraft.id, installation.position)),
         }
 
     # -- render --
@@ -395,6 +408,10 @@ class Site:
         self.audit_page()
         self.methods_page()
         self.search_page()
+        if self.comparison is not None:
+            self.page("changes.html", "changes.html", "changes", "Changes in this build", [("Fleet", "index.html"),
+                      ("Changes", None)], **changes_page(self.comparison, aircraft_href=aircraft_path,
+                                                         installation_href=installation_path))
         return dict(sorted(self.files.items()))
 
     def fleet_page(self) -> None:
@@ -411,6 +428,7 @@ class Site:
                 "reviewed": sum(1 for d in items if d.review not in OPEN_STATES),
                 "status": min(open_counts, key=severity_rank, default="clear"),
                 "last_mod": max((m.date for m in aircraft.modifications), default=None),
+                "changed": bool(self.marks(aircraft.id)),
             })
         open_items = [d for d in self.discrepancies if d.review in OPEN_STATES]
         self.page("index.html", "fleet.html", "fleet", "Fleet overview", [],
@@ -446,6 +464,7 @@ class Site:
                   modifications=sorted(aircraft.modifications, key=lambda m: (m.date, m.ref), reverse=True),
                   discrepancies=[self.discrepancy_view(d) for d in items],
                   matrix=self.severity_matrix(items), src=self.model_src(aircraft),
+                  change_marks=self.marks(aircraft.id), change_anchor="aircraft",
                   status_kinds=("blocking", "concern", "advisory", "clear"))
 
     def installation_page(self, aircraft: Aircraft, installation: Installation) -> None:
@@ -488,6 +507,8 @@ class Site:
         self.page(page_path, "installation.html", "fleet", f"{aircraft.registration} {installation.position}",
                   [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
                    (installation.position, None)],
+                  change_marks=self.marks(aircraft.id, installation.position),
+                  change_anchor=f"i-{aircraft.id}-{installation.position}",
                   aircraft=aircraft, airframe=airframe, inst=installation, row=self.installation_row(aircraft, installation),
                   service=service, service_bands=bands_text(service.bands_mhz) if service else "", model=model, cable=cable, location=self.location_text(aircraft, installation),
                   zone=zone, groups=self.figure_groups(figures), computed=result is not None,

@@ -57,6 +57,14 @@ def make_parser() -> argparse.ArgumentParser:
                        help="add a page of what changed since OLD: a built site, a record file, a registry "
                             "folder, or git:REV (DATA_DIR at git revision REV)")
 
+    serve = commands.add_parser(
+        "serve", help="build, serve the site on this machine, and rebuild when the data changes",
+        description="Serves on 127.0.0.1 only. A data error keeps the last good site and prints the problems.")
+    serve.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",
+                       help="registry folder (default: fleet_data)")
+    serve.add_argument("-o", "--out", default="site", metavar="OUT", help="site folder (default: site)")
+    serve.add_argument("--port", type=int, default=8000, help="port on 127.0.0.1 (default: 8000)")
+
     diff = commands.add_parser(
         "diff", help="show what changed between two builds of the registry",
         usage="build.py diff [options] OLD [NEW]\n       build.py diff [options] --git REV [NEW]",
@@ -99,6 +107,10 @@ def run(args: argparse.Namespace) -> int:
 
     if args.command == "diff":
         return run_diff(args)
+    if args.command == "serve":
+        from registry import serve
+        serve.serve(Path(args.data_dir), Path(args.out), port=args.port)
+        return EXIT_OK
     data_dir = Path(args.data_dir)
     if args.command == "check":
         return run_check(args, pipeline.run(data_dir))

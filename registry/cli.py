@@ -146,7 +146,7 @@ def run_check(args: argparse.Namespace, outcome) -> int:
         sys.stdout.write(report.as_csv(found))
     else:
         if args.details:
-            sys.stdout.write(report.details(fleet, outcome.results))
+            sys.stdout.write(report.details(fleet, outcome.results, args.aircraft, args.service))
         sys.stdout.write(report.as_text(fleet, found, outcome.stale_reviews, as_of))
     return EXIT_OPEN if checks.gate_fails(found) else EXIT_OK
 

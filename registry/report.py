@@ -98,10 +98,18 @@ def format_value(figure: Figure) -> str:
     return f"{text} {figure.unit}".rstrip()
 
 
-def details(fleet: Fleet, results: FleetResults) -> str:
-    """Every computed figure of every installation and pair, for `check --details`."""
+def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = None,
+            service: list[str] | None = None) -> str:
+    """Every computed figure of every installation and pair, for `check --details`; the aircraft (id or
+    registration) and service filters narrow it like the report."""
+    def wanted(craft, services) -> bool:
+        return ((not aircraft or craft.id in aircraft or craft.registration in aircraft)
+                and (not service or bool(set(services) & set(service))))
+
     lines = []
     for craft, installation in fleet.installations():
+        if not wanted(craft, [installation.service]):
+            continue
         result = results.installations[(craft.id, installation.position)]
         lines.append(f"{craft.registration} {installation.position} ({installation.service}, {installation.antenna})")
         figures = list(result.figures)
@@ -112,6 +120,9 @@ def details(fleet: Fleet, results: FleetResults) -> str:
         lines.append("")
     for pair in results.pairs:
         craft = fleet.aircraft[pair.aircraft]
+        if not wanted(craft, [craft.installations[pair.position_a].service,
+                              craft.installations[pair.position_b].service]):
+            continue
         note = "  (near field: indicative only)" if pair.near_field else ""
         lines.append(f"{craft.registration} {pair.position_a} + {pair.position_b}{note}")
         for figure in pair.figures:

@@ -97,3 +97,13 @@ def test_csv_and_text_carry_the_same_problems(capsys):
     assert {row.split(",", 1)[0] for row in rows[1:]} == planted_ids()
     _, text = run_check(capsys, str(DEMO))
     assert all(item in text for item in planted_ids())
+
+
+def test_details_print_every_figure_of_the_chosen_aircraft(capsys):
+    # --details is the terminal view of every computed figure (resonant length, feeder budget, pattern...)
+    code, out = run_check(capsys, str(DEMO), "--details", "--aircraft", "QX-TJA")
+    headers = [line for line in out.splitlines() if line.startswith("QX-TJA ") and "(" in line]
+    assert len(headers) >= 19  # every installation of QX-TJA, then its pairs
+    for label in ("Resonant length, 95 % rule", "Total feeder loss", "Peak directivity", "Isolation"):
+        assert label in out
+    assert "QX-TCA VHF2 (" not in out

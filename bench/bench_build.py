@@ -131,8 +131,9 @@ def run_measured(command: list[str], env: dict[str, str], timeout: float | None,
     watcher.join()
     child.returncode = os.waitstatus_to_exitcode(status)
     tail = "\n".join(log.read_text(encoding="utf-8", errors="replace").splitlines()[-15:])
-    if timed_out.is_set():
-        return Run(None, None, None, None, None, timed_out=True, log_tail=tail)
+    if timed_out.is_set():  # the memory seen until the kill is still worth knowing
+        return Run(None, None, None, None, round(peak[0] / 2**20, 1) if peak[0] else None,
+                   timed_out=True, log_tail=tail)
     return Run(round(seconds, 3), child.returncode, round(usage.ru_utime + usage.ru_stime, 3),
                round(usage.ru_maxrss / 1024, 1),
                round(peak[0] / 2**20, 1) if peak[0] else None, log_tail=tail)
@@ -197,8 +198,9 @@ def measure_size(n: int, args, work: Path, env: dict[str, str], caches: list[Pat
                    else f"failed (exit {run.exit_code})")
         print(f" {verdict}", flush=True)
         if not accepted(args.stage, run):
-            result.error = (f"{name}: " + (f"timed out after {args.timeout} s" if run.timed_out
-                                           else f"exit {run.exit_code}\n{run.log_tail}"))
+            result.error = (f"{name}: " + (f"timed out after {args.timeout} s (tree peak so far "
+                                            f"{fmt(run.tree_peak_mb, '.0f')} MB)" if run.timed_out
+                                            else f"exit {run.exit_code}\n{run.log_tail}"))
             return None
         return run
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import functools
 import hashlib
+import math
 
 import numpy as np
 
@@ -103,18 +104,19 @@ def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
 
 
 def gain_toward_dbi(model: AntennaModel, freq_mhz: float, theta_rad: float, phi_rad: float) -> float:
-    """Gain (dBi, lossless so equal to directivity) of the model toward (θ, φ) in its own axes."""
-    kind, geometry = physics_geometry(model)
-    return _gain_toward(kind, geometry, float(freq_mhz), float(theta_rad), float(phi_rad))
+    """Gain (dBi, lossless so equal to directivity) of the model toward (θ, φ) in its own axes: the
+    nearest point of its pattern grid."""
+    theta_deg, phi_deg, gain = _raw_grid(*_physics_geometry_cached(model), float(freq_mhz))
+    step_t = theta_deg[1] - theta_deg[0]
+    step_p = phi_deg[1] - phi_deg[0]
+    i = min(max(int(round((math.degrees(theta_rad) - theta_deg[0]) / step_t)), 0), len(theta_deg) - 1)
+    j = int(round(((math.degrees(phi_rad) - phi_deg[0]) % 360.0) / step_p)) % len(phi_deg)
+    return float(gain[i, j])
 
 
 @functools.lru_cache(maxsize=None)
-def _gain_toward(kind: str, geometry: tuple, freq_mhz: float, theta_rad: float, phi_rad: float) -> float:
-    raw = _raw_grid(kind, geometry, freq_mhz)
-    theta_deg, phi_deg, gain = raw
-    i = int(np.argmin(np.abs(theta_deg - np.rad2deg(theta_rad))))
-    j = int(np.argmin(np.abs(phi_deg - np.rad2deg(phi_rad) % 360.0)))
-    return float(gain[i, j])
+def _physics_geometry_cached(model: AntennaModel):
+    return physics_geometry(model)
 
 
 @functools.lru_cache(maxsize=None)

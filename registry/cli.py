@@ -53,6 +53,10 @@ def make_parser() -> argparse.ArgumentParser:
                        help="registry folder (default: fleet_data)")
     build.add_argument("-o", "--out", default="site", metavar="OUT",
                        help="site folder, replaced whole on success (default: site)")
+    build.add_argument("--cache", metavar="DIR",
+                       help="folder that keeps drawn plots between builds, safe to delete "
+                            "(default: .aerialbook-cache beside OUT)")
+    build.add_argument("--no-cache", action="store_true", help="draw every plot afresh, keep nothing")
     build.add_argument("--compare", metavar="OLD",
                        help="add a page of what changed since OLD: a built site, a record file, a registry "
                             "folder, or git:REV (DATA_DIR at git revision REV)")
@@ -120,7 +124,9 @@ def run(args: argparse.Namespace) -> int:
             from registry import diff
             baseline = diff.read_side(args.compare, run=pipeline.run, git_data_dir=data_dir,
                                       as_of=pipeline.as_of_date(data_dir))
-        out_dir = pipeline.build(data_dir, Path(args.out), baseline=baseline)
+        out = Path(args.out)
+        cache_dir = None if args.no_cache else Path(args.cache) if args.cache else out.parent / ".aerialbook-cache"
+        out_dir = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir)
         print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
         if baseline is not None:
             print(f"changes since {baseline.label}: open {out_dir / 'changes.html'}")

@@ -7,6 +7,7 @@ computed once per distinct content and reused by every installation that shares 
 """
 from __future__ import annotations
 
+from dataclasses import replace
 from datetime import date
 
 from registry import cache
@@ -38,7 +39,8 @@ def compute_fleet(fleet: Fleet, as_of: date) -> FleetResults:
         figures += feeder_figures(installation, model, service, cable, fleet.policy, figures)
         figures += ground_plane_figures(installation, model, service, material, fleet.policy)
         pattern = cache.pattern(model, service.design_freq_mhz)
-        results.patterns.setdefault(pattern.key, pattern)
+        if pattern.key not in results.patterns:  # shared by content: named after the first model using it
+            results.patterns[pattern.key] = replace(pattern, antenna=model.id)
         results.installations[(aircraft.id, installation.position)] = InstallationResult(
             aircraft=aircraft.id,
             position=installation.position,

@@ -10,7 +10,7 @@ from dataclasses import dataclass
 from datetime import date, datetime, timezone
 from pathlib import Path
 
-from registry import checks, compute, diff, publish, record, render
+from registry import checks, compute, diff, plots, publish, record, render
 from registry.load import load_fleet
 from registry.model import Fleet, Review
 from registry.results import Discrepancy, FleetResults
@@ -73,17 +73,17 @@ def summary(fleet: Fleet) -> str:
     ])
 
 
-def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None) -> Path:
+def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
     The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
-    comparison with it (`changes.html`)."""
+    comparison with it (`changes.html`). `cache_dir` keeps drawn plots across builds (safe to delete)."""
     outcome = run(data_dir)
     built = record.to_record(outcome)
     comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
                   if baseline is not None else None)
     pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
-                               render.build_info(data_dir), comparison)
+                               render.build_info(data_dir), comparison, plots.PlotStore(cache_dir))
     pages[record.RECORD_NAME] = record.dumps(built)
     with publish.staging_dir(out_dir) as stage:
         for rel_path, content in pages.items():

@@ -7,15 +7,22 @@ theme inverts the image lightness with a CSS filter, so one file serves both the
 from __future__ import annotations
 
 import functools
+import hashlib
 import io
+import json
 import math
+import os
+import tempfile
+from collections.abc import Callable
 from dataclasses import dataclass
+from pathlib import Path
 
 import matplotlib
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
+from registry import __version__
 from registry.results import CableResult, Curve, InstallationResult, PatternResult
 
 INK = "#2b2f36"
@@ -27,7 +34,7 @@ BAND = "#3f8f5f"
 
 RC = {
     "svg.hashsalt": "aerialbook",
-    "svg.fonttype": "path",
+    "svg.fonttype": "none",
     "font.family": "DejaVu Sans",
     "font.size": 9.0,
     "axes.edgecolor": INK,
@@ -182,13 +189,39 @@ def pattern_plot(pattern: PatternResult) -> Drawn:
     return Drawn(_to_svg(fig), alt)
 
 
-@_styled
-def vswr_plot(result: InstallationResult, title: str) -> Drawn | None:
-    """VSWR against frequency: modelled, measured where a sweep exists, the limit, the band shaded."""
-    curves = [(c, name, colour, style) for c, name, colour, style in (
+def vswr_curves(result: InstallationResult) -> list[tuple[Curve, str, str, str]]:
+    """The curves a VSWR plot shows: (curve, legend name, colour, line style)."""
+    return [(c, name, colour, style) for c, name, colour, style in (
         (result.vswr_modelled, "modelled, bare element", LINE, "-"),
         (result.vswr_measured, "measured sweep", SECOND, "--"),
     ) if c is not None and len(c.x)]
+
+
+def vswr_key(result: InstallationResult) -> str | None:
+    """Content key of an installation's VSWR plot (None when there is nothing to draw): installations
+    with the same curves, bands and limit share one plot."""
+    curves = vswr_curves(result)
+    if not curves:
+        return None
+    parts = []
+    for curve, name, _, _ in curves:
+        parts += [name, np.asarray(curve.x), np.asarray(curve.y)]
+    return content_key(*parts, result.service_bands_mhz, result.vswr_limit)
+
+
+def vswr_alt(result: InstallationResult, title: str) -> str:
+    """Alt text of an installation's VSWR plot."""
+    bands = ", ".join(f"{low:g}–{high:g} MHz" for low, high in result.service_bands_mhz) or "none given"
+    names = " and ".join(name for _, name, _, _ in vswr_curves(result))
+    return (f"VSWR against frequency for {title}: {names} curve, limit {result.vswr_limit:g}:1 drawn as a "
+            f"dotted line, service band {bands} shaded.")
+
+
+@_styled
+def vswr_plot(result: InstallationResult, title: str) -> Drawn | None:
+    """VSWR against frequency: modelled, measured where a sweep exists, the limit, the band shaded.
+    The drawing carries no installation name (it is shared by content); `title` goes into the alt text."""
+    curves = vswr_curves(result)
     if not curves:
         return None
     fig = _figure(7.2, 3.4)
@@ -208,15 +241,10 @@ def vswr_plot(result: InstallationResult, title: str) -> Drawn | None:
     first = curves[0][0]
     ax.set_xlabel(first.x_label)
     ax.set_ylabel(first.y_label)
-    ax.set_title(title, fontsize=10)
     ax.grid(True)
     ax.legend(loc="upper right", fontsize=8)
-    fig.subplots_adjust(left=0.09, right=0.98, top=0.9, bottom=0.15)
-    bands = ", ".join(f"{low:g}–{high:g} MHz" for low, high in result.service_bands_mhz) or "none given"
-    names = " and ".join(name for _, name, _, _ in curves)
-    alt = (f"VSWR against frequency for {title}: {names} curve, limit {result.vswr_limit:g}:1 drawn as a "
-           f"dotted line, service band {bands} shaded.")
-    return Drawn(_to_svg(fig), alt)
+    fig.subplots_adjust(left=0.09, right=0.98, top=0.95, bottom=0.15)
+    return Drawn(_to_svg(fig), vswr_alt(result, title))
 
 
 @_styled
@@ -239,3 +267,58 @@ def attenuation_plot(cable: CableResult) -> Drawn:
     alt = (f"Attenuation of cable {cable.cable} against frequency: {len(cable.table.x)} catalogue points "
            f"and the fitted curve a·√f + b·f, {cable.table.y_label} against {cable.table.x_label}.")
     return Drawn(_to_svg(fig), alt)
+
+
+class PlotStore:
+    """Plots by content key: drawn at most once per build, and kept on disk across builds.
+
+    `cache_dir` (optional) holds one JSON file (SVG and alt text) per key; the key includes the tool
+    version, so a new version never reuses an old drawing. The folder is safe to delete at any time.
+    """
+
+    def __init__(self, cache_dir: Path | None = None):
+        self.cache_dir = Path(cache_dir) / "plots" if cache_dir is not None else None
+        self.drawn: dict[str, Drawn] = {}
+
+    def get(self, kind: str, key: str, draw: Callable[[], Drawn]) -> Drawn:
+        """Plot `kind`/`key` from this build, from the disk cache, or from `draw()`."""
+        full = f"{kind}-{key}"
+        if full in self.drawn:
+            return self.drawn[full]
+        drawn = None
+        path = None
+        if self.cache_dir is not None:
+            stamp = hashlib.sha256(f"{__version__}|{full}".encode()).hexdigest()[:24]
+            path = self.cache_dir / f"{stamp}.json"
+            try:
+                stored = json.loads(path.read_text(encoding="utf-8"))
+                drawn = Drawn(stored["svg"], stored["alt"])
+            except (OSError, ValueError, KeyError, TypeError):
+                drawn = None  # absent or damaged: draw it again
+        if drawn is None:
+            drawn = draw()
+            if path is not None:
+                write_atomically(path, json.dumps({"svg": drawn.svg, "alt": drawn.alt}))
+        self.drawn[full] = drawn
+        return drawn
+
+
+def content_key(*parts) -> str:
+    """A stable short hash of plot inputs: numpy arrays by their bytes, anything else by repr."""
+    digest = hashlib.sha256()
+    for part in parts:
+        if isinstance(part, np.ndarray):
+            digest.update(np.ascontiguousarray(part, dtype=float).tobytes())
+        else:
+            digest.update(repr(part).encode())
+        digest.update(b"|")
+    return digest.hexdigest()[:20]
+
+
+def write_atomically(path: Path, text: str) -> None:
+    """Write a cache file whole or not at all (a concurrent or interrupted build never sees half a file)."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-")
+    with os.fdopen(handle, "w", encoding="utf-8") as out:
+        out.write(text)
+    os.replace(tmp, path)

@@ -220,8 +220,9 @@ def pattern_plot_path(key: str) -> str:
     return f"plots/pattern/{safe_name(key)}.svg"
 
 
-def vswr_plot_path(aircraft_id: str, position: str) -> str:
-    return f"plots/vswr/{aircraft_id}/{position}.svg"
+def vswr_plot_path(key: str) -> str:
+    """VSWR plots are shared by installations with the same curves, so they are named by content."""
+    return f"plots/vswr/{key}.svg"
 
 
 def cable_plot_path(cable_id: str) -> str:
@@ -261,25 +262,38 @@ def severity_rank(name: str) -> int:
 
 
 def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Discrepancy],
-                build_info: BuildInfo, comparison: Comparison | None = None) -> dict[str, str | bytes]:
+                build_info: BuildInfo, comparison: Comparison | None = None,
+                plot_store: plots.PlotStore | None = None) -> dict[str, str | bytes]:
     """Every file of the site, keyed by its path relative to the site root. With a `comparison` to an
-    earlier build, the site also gets a changes page and each changed page a mark."""
-    return Site(fleet, results, list(discrepancies), build_info, comparison).render()
+    earlier build, the site also gets a changes page and each changed page a mark. Plots come from
+    `plot_store` (drawn once per content; kept on disk when the store has a cache folder)."""
+    return Site(fleet, results, list(discrepancies), build_info, comparison, plot_store).render()
 
 
 class Site:
     """Builds the page contexts and renders them; holds the lookups every page shares."""
 
     def __init__(self, fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo,
-                 comparison: Comparison | None = None):
+                 comparison: Comparison | None = None, plot_store: plots.PlotStore | None = None):
         self.fleet = fleet
         self.comparison = comparison
+        self.plots = plot_store or plots.PlotStore()
+        self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)
+        for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
+            self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
+            self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
+        self.model_patterns: dict[str, set[str]] = defaultdict(set)
+        for (aircraft_id, position), result in results.installations.items():
+            if result.pattern_key:
+                model_id = fleet.aircraft[aircraft_id].installations[position].antenna
+                self.model_patterns[model_id].add(result.pattern_key)
         self.results = results
         self.build = build
         self.env = environment()
         self.files: dict[str, str | bytes] = {}
         self.pattern_alts: dict[str, str] = {}
         self.data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
+        self.src_prefixes = (self.data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/", PACKAGE_PREFIX)
         self.discrepancies = sorted(discrepancies, key=lambda d: (severity_rank(d.severity), d.id))
         self.by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
         for item in self.discrepancies:
@@ -296,7 +310,7 @@ class Site:
     def src_text(self, text: str) -> str:
         """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
         text = str(text)
-        for prefix in (self.data_prefix, str(Path(self.fleet.data_dir).resolve()).rstrip("/") + "/", PACKAGE_PREFIX):
+        for prefix in self.src_prefixes:
             if text.startswith(prefix):
                 return text[len(prefix):]
         return text
@@ -482,17 +496,16 @@ class Site:
                        "alt": self.pattern_alts[pattern_result.key],
                        "figures": [self.figure_view(f) for f in pattern_result.metrics]}
         vswr = None
-        if result is not None:
-            drawn = plots.vswr_plot(result, f"{aircraft.registration} {installation.position}")
-            if drawn is not None:
-                path = vswr_plot_path(aircraft.id, installation.position)
-                self.files[path] = drawn.svg
-                vswr = {"src": path, "alt": drawn.alt}
+        key = plots.vswr_key(result) if result is not None else None
+        if key is not None:
+            title = f"{aircraft.registration} {installation.position}"
+            path = vswr_plot_path(key)
+            if path not in self.files:
+                self.files[path] = self.plots.get("vswr", key, lambda: plots.vswr_plot(result, title)).svg
+            vswr = {"src": path, "alt": plots.vswr_alt(result, title)}
         breakdown = feeder_breakdown(figures)
         pairs = []
-        for pair in sorted(self.results.pairs, key=lambda p: (p.position_a, p.position_b)):
-            if pair.aircraft != aircraft.id or installation.position not in (pair.position_a, pair.position_b):
-                continue
+        for pair in self.pairs_of.get((aircraft.id, installation.position), ()):
             other = pair.position_b if pair.position_a == installation.position else pair.position_a
             other_install = aircraft.installations.get(other)
             pairs.append({"other": other, "href": installation_path(aircraft.id, other) if other_install else None,
@@ -520,7 +533,8 @@ class Site:
 
     def pattern_plots(self) -> None:
         for key, pattern in sorted(self.results.patterns.items()):
-            drawn = plots.pattern_plot(pattern)
+            drawn = self.plots.get("pattern", plots.content_key(key, pattern.antenna),
+                                   lambda: plots.pattern_plot(pattern))
             self.files[pattern_plot_path(key)] = drawn.svg
             self.pattern_alts[key] = drawn.alt
 
@@ -528,8 +542,8 @@ class Site:
         rows = []
         for model in self.fleet.antennas.values():
             uses = self.usage.get(model.id, [])
-            patterns = [p for p in sorted(self.results.patterns.values(), key=lambda p: (p.freq_mhz, p.key))
-                        if p.antenna == model.id]
+            patterns = sorted((self.results.patterns[key] for key in self.model_patterns.get(model.id, ())),
+                              key=lambda p: (p.freq_mhz, p.key))
             rows.append({"id": model.id, "href": antenna_path(model.id), "description": model.description,
                          "kind": model.kind.replace("_", " "), "polarisation": model.polarisation,
                          "impedance": fmt(model.impedance_ohm, "Ω"), "rated_vswr": fmt(model.rated_vswr),
@@ -551,7 +565,9 @@ class Site:
             result = self.results.cables.get(cable.id)
             plot = None
             if result is not None:
-                drawn = plots.attenuation_plot(result)
+                drawn = self.plots.get("cable", plots.content_key(
+                    cable.id, result.table.x, result.table.y, result.fitted.x, result.fitted.y),
+                    lambda: plots.attenuation_plot(result))
                 self.files[cable_plot_path(cable.id)] = drawn.svg
                 plot = {"src": cable_plot_path(cable.id), "alt": drawn.alt}
             rows.append({"id": cable.id, "href": cable_path(cable.id), "designation": cable.designation,

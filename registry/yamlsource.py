@@ -95,13 +95,20 @@ def read_yaml(file: Path, shown: str) -> tuple[YamlDoc | None, list[Problem]]:
     text, problem = _decode(raw, shown)
     if problem:
         return None, [problem]
-    problem = _scan(text, shown)
+    problem = _scan(text, shown, FAST_LOADER)  # libyaml when present: the same events and positions, faster
+    if problem is not None and FAST_LOADER is not yaml.SafeLoader:
+        problem = _scan(text, shown, yaml.SafeLoader)  # word the message as the pure-Python parser does
+    root = None
+    if problem is None:
+        try:
+            root = yaml.compose(text, Loader=FAST_LOADER)
+        except yaml.YAMLError:
+            try:
+                root = yaml.compose(text, Loader=yaml.SafeLoader)
+            except yaml.YAMLError as error:
+                return None, [_yaml_problem(error, text, shown)]
     if problem:
         return None, [problem]
-    try:
-        root = yaml.compose(text, Loader=yaml.SafeLoader)
-    except yaml.YAMLError as error:
-        return None, [_yaml_problem(error, text, shown)]
     builder = _Builder(shown)
     data = None
     if root is not None:
@@ -128,7 +135,11 @@ def _decode(raw: bytes, shown: str) -> tuple[str, Problem | None]:
                               "UTF-8 text (save the file with UTF-8 encoding)")
 
 
-def _scan(text: str, shown: str) -> Problem | None:
+FAST_LOADER = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
+"""libyaml's safe loader where PyYAML was built with it, else the pure-Python one."""
+
+
+def _scan(text: str, shown: str, loader=yaml.SafeLoader) -> Problem | None:
     """A first pass over the parse events: syntax errors and nesting depth, before any tree is built.
 
     PyYAML's parser works from a stack of states, so this pass cannot run out of recursion; its composer
@@ -136,7 +147,7 @@ def _scan(text: str, shown: str) -> Problem | None:
     """
     depth = 0
     try:
-        for event in yaml.parse(text, Loader=yaml.SafeLoader):
+        for event in yaml.parse(text, Loader=loader):
             if isinstance(event, yaml.CollectionStartEvent):
                 depth += 1
                 if depth > MAX_DEPTH:

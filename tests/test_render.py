@@ -150,9 +150,11 @@ def test_every_page_kind_is_rendered():
                  "antennas.html", "antennas/QXA-118.html", "cables.html", "cables/QX-C400.html", "services.html",
                  "audit.html", "methods.html", "search.html", "static/site.css", "static/site.js",
                  "static/search-index.js", "audit/discrepancies.csv", "audit/discrepancies.json",
-                 "plots/vswr/qx-tqa/VHF1.svg", "plots/cable/QX-C400.svg",
+                 "plots/cable/QX-C400.svg",
                  f"plots/pattern/{render.safe_name('QXA-118@127.5')}.svg"):
         assert path in files, path
+    vswr = re.search(r'src="\.\./\.\./(plots/vswr/[0-9a-f]+\.svg)"', files["aircraft/qx-tqa/VHF1.html"])
+    assert vswr and vswr.group(1) in files  # VSWR plots are named by their content
 
 
 def test_pattern_is_drawn_once_for_the_fleet():

@@ -28,28 +28,34 @@ from registry.units import INCH_M
 _UNIT_M = {"inch": INCH_M, "mm": 1e-3, "m": 1.0}
 
 
-def to_metres(point, unit: str) -> np.ndarray:
-    """(STA, BL, WL) in `unit` ('inch', 'mm' or 'm') to metres, as a numpy array of 3."""
+def to_metres(point, unit: str) -> tuple[float, float, float]:
+    """(STA, BL, WL) in `unit` ('inch', 'mm' or 'm') to metres."""
     if unit not in _UNIT_M:
         raise ValueError(f"coordinate unit must be one of {', '.join(_UNIT_M)}, got '{unit}'")
-    p = np.asarray(point, dtype=float)
-    if p.shape != (3,):
+    if len(point) != 3:
         raise ValueError("a position is (STA, BL, WL)")
-    return p * _UNIT_M[unit]
+    scale = _UNIT_M[unit]
+    return (float(point[0]) * scale, float(point[1]) * scale, float(point[2]) * scale)
 
 
 def distance_m(point_a, point_b, unit: str) -> float:
     """Straight-line distance (m) between two (STA, BL, WL) positions given in `unit`."""
-    return float(np.linalg.norm(to_metres(point_b, unit) - to_metres(point_a, unit)))
+    a, b = to_metres(point_a, unit), to_metres(point_b, unit)
+    return math.dist(a, b)
 
 
 def direction_vector(point_from, point_to, unit: str) -> np.ndarray:
     """Unit vector (STA, BL, WL components) from one position toward another. Raises on equal points."""
-    d = to_metres(point_to, unit) - to_metres(point_from, unit)
-    n = np.linalg.norm(d)
+    a, b = to_metres(point_from, unit), to_metres(point_to, unit)
+    n = math.dist(a, b)
     if n == 0:
         raise ValueError("the two positions coincide")
-    return d / n
+    return np.array([(b[0] - a[0]) / n, (b[1] - a[1]) / n, (b[2] - a[2]) / n])
+
+
+def _unit(v) -> tuple[float, float, float]:
+    n = math.hypot(v[0], v[1], v[2])
+    return (v[0] / n, v[1] / n, v[2] / n)
 
 
 def antenna_angles_deg(direction, axis_z, axis_x) -> tuple[float, float]:
@@ -58,19 +64,21 @@ def antenna_angles_deg(direction, axis_z, axis_x) -> tuple[float, float]:
     axis_z, axis_x: the antenna's z and x axes in airframe (STA, BL, WL) components (orthogonalised
     here; y = z x x). E.g. a vertical monopole on the crown: axis_z = (0, 0, 1), axis_x = (-1, 0, 0)
     (forward). Use the angles to look the gain up in a pattern from patterns.pattern_for_kind.
+    Plain floating-point arithmetic on 3-vectors (called once per pair of antennas, so kept light).
     """
-    z = np.asarray(axis_z, dtype=float)
-    z = z / np.linalg.norm(z)
-    x = np.asarray(axis_x, dtype=float)
-    x = x - np.dot(x, z) * z
-    if np.linalg.norm(x) < 1e-12:
+    z = _unit([float(c) for c in axis_z])
+    x = [float(c) for c in axis_x]
+    dot = x[0] * z[0] + x[1] * z[1] + x[2] * z[2]
+    x = [x[0] - dot * z[0], x[1] - dot * z[1], x[2] - dot * z[2]]
+    if math.hypot(*x) < 1e-12:
         raise ValueError("axis_x must not be parallel to axis_z")
-    x = x / np.linalg.norm(x)
-    y = np.cross(z, x)
-    d = np.asarray(direction, dtype=float)
-    d = d / np.linalg.norm(d)
-    theta = math.degrees(math.acos(max(-1.0, min(1.0, float(np.dot(d, z))))))
-    phi = math.degrees(math.atan2(float(np.dot(d, y)), float(np.dot(d, x)))) % 360.0
+    x = _unit(x)
+    y = (z[1] * x[2] - z[2] * x[1], z[2] * x[0] - z[0] * x[2], z[0] * x[1] - z[1] * x[0])
+    d = _unit([float(c) for c in direction])
+    cos_theta = d[0] * z[0] + d[1] * z[1] + d[2] * z[2]
+    theta = math.degrees(math.acos(max(-1.0, min(1.0, cos_theta))))
+    phi = math.degrees(math.atan2(d[0] * y[0] + d[1] * y[1] + d[2] * y[2],
+                                  d[0] * x[0] + d[1] * x[1] + d[2] * x[2])) % 360.0
     return theta, phi
 
 

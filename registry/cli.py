@@ -54,8 +54,8 @@ def make_parser() -> argparse.ArgumentParser:
     build.add_argument("-o", "--out", default="site", metavar="OUT",
                        help="site folder, replaced whole on success (default: site)")
     build.add_argument("--cache", metavar="DIR",
-                       help="folder that keeps drawn plots between builds, safe to delete "
-                            "(default: .aerialbook-cache beside OUT)")
+                       help="folder that keeps parsed files, computed figures and drawn plots between builds, "
+                            "safe to delete (default: $AERIALBOOK_CACHE_DIR, else .aerialbook-cache beside OUT)")
     build.add_argument("--no-cache", action="store_true", help="draw every plot afresh, keep nothing")
     build.add_argument("--compare", metavar="OLD",
                        help="add a page of what changed since OLD: a built site, a record file, a registry "
@@ -125,8 +125,10 @@ def run(args: argparse.Namespace) -> int:
             baseline = diff.read_side(args.compare, run=pipeline.run, git_data_dir=data_dir,
                                       as_of=pipeline.as_of_date(data_dir))
         out = Path(args.out)
-        cache_dir = None if args.no_cache else Path(args.cache) if args.cache else out.parent / ".aerialbook-cache"
-        out_dir = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir)
+        naive = os.environ.get("AERIALBOOK_NAIVE") == "1"  # the benchmark's baseline: no reuse at all
+        default_cache = os.environ.get("AERIALBOOK_CACHE_DIR") or out.parent / ".aerialbook-cache"
+        cache_dir = None if args.no_cache or naive else Path(args.cache or default_cache)
+        out_dir = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive)
         print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
         if baseline is not None:
             print(f"changes since {baseline.label}: open {out_dir / 'changes.html'}")

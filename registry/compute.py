@@ -7,27 +7,75 @@ computed once per distinct content and reused by every installation that shares 
 """
 from __future__ import annotations
 
-from dataclasses import replace
+import multiprocessing
+from dataclasses import dataclass, replace
 from datetime import date
+from pathlib import Path
 
 from registry import cache
+from registry.diskcache import DiskCache, key_of
 from registry.figures_element import band_figures, ground_plane_figures, length_figures, modelled_vswr
 from registry.figures_feeder import cable_result, feeder_figures, measured_figures
 from registry.figures_pair import pair_results
-from registry.model import Fleet
-from registry.results import Figure, FleetResults, InstallationResult
+from registry.load import SHIPPED_DIR
+from registry.model import Aircraft, Fleet
+from registry.results import Figure, FleetResults, InstallationResult, PairResult, PatternResult
 
 
-def compute_fleet(fleet: Fleet, as_of: date) -> FleetResults:
-    """All figures of the fleet. `as_of` is the date measurement ages are counted to."""
+def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, workers: int = 1) -> FleetResults:
+    """All figures of the fleet. `as_of` is the date measurement ages are counted to.
+
+    Each aircraft is computed on its own (its installations and its pairs depend on nothing of the other
+    aircraft), so an aircraft whose inputs are unchanged is taken from `cache_dir` and the others are
+    shared out over `workers` processes. The result is the same whichever path each aircraft took.
+    """
     results = FleetResults()
     for cable in fleet.cables.values():
         results.cables[cable.id] = cable_result(cable)
-    for aircraft, installation in fleet.installations():
+    store = DiskCache(cache_dir, "aircraft")
+    shared = shared_inputs_key(fleet, as_of) if store.folder is not None else ""
+    parts: dict[str, AircraftPart] = {}
+    todo: list[tuple[str, str]] = []
+    for aircraft in fleet.aircraft.values():
+        key = aircraft_key(aircraft, shared) if shared else ""
+        if key:
+            results.aircraft_keys[aircraft.id] = key
+        part = store.get(key) if key else None
+        if part is None:
+            todo.append((aircraft.id, key))
+        else:
+            parts[aircraft.id] = part
+    for (aircraft_id, key), part in zip(todo, map_aircraft(fleet, as_of, [a for a, _ in todo], workers)):
+        parts[aircraft_id] = part
+        if key:
+            store.put(key, part)
+    for aircraft_id in fleet.aircraft:  # merged in id order: the same fleet gives the same results
+        part = parts[aircraft_id]
+        results.installations.update(part.installations)
+        results.pairs += part.pairs
+        for key, pattern in part.patterns.items():
+            results.patterns.setdefault(key, pattern)
+    return results
+
+
+@dataclass
+class AircraftPart:
+    """What one aircraft contributes to the fleet's results."""
+
+    installations: dict[tuple[str, str], InstallationResult]
+    pairs: list[PairResult]
+    patterns: dict[str, PatternResult]
+
+
+def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftPart:
+    """Every figure of one aircraft's installations, and the isolation of its pairs."""
+    part = AircraftPart({}, [], {})
+    airframe = fleet.airframe_of(aircraft)
+    for installation in aircraft.installations.values():
         service = fleet.services[installation.service]
         model = fleet.antennas[installation.antenna]
         cable = fleet.cables[installation.feeder.cable]
-        material = fleet.airframe_of(aircraft).material_at(installation.location.sta, installation.surface)
+        material = airframe.material_at(installation.location.sta, installation.surface)
         figures: list[Figure] = []
         figures += length_figures(installation, model, service)
         figures += band_figures(installation, model, service)
@@ -39,9 +87,9 @@ def compute_fleet(fleet: Fleet, as_of: date) -> FleetResults:
         figures += feeder_figures(installation, model, service, cable, fleet.policy, figures)
         figures += ground_plane_figures(installation, model, service, material, fleet.policy)
         pattern = cache.pattern(model, service.design_freq_mhz)
-        if pattern.key not in results.patterns:  # shared by content: named after the first model using it
-            results.patterns[pattern.key] = replace(pattern, antenna=model.id)
-        results.installations[(aircraft.id, installation.position)] = InstallationResult(
+        if pattern.key not in part.patterns:  # shared by content: named after the first model using it
+            part.patterns[pattern.key] = replace(pattern, antenna=model.id)
+        part.installations[(aircraft.id, installation.position)] = InstallationResult(
             aircraft=aircraft.id,
             position=installation.position,
             figures=tuple(figures),
@@ -51,6 +99,55 @@ def compute_fleet(fleet: Fleet, as_of: date) -> FleetResults:
             service_bands_mhz=service.bands_mhz,
             vswr_limit=fleet.policy.vswr_limit_for(service.id),
         )
-    for aircraft in fleet.aircraft.values():
-        results.pairs += pair_results(fleet, aircraft)
-    return results
+    part.pairs = pair_results(fleet, aircraft)
+    return part
+
+
+# --- which aircraft need computing, and where --------------------------------------------------------------
+
+_FORKED: tuple[Fleet, date] | None = None
+"""The fleet and date a forked worker computes from (inherited from the parent, never pickled)."""
+
+
+def _compute_forked(aircraft_id: str) -> AircraftPart:
+    fleet, as_of = _FORKED
+    return compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
+
+
+def map_aircraft(fleet: Fleet, as_of: date, aircraft_ids: list[str], workers: int) -> list[AircraftPart]:
+    """compute_aircraft over the ids, in order; in `workers` forked processes when that pays."""
+    global _FORKED
+    if workers <= 1 or len(aircraft_ids) < 8 or "fork" not in multiprocessing.get_all_start_methods():
+        return [compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of) for aircraft_id in aircraft_ids]
+    _FORKED = (fleet, as_of)
+    try:
+        with multiprocessing.get_context("fork").Pool(workers) as pool:
+            return pool.map(_compute_forked, aircraft_ids, chunksize=max(1, len(aircraft_ids) // (workers * 8)))
+    finally:
+        _FORKED = None
+
+
+def shared_inputs_key(fleet: Fleet, as_of: date) -> str:
+    """Key of everything an aircraft's figures depend on besides its own file: the registry's other files
+    (catalogues, services, policy, airframe types, fleet), the shipped service table and policy, and the
+    as-of date. Reviews are left out: they do not change a figure."""
+    data_dir = Path(fleet.data_dir)
+    files = sorted(data_dir.glob("*.yaml")) + sorted((data_dir / "airframes").glob("*.yaml"))
+    files += sorted(SHIPPED_DIR.glob("*.yaml"))
+    parts = [as_of.isoformat(), str(data_dir)]
+    for file in files:
+        if file.name != "reviews.yaml":
+            parts += [str(file), file.read_bytes()]
+    return key_of(*parts)
+
+
+def aircraft_key(aircraft: Aircraft, shared: str) -> str:
+    """Key of one aircraft's figures: its own file, the sweep files it names, and the shared inputs."""
+    parts = [shared, aircraft.src.path, Path(aircraft.src.path).read_bytes()]
+    for installation in aircraft.installations.values():
+        if installation.measured is not None and installation.measured.sweep is not None:
+            try:
+                parts += [str(installation.measured.sweep), installation.measured.sweep.read_bytes()]
+            except OSError:
+                parts += [str(installation.measured.sweep), "unreadable"]
+    return key_of(*parts)

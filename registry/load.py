@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from registry import integrity, schemacheck
+from registry.diskcache import DiskCache, key_of
 from registry.errors import FILE_FIELD, DataError, Problem, Src, parse_path
 from registry.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
                             Fuselage, GroundPlane, Installation, IsolationRule, Locator, Location, Measured,
@@ -29,13 +30,14 @@ POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "f
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
 
 
-def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None) -> Fleet:
+def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir: Path | None = None) -> Fleet:
     """Read, validate and cross-check the registry in `data_dir`.
 
     `shipped_dir` holds the package's `services.yaml` and `policy.yaml` (default: `registry/data/`).
-    Raises DataError listing every problem, sorted by file and line.
+    `cache_dir` (optional) keeps each file's parsed and schema-checked form, keyed by its bytes, so an
+    unchanged file is not parsed again. Raises DataError listing every problem, sorted by file and line.
     """
-    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR).load()
+    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, DiskCache(cache_dir, "files")).load()
 
 
 class _Doc:
@@ -53,9 +55,10 @@ class _Doc:
 
 
 class _Run:
-    def __init__(self, data_dir: Path, shipped_dir: Path):
+    def __init__(self, data_dir: Path, shipped_dir: Path, cache: DiskCache):
         self.data_dir = data_dir
         self.shipped_dir = shipped_dir
+        self.cache = cache
         self.problems: list[Problem] = []
 
     def problem(self, file: Path, found: str, expected: str) -> None:
@@ -67,9 +70,21 @@ class _Run:
             if required:
                 self.problem(file, "no such file", f"{file.name} ({kind} file, required)")
             return None
-        doc, problems = read_yaml(file, str(file))
-        if doc is not None:
-            problems = schemacheck.check(doc, kind)
+        key = None
+        if self.cache.folder is not None:
+            try:
+                key = key_of(kind, str(file), file.read_bytes())
+            except OSError:
+                key = None  # read_yaml reports it
+        cached = self.cache.get(key) if key else None
+        if cached is not None:
+            doc, problems = cached
+        else:
+            doc, problems = read_yaml(file, str(file))
+            if doc is not None:
+                problems = schemacheck.check(doc, kind)
+            if key:
+                self.cache.put(key, (doc, problems))
         self.problems.extend(problems)
         return _Doc(doc, file) if doc is not None and not problems else None
 

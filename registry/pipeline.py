@@ -27,9 +27,9 @@ class Outcome:
     stale_reviews: list[Review]
 
 
-def load(data_dir: Path) -> Fleet:
+def load(data_dir: Path, cache_dir: Path | None = None) -> Fleet:
     """Load and validate the registry; raises DataError with every problem found."""
-    return load_fleet(data_dir)
+    return load_fleet(data_dir, cache_dir=cache_dir)
 
 
 def as_of_date(data_dir: Path) -> date:
@@ -50,14 +50,16 @@ def as_of_date(data_dir: Path) -> date:
     return datetime.now(tz=timezone.utc).date()
 
 
-def run(data_dir: Path, as_of: date | None = None) -> Outcome:
+def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None,
+        workers: int | None = None) -> Outcome:
     """Load, compute and check: every figure and every discrepancy of the registry.
 
     `as_of` overrides the date measurement ages are counted to (`build.py diff` computes both sides
-    of a comparison as of one date)."""
-    fleet = load(data_dir)
+    of a comparison as of one date). `cache_dir` keeps what depends only on content between runs;
+    `workers` processes share the computation (default: one per core)."""
+    fleet = load(data_dir, cache_dir)
     as_of = as_of or as_of_date(data_dir)
-    results = compute.compute_fleet(fleet, as_of)
+    results = compute.compute_fleet(fleet, as_of, cache_dir, workers or os.cpu_count() or 1)
     found = checks.check_fleet(fleet, results)
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
@@ -73,24 +75,31 @@ def summary(fleet: Fleet) -> str:
     ])
 
 
-def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None) -> Path:
+def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None,
+          workers: int | None = None, naive: bool = False) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
     The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
-    comparison with it (`changes.html`). `cache_dir` keeps drawn plots across builds (safe to delete)."""
-    outcome = run(data_dir)
+    comparison with it (`changes.html`). `cache_dir` keeps parsed files, computed figures and drawn plots
+    across builds (safe to delete); `workers` processes share the work (default: one per core). `naive`
+    (the benchmark's baseline) keeps nothing and draws every plot for every installation."""
+    outcome = run(data_dir, cache_dir=cache_dir, workers=workers)
     built = record.to_record(outcome)
     comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
                   if baseline is not None else None)
-    pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
-                               render.build_info(data_dir), comparison, plots.PlotStore(cache_dir))
-    pages[record.RECORD_NAME] = record.dumps(built)
+    previous = publish.read_manifest(out_dir).get("aircraft", {})
+    kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
+            if isinstance(entry, dict) and all((out_dir / path).is_file() for path in entry.get("files", ()))}
+    incremental = render.Incremental({} if naive else kept, {})
     with publish.staging_dir(out_dir) as stage:
+        def write(rel_path: str, content: str | bytes) -> None:
+            publish.place(stage, out_dir.resolve(), rel_path, content, render.REUSE)
+
+        pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
+                                   render.build_info(data_dir), comparison, plots.PlotStore(cache_dir, naive), incremental,
+                                   writer=write, workers=workers or os.cpu_count() or 1)
+        pages[record.RECORD_NAME] = record.dumps(built)
         for rel_path, content in pages.items():
-            target = stage / rel_path
-            target.parent.mkdir(parents=True, exist_ok=True)
-            if isinstance(content, bytes):
-                target.write_bytes(content)
-            else:
-                target.write_text(content, encoding="utf-8")
+            write(rel_path, content)
+        publish.write_manifest(stage, {"aircraft": incremental.current})
     return out_dir

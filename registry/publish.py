@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import contextlib
 import fcntl
+import json
 import os
 import shutil
 import tempfile
@@ -16,6 +17,40 @@ from pathlib import Path
 from typing import Iterator
 
 MARKER = ".aerialbook-site"
+MARKER_NOTE = "Written by aerialbook; this folder is replaced whole by each build."
+
+
+def read_manifest(out_dir: Path) -> dict:
+    """What the previous build recorded in its marker file (which aircraft pages it holds under which
+    key); empty when there is no previous site or the marker is not ours or unreadable."""
+    try:
+        manifest = json.loads((out_dir / MARKER).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return {}
+    return manifest if isinstance(manifest, dict) else {}
+
+
+def write_manifest(stage: Path, manifest: dict) -> None:
+    (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE, **manifest}, sort_keys=True) + "\n")
+
+
+def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse: bytes) -> None:
+    """Put one file of the new site into `stage`: a hard link to the previous site's file when it is to be
+    kept as it is (`content is reuse`) or is byte-identical, else freshly written. Unchanged files thus
+    keep their inode and modification time."""
+    target = stage / rel_path
+    target.parent.mkdir(parents=True, exist_ok=True)
+    old = out_dir / rel_path
+    data = content.encode("utf-8") if isinstance(content, str) else content
+    if data is reuse or (old.is_file() and old.stat().st_size == len(data) and old.read_bytes() == data):
+        try:
+            os.link(old, target)
+            return
+        except OSError:
+            if data is reuse:
+                shutil.copyfile(old, target)
+                return
+    target.write_bytes(data)
 
 
 class PublishError(Exception):
@@ -59,7 +94,8 @@ def staging_dir(out_dir: Path) -> Iterator[Path]:
         stage = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.build-", dir=out_dir.parent))
         try:
             yield stage
-            (stage / MARKER).write_text("Written by aerialbook; this folder is replaced whole by each build.\n")
+            if not (stage / MARKER).exists():
+                (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE}) + "\n")
             os.chmod(stage, 0o755)
             swap_in(stage, out_dir)
         except BaseException:

@@ -12,6 +12,7 @@ import hashlib
 import io
 import json
 import math
+import multiprocessing
 import os
 import re
 import subprocess
@@ -19,6 +20,7 @@ from collections import Counter, defaultdict
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
+from collections.abc import Callable
 from typing import Any, Iterable
 
 import jinja2
@@ -27,6 +29,7 @@ import nh3
 
 from registry import __version__, plots, sitedrawing, sitesearch
 from registry.diff import Comparison, changes_page
+from registry.diskcache import key_of
 from registry.model import Aircraft, Fleet, Installation
 from registry.results import (OPEN_STATES, REVIEW_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
                               InstallationResult)
@@ -41,6 +44,10 @@ STATUS_LABELS = {**SEVERITY_LABELS, "clear": "No open findings"}
 STATE_LABELS = {"open": "Open", "reopened": "Reopened", "accepted": "Accepted",
                 "action-raised": "Action raised", "no-fault": "No fault found"}
 ALL_STATES = OPEN_STATES + REVIEW_STATES
+
+TEMPLATES_KEY = key_of(*(f"{path.relative_to(TEMPLATE_DIR)}:{path.read_text(encoding='utf-8')}"
+                         for path in sorted(TEMPLATE_DIR.rglob("*.html"))))
+"""Key of the page templates: a changed template renders every page again."""
 
 NAV_ITEMS = (
     ("fleet", "Fleet", "index.html"),
@@ -261,22 +268,59 @@ def severity_rank(name: str) -> int:
     return SEVERITIES.index(name) if name in SEVERITIES else len(SEVERITIES)
 
 
+REUSE = b"\x00reuse the previous build's file\x00"
+"""Stands for a file's content when the previous build's file can be kept as it is."""
+
+
+@dataclass
+class Incremental:
+    """Which aircraft pages the previous build already holds. `previous` maps an aircraft id to the page
+    key and files of the previous build; `current` is filled with this build's, for the next one."""
+
+    previous: dict[str, dict[str, Any]]
+    current: dict[str, dict[str, Any]]
+
+
 def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Discrepancy],
                 build_info: BuildInfo, comparison: Comparison | None = None,
-                plot_store: plots.PlotStore | None = None) -> dict[str, str | bytes]:
+                plot_store: plots.PlotStore | None = None,
+                incremental: Incremental | None = None,
+                writer: Callable[[str, str | bytes], None] | None = None, workers: int = 1) -> dict[str, str | bytes]:
     """Every file of the site, keyed by its path relative to the site root. With a `comparison` to an
     earlier build, the site also gets a changes page and each changed page a mark. Plots come from
-    `plot_store` (drawn once per content; kept on disk when the store has a cache folder)."""
-    return Site(fleet, results, list(discrepancies), build_info, comparison, plot_store).render()
+    `plot_store` (drawn once per content; kept on disk when the store has a cache folder). With
+    `incremental`, an aircraft whose pages would come out as in the previous build is not rendered
+    again: its files are given as REUSE. With a `writer` and several `workers`, the aircraft pages are
+    rendered in forked processes that hand each file straight to `writer(path, content)`; the returned
+    dict then holds the other files only."""
+    site = Site(fleet, results, list(discrepancies), build_info, comparison, plot_store, incremental)
+    return site.render(writer, workers)
+
+
+_FORKED_SITE: tuple[Site, Callable[[str, str | bytes], None]] | None = None
+"""The site and writer a forked page worker renders with (inherited from the parent, never pickled)."""
+
+
+def _render_forked(aircraft_id: str) -> tuple[list[str], dict[str, Any] | None]:
+    site, writer = _FORKED_SITE
+    site.files = {}
+    paths = site.aircraft_pages(site.fleet.aircraft[aircraft_id])
+    for path, content in site.files.items():
+        writer(path, content)
+    site.files = {}
+    entry = site.incremental.current.get(aircraft_id) if site.incremental is not None else None
+    return paths, entry
 
 
 class Site:
     """Builds the page contexts and renders them; holds the lookups every page shares."""
 
     def __init__(self, fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo,
-                 comparison: Comparison | None = None, plot_store: plots.PlotStore | None = None):
+                 comparison: Comparison | None = None, plot_store: plots.PlotStore | None = None,
+                 incremental: Incremental | None = None):
         self.fleet = fleet
         self.comparison = comparison
+        self.incremental = incremental
         self.plots = plot_store or plots.PlotStore()
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)
         for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
@@ -406,16 +450,20 @@ class Site:
 
     # -- render --
 
-    def render(self) -> dict[str, str | bytes]:
+    def render(self, writer: Callable[[str, str | bytes], None] | None = None,
+               workers: int = 1) -> dict[str, str | bytes]:
         for path in sorted(STATIC_DIR.rglob("*")):
             if path.is_file():
                 self.files[f"static/{path.relative_to(STATIC_DIR).as_posix()}"] = path.read_bytes()
         self.pattern_plots()
+        self.vswr_plots()
         self.fleet_page()
-        for aircraft in self.fleet.aircraft.values():
-            self.aircraft_page(aircraft)
-            for installation in aircraft.installations.values():
-                self.installation_page(aircraft, installation)
+        todo = [aircraft for aircraft in self.fleet.aircraft.values() if not self.reuse_pages(aircraft)]
+        if writer is not None and workers > 1 and len(todo) >= 8 and "fork" in multiprocessing.get_all_start_methods():
+            self.render_forked(todo, writer, workers)
+        else:
+            for aircraft in todo:
+                self.aircraft_pages(aircraft)
         self.antenna_pages()
         self.cable_pages()
         self.services_page()
@@ -427,6 +475,64 @@ class Site:
                       ("Changes", None)], **changes_page(self.comparison, aircraft_href=aircraft_path,
                                                          installation_href=installation_path))
         return dict(sorted(self.files.items()))
+
+    def reuse_pages(self, aircraft: Aircraft) -> bool:
+        """True (and the files given as REUSE) when the previous build's pages of this aircraft show what
+        this build would (same figures' inputs, reviews, change marks, templates and tool version)."""
+        if self.incremental is None:
+            return False
+        key = self.page_key(aircraft)
+        before = self.incremental.previous.get(aircraft.id)
+        if not key or not before or before.get("key") != key:
+            return False
+        for path in before["files"]:
+            self.files[path] = REUSE
+        self.incremental.current[aircraft.id] = before
+        return True
+
+    def aircraft_pages(self, aircraft: Aircraft) -> list[str]:
+        """Render the aircraft's page and its installations' pages; their paths."""
+        paths = [aircraft_path(aircraft.id)]
+        self.aircraft_page(aircraft)
+        for installation in aircraft.installations.values():
+            self.installation_page(aircraft, installation)
+            paths.append(installation_path(aircraft.id, installation.position))
+        key = self.page_key(aircraft)
+        if self.incremental is not None and key:
+            self.incremental.current[aircraft.id] = {"key": key, "files": paths}
+        return paths
+
+    def render_forked(self, todo: list[Aircraft], writer: Callable[[str, str | bytes], None], workers: int) -> None:
+        """Aircraft pages in `workers` forked processes; each writes its files through `writer`."""
+        global _FORKED_SITE
+        _FORKED_SITE = (self, writer)
+        try:
+            with multiprocessing.get_context("fork").Pool(workers) as pool:
+                done = pool.map(_render_forked, [aircraft.id for aircraft in todo],
+                                chunksize=max(1, len(todo) // (workers * 8)))
+        finally:
+            _FORKED_SITE = None
+        for aircraft, (paths, entry) in zip(todo, done):
+            if entry is not None:
+                self.incremental.current[aircraft.id] = entry
+
+    def page_key(self, aircraft: Aircraft) -> str:
+        """Key of everything an aircraft's pages show, or "" when its figures' inputs are not keyed."""
+        figures_key = self.results.aircraft_keys.get(aircraft.id)
+        if not figures_key:
+            return ""
+        reviews = [repr(review) for name, review in self.fleet.reviews.items() if name.startswith(aircraft.id + "/")]
+        marks = [self.marks(aircraft.id)] + [self.marks(aircraft.id, p) for p in aircraft.installations]
+        return key_of(figures_key, *reviews, repr(marks), str(self.comparison is not None), TEMPLATES_KEY)
+
+    def vswr_plots(self) -> None:
+        """Every VSWR plot the installation pages show, once per distinct content."""
+        for (aircraft_id, position), result in sorted(self.results.installations.items()):
+            key = plots.vswr_key(result)
+            if key is not None and (vswr_plot_path(key) not in self.files or self.plots.naive):
+                title = f"{self.fleet.aircraft[aircraft_id].registration} {position}"
+                self.files[vswr_plot_path(key)] = self.plots.get(
+                    "vswr", key, lambda: plots.vswr_plot(result, title)).svg
 
     def fleet_page(self) -> None:
         aircraft_rows = []
@@ -499,10 +605,7 @@ class Site:
         key = plots.vswr_key(result) if result is not None else None
         if key is not None:
             title = f"{aircraft.registration} {installation.position}"
-            path = vswr_plot_path(key)
-            if path not in self.files:
-                self.files[path] = self.plots.get("vswr", key, lambda: plots.vswr_plot(result, title)).svg
-            vswr = {"src": path, "alt": plots.vswr_alt(result, title)}
+            vswr = {"src": vswr_plot_path(key), "alt": plots.vswr_alt(result, title)}
         breakdown = feeder_breakdown(figures)
         pairs = []
         for pair in self.pairs_of.get((aircraft.id, installation.position), ()):

@@ -120,6 +120,8 @@ class FleetResults:
     pairs: list[PairResult] = field(default_factory=list)
     patterns: dict[str, PatternResult] = field(default_factory=dict)
     cables: dict[str, CableResult] = field(default_factory=dict)
+    aircraft_keys: dict[str, str] = field(default_factory=dict)
+    """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
 
 
 @dataclass(frozen=True)

@@ -1,0 +1,99 @@
+"""Rebuilding: caches and reused pages never change what is published.
+
+The reference is a plain build with no cache and one process; every faster path must give the same
+bytes (common practice for reproducible builds, no source). Hard links keep an unchanged file's inode,
+which is how "not rewritten" is observed (POSIX link(2)).
+"""
+import filecmp
+import shutil
+from pathlib import Path
+
+import pytest
+
+from registry import diskcache, pipeline
+
+DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
+
+
+@pytest.fixture(autouse=True)
+def fixed_date(monkeypatch):
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1796169600")
+
+
+def tree(folder: Path) -> dict[str, bytes]:
+    return {str(p.relative_to(folder)): p.read_bytes() for p in sorted(folder.rglob("*"))
+            if p.is_file() and p.name != ".aerialbook-site"}
+
+
+@pytest.fixture(scope="module")
+def reference(tmp_path_factory):
+    out = tmp_path_factory.mktemp("ref") / "site"
+    import os
+    os.environ["SOURCE_DATE_EPOCH"] = "1796169600"
+    pipeline.build(DEMO, out, cache_dir=None, workers=1)
+    return tree(out)
+
+
+def test_cached_parallel_build_equals_plain_build(tmp_path, reference):
+    out = tmp_path / "site"
+    pipeline.build(DEMO, out, cache_dir=tmp_path / "cache", workers=2)
+    assert tree(out) == reference
+    pipeline.build(DEMO, out, cache_dir=tmp_path / "cache", workers=2)  # everything from the cache
+    assert tree(out) == reference
+
+
+def test_unchanged_pages_are_kept_and_a_changed_aircraft_is_rendered_again(tmp_path, reference):
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    inode = {path: (out / path).stat().st_ino
+             for path in ("aircraft/qx-tca/VHF1.html", "aircraft/qx-tcb/VHF1.html", "aircraft/qx-tcb/ELT.html")}
+
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    assert (out / "aircraft/qx-tca/VHF1.html").stat().st_ino == inode["aircraft/qx-tca/VHF1.html"]
+
+    aircraft = data / "aircraft" / "qx-tcb.yaml"
+    text = aircraft.read_text(encoding="utf-8")
+    assert "length_m: 7.0" in text  # the first feeder in the file: VHF1's
+    aircraft.write_text(text.replace("length_m: 7.0", "length_m: 7.3", 1), encoding="utf-8")
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    assert (out / "aircraft/qx-tca/VHF1.html").stat().st_ino == inode["aircraft/qx-tca/VHF1.html"]
+    assert (out / "aircraft/qx-tcb/VHF1.html").stat().st_ino != inode["aircraft/qx-tcb/VHF1.html"]
+    # rendered again with its aircraft, but byte-identical: linked, not rewritten
+    assert (out / "aircraft/qx-tcb/ELT.html").stat().st_ino == inode["aircraft/qx-tcb/ELT.html"]
+
+    fresh = tmp_path / "fresh"
+    pipeline.build(data, fresh, cache_dir=None, workers=1)
+    assert tree(out) == tree(fresh)
+
+
+def test_removed_aircraft_pages_disappear(tmp_path):
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    assert (out / "aircraft/qx-tce.html").exists()
+    (data / "aircraft" / "qx-tce.yaml").unlink()
+    reviews = data / "reviews.yaml"
+    reviews.write_text(reviews.read_text(encoding="utf-8").split("  - discrepancy: qx-tce/")[0]
+                       + "  - discrepancy: qx-tjb/" + reviews.read_text(encoding="utf-8").split(
+                           "  - discrepancy: qx-tjb/")[1], encoding="utf-8")
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    assert not (out / "aircraft/qx-tce.html").exists()
+    assert not (out / "aircraft/qx-tce").exists()
+
+
+def test_damaged_cache_entries_are_misses(tmp_path, reference):
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(DEMO, out, cache_dir=cache, workers=1)
+    for entry in cache.rglob("*"):
+        if entry.is_file():
+            entry.write_bytes(b"not a pickle")
+    pipeline.build(DEMO, out, cache_dir=cache, workers=1)
+    assert tree(out) == reference
+
+
+def test_cache_keys_depend_on_every_part():
+    assert diskcache.key_of("a", "bc") != diskcache.key_of("ab", "c")
+    assert diskcache.key_of("a", b"b") == diskcache.key_of("a", "b")

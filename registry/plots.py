@@ -17,10 +17,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
-import matplotlib
 import numpy as np
-from matplotlib.backends.backend_agg import FigureCanvasAgg
-from matplotlib.figure import Figure
 
 from registry import __version__
 from registry.results import CableResult, Curve, InstallationResult, PatternResult
@@ -61,14 +58,17 @@ class Drawn:
     alt: str
 
 
-def _figure(width_in: float, height_in: float) -> Figure:
+def _figure(width_in: float, height_in: float):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg  # imported when a plot is drawn
+    from matplotlib.figure import Figure
+
     fig = Figure(figsize=(width_in, height_in), dpi=96)
     FigureCanvasAgg(fig)
     fig.patch.set_alpha(0.0)
     return fig
 
 
-def _to_svg(fig: Figure) -> str:
+def _to_svg(fig) -> str:
     buffer = io.StringIO()
     fig.savefig(buffer, format="svg", metadata={"Date": None}, transparent=True)
     return buffer.getvalue()
@@ -79,6 +79,8 @@ def _styled(draw):
 
     @functools.wraps(draw)
     def wrapper(*args, **kwargs):
+        import matplotlib  # imported when a plot is drawn: a build from the cache never loads it
+
         with matplotlib.rc_context(RC):
             return draw(*args, **kwargs)
 

@@ -9,7 +9,6 @@ from __future__ import annotations
 import warnings
 
 import numpy as np
-from scipy.signal.windows import chebwin
 
 from registry.physics.elements import wavenumber_rad_per_m
 
@@ -39,6 +38,8 @@ def taper_weights(n_elements: int, taper: str = "uniform", sidelobe_db: float = 
         with warnings.catch_warnings():
             # scipy warns that low-attenuation windows suit spectral analysis poorly; not our use
             warnings.filterwarnings("ignore", message="This window is not suitable", category=UserWarning)
+            from scipy.signal.windows import chebwin  # imported when first needed: a build from the cache never loads scipy
+
             w = chebwin(n, at=sidelobe_db) if n > 1 else np.ones(1)
     elif taper == "explicit":
         w = np.asarray(amplitudes, dtype=float)

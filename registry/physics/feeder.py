@@ -17,7 +17,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import nnls
 
 from registry.physics.mismatch import gamma_from_vswr, mismatch_loss_db, return_loss_db
 from registry.units import C_M_PER_S, ETA0, MU0, NP_TO_DB, per_100ft_to_per_100m
@@ -67,6 +66,8 @@ def fit_attenuation(freqs_hz, loss_db_per_100m) -> AttenuationFit:
         raise ValueError("table frequencies must be positive and losses non-negative")
     # scale columns for conditioning
     s1, s2 = np.sqrt(f.max()), f.max()
+    from scipy.optimize import nnls  # imported when first needed: a build from the cache never loads scipy
+
     coef, _ = nnls(np.column_stack([np.sqrt(f) / s1, f / s2]), y)
     a, b = coef[0] / s1, coef[1] / s2
     resid = y - (a * np.sqrt(f) + b * f)

@@ -18,7 +18,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from registry.physics import kinds as _kinds
 from registry.physics.mismatch import vswr_from_z
@@ -147,6 +146,8 @@ def resonant_frequency_hz(kind: str, geometry, f_low_hz: float, f_high_hz: float
 
     def reactance(f):
         return float(solve_wire_antenna(kind, geometry, [f]).z_in_ohm[0].imag)
+
+    from scipy.optimize import brentq  # imported when first needed: a build from the cache never loads scipy
 
     return float(brentq(reactance, scan[i], scan[i + 1], xtol=1e-7 * scan[i]))
 

@@ -17,10 +17,13 @@ from typing import Any
 
 from registry import __version__
 
+FORMAT = "2"
+"""Bumped when what the cache holds changes shape, so an old entry is never read as a new one."""
+
 
 def key_of(*parts: bytes | str) -> str:
     """SHA-256 (hex) of the tool version and the parts, each length-prefixed so no two inputs collide."""
-    digest = hashlib.sha256(__version__.encode())
+    digest = hashlib.sha256(f"{__version__}|{FORMAT}".encode())
     for part in parts:
         data = part.encode() if isinstance(part, str) else part
         digest.update(len(data).to_bytes(8, "little"))

@@ -6,6 +6,7 @@ reports read these and never call the physics themselves.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 
@@ -19,12 +20,13 @@ OPEN_STATES = ("open", "reopened")
 """Derived states: no review yet, or the value changed since the reviewer saw it."""
 
 
-@dataclass(frozen=True)
-class Figure:
+class Figure(NamedTuple):
     """One computed figure with what an auditor needs to follow the arithmetic.
 
     `inputs` are (name, value-with-unit) pairs shown beside the formula; `source` names the method's
     reference; `src` is the "file:line" of the registry value the figure rests on most directly.
+    A named tuple rather than a dataclass: a fleet has millions of figures, and tuples are the cheapest
+    to keep in the cache and read back.
     """
 
     key: str

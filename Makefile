@@ -4,7 +4,7 @@ PYTHON ?= python3
 VENV := .venv
 STAMP := $(VENV)/.installed
 
-.PHONY: demo test clean
+.PHONY: demo test bench clean
 
 $(STAMP): pyproject.toml
 	@$(PYTHON) -m venv $(VENV) || { echo "python3 -m venv failed: on Debian, apt-get install python3-venv"; exit 2; }
@@ -19,5 +19,9 @@ demo: $(STAMP)
 test: $(STAMP)
 	$(VENV)/bin/python -m pytest
 
+bench: $(STAMP)
+	$(VENV)/bin/python bench/bench_physics.py
+	$(VENV)/bin/python bench/bench_build.py --sizes 10,100,1000 --json bench/results/build.json
+
 clean:
-	rm -rf $(VENV) site .pytest_cache .hypothesis .cache
+	rm -rf $(VENV) site .pytest_cache .hypothesis .cache .aerialbook-cache

@@ -66,8 +66,21 @@ class PatternResult:
     metrics: tuple[Figure, ...]
 
 
+class WithFigures:
+    """Lookup of a figure by key, for records holding `figures`."""
+
+    figures: tuple[Figure, ...]
+
+    def figure(self, key: str) -> Figure | None:
+        """The figure with this key, or None when it could not be computed."""
+        for item in self.figures:
+            if item.key == key:
+                return item
+        return None
+
+
 @dataclass(frozen=True)
-class InstallationResult:
+class InstallationResult(WithFigures):
     """Everything computed for one installation."""
 
     aircraft: str
@@ -79,16 +92,10 @@ class InstallationResult:
     service_bands_mhz: tuple[tuple[float, float], ...] = ()
     vswr_limit: float = 2.0
 
-    def figure(self, key: str) -> Figure | None:
-        """The figure with this key, or None when it could not be computed."""
-        for item in self.figures:
-            if item.key == key:
-                return item
-        return None
 
 
 @dataclass(frozen=True)
-class PairResult:
+class PairResult(WithFigures):
     """Isolation between two installations on one aircraft (positions in sorted order)."""
 
     aircraft: str
@@ -97,11 +104,6 @@ class PairResult:
     figures: tuple[Figure, ...]
     near_field: bool
 
-    def figure(self, key: str) -> Figure | None:
-        for item in self.figures:
-            if item.key == key:
-                return item
-        return None
 
 
 @dataclass(frozen=True)

@@ -147,8 +147,10 @@ def fmt(value: Any, unit: str = "") -> str:
         return "yes" if value else "no"
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         number = float(value)
+        if math.isnan(number):
+            return "n/a"  # the figure does not apply (a cut that never falls 3 dB, no side lobe)
         if not math.isfinite(number):
-            text = "∞" if number > 0 else "−∞" if number < 0 else "not a number"
+            text = "∞" if number > 0 else "−∞"
         elif number == 0:
             text = "0"
         else:

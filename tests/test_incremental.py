@@ -28,9 +28,9 @@ def tree(folder: Path) -> dict[str, bytes]:
 @pytest.fixture(scope="module")
 def reference(tmp_path_factory):
     out = tmp_path_factory.mktemp("ref") / "site"
-    import os
-    os.environ["SOURCE_DATE_EPOCH"] = "1796169600"
-    pipeline.build(DEMO, out, cache_dir=None, workers=1)
+    with pytest.MonkeyPatch.context() as patch:  # set for this build only, not for later tests
+        patch.setenv("SOURCE_DATE_EPOCH", "1796169600")
+        pipeline.build(DEMO, out, cache_dir=None, workers=1)
     return tree(out)
 
 

@@ -128,7 +128,9 @@ def run(args: argparse.Namespace) -> int:
         naive = os.environ.get("AERIALBOOK_NAIVE") == "1"  # the benchmark's baseline: no reuse at all
         default_cache = os.environ.get("AERIALBOOK_CACHE_DIR") or out.parent / ".aerialbook-cache"
         cache_dir = None if args.no_cache or naive else Path(args.cache or default_cache)
-        out_dir = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive)
+        from registry.progress import Progress
+        out_dir = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive,
+                                 progress=Progress(sys.stderr))
         print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
         if baseline is not None:
             print(f"changes since {baseline.label}: open {out_dir / 'changes.html'}")

@@ -10,6 +10,7 @@ from __future__ import annotations
 import multiprocessing
 from dataclasses import dataclass, replace
 from datetime import date
+from collections.abc import Iterator
 from pathlib import Path
 
 from registry import cache
@@ -19,10 +20,12 @@ from registry.figures_feeder import cable_result, feeder_figures, measured_figur
 from registry.figures_pair import pair_results
 from registry.load import SHIPPED_DIR
 from registry.model import Aircraft, Fleet
+from registry.progress import QUIET, Progress
 from registry.results import Figure, FleetResults, InstallationResult, PairResult, PatternResult
 
 
-def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, workers: int = 1) -> FleetResults:
+def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, workers: int = 1,
+                  progress: Progress = QUIET) -> FleetResults:
     """All figures of the fleet. `as_of` is the date measurement ages are counted to.
 
     Each aircraft is computed on its own (its installations and its pairs depend on nothing of the other
@@ -45,7 +48,9 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
             todo.append((aircraft.id, key))
         else:
             parts[aircraft.id] = part
-    for (aircraft_id, key), part in zip(todo, map_aircraft(fleet, as_of, [a for a, _ in todo], workers)):
+    progress.stage("computing aircraft", len(todo))
+    # the generator first, so that zip runs it to its end and its worker pool is closed
+    for part, (aircraft_id, key) in zip(map_aircraft(fleet, as_of, [a for a, _ in todo], workers, progress), todo):
         parts[aircraft_id] = part
         if key:
             store.put(key, part)
@@ -114,15 +119,21 @@ def _compute_forked(aircraft_id: str) -> AircraftPart:
     return compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
 
 
-def map_aircraft(fleet: Fleet, as_of: date, aircraft_ids: list[str], workers: int) -> list[AircraftPart]:
+def map_aircraft(fleet: Fleet, as_of: date, aircraft_ids: list[str], workers: int,
+                 progress: Progress = QUIET) -> Iterator[AircraftPart]:
     """compute_aircraft over the ids, in order; in `workers` forked processes when that pays."""
     global _FORKED
     if workers <= 1 or len(aircraft_ids) < 8 or "fork" not in multiprocessing.get_all_start_methods():
-        return [compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of) for aircraft_id in aircraft_ids]
+        for aircraft_id in aircraft_ids:
+            yield compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
+            progress.advance()
+        return
     _FORKED = (fleet, as_of)
     try:
         with multiprocessing.get_context("fork").Pool(workers) as pool:
-            return pool.map(_compute_forked, aircraft_ids, chunksize=max(1, len(aircraft_ids) // (workers * 8)))
+            for part in pool.imap(_compute_forked, aircraft_ids, chunksize=max(1, len(aircraft_ids) // (workers * 8))):
+                yield part
+                progress.advance()
     finally:
         _FORKED = None
 

@@ -13,6 +13,7 @@ from pathlib import Path
 from registry import checks, compute, diff, plots, publish, record, render
 from registry.load import load_fleet
 from registry.model import Fleet, Review
+from registry.progress import QUIET, Progress
 from registry.results import Discrepancy, FleetResults
 
 
@@ -51,15 +52,17 @@ def as_of_date(data_dir: Path) -> date:
 
 
 def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None,
-        workers: int | None = None) -> Outcome:
+        workers: int | None = None, progress: Progress = QUIET) -> Outcome:
     """Load, compute and check: every figure and every discrepancy of the registry.
 
     `as_of` overrides the date measurement ages are counted to (`build.py diff` computes both sides
     of a comparison as of one date). `cache_dir` keeps what depends only on content between runs;
     `workers` processes share the computation (default: one per core)."""
+    progress.stage("reading the registry", 1)
     fleet = load(data_dir, cache_dir)
+    progress.advance()
     as_of = as_of or as_of_date(data_dir)
-    results = compute.compute_fleet(fleet, as_of, cache_dir, workers or os.cpu_count() or 1)
+    results = compute.compute_fleet(fleet, as_of, cache_dir, workers or os.cpu_count() or 1, progress)
     found = checks.check_fleet(fleet, results)
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
@@ -76,14 +79,14 @@ def summary(fleet: Fleet) -> str:
 
 
 def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None,
-          workers: int | None = None, naive: bool = False) -> Path:
+          workers: int | None = None, naive: bool = False, progress: Progress = QUIET) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
     The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
     comparison with it (`changes.html`). `cache_dir` keeps parsed files, computed figures and drawn plots
     across builds (safe to delete); `workers` processes share the work (default: one per core). `naive`
     (the benchmark's baseline) keeps nothing and draws every plot for every installation."""
-    outcome = run(data_dir, cache_dir=cache_dir, workers=workers)
+    outcome = run(data_dir, cache_dir=cache_dir, workers=workers, progress=progress)
     built = record.to_record(outcome)
     comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
                   if baseline is not None else None)
@@ -97,9 +100,11 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
 
         pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
                                    render.build_info(data_dir), comparison, plots.PlotStore(cache_dir, naive), incremental,
-                                   writer=write, workers=workers or os.cpu_count() or 1)
+                                   writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
         pages[record.RECORD_NAME] = record.dumps(built)
         for rel_path, content in pages.items():
             write(rel_path, content)
         publish.write_manifest(stage, {"aircraft": incremental.current})
+        progress.advance()
+        progress.finish()
     return out_dir

@@ -30,6 +30,7 @@ import nh3
 from registry import __version__, plots, sitedrawing, sitesearch
 from registry.diff import Comparison, changes_page
 from registry.diskcache import key_of
+from registry.progress import QUIET, Progress
 from registry.model import Aircraft, Fleet, Installation
 from registry.results import (OPEN_STATES, REVIEW_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
                               InstallationResult)
@@ -287,7 +288,8 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
                 build_info: BuildInfo, comparison: Comparison | None = None,
                 plot_store: plots.PlotStore | None = None,
                 incremental: Incremental | None = None,
-                writer: Callable[[str, str | bytes], None] | None = None, workers: int = 1) -> dict[str, str | bytes]:
+                writer: Callable[[str, str | bytes], None] | None = None, workers: int = 1,
+                progress: Progress = QUIET) -> dict[str, str | bytes]:
     """Every file of the site, keyed by its path relative to the site root. With a `comparison` to an
     earlier build, the site also gets a changes page and each changed page a mark. Plots come from
     `plot_store` (drawn once per content; kept on disk when the store has a cache folder). With
@@ -296,7 +298,7 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
     rendered in forked processes that hand each file straight to `writer(path, content)`; the returned
     dict then holds the other files only."""
     site = Site(fleet, results, list(discrepancies), build_info, comparison, plot_store, incremental)
-    return site.render(writer, workers)
+    return site.render(writer, workers, progress)
 
 
 _FORKED_SITE: tuple[Site, Callable[[str, str | bytes], None]] | None = None
@@ -453,7 +455,7 @@ class Site:
     # -- render --
 
     def render(self, writer: Callable[[str, str | bytes], None] | None = None,
-               workers: int = 1) -> dict[str, str | bytes]:
+               workers: int = 1, progress: Progress = QUIET) -> dict[str, str | bytes]:
         for path in sorted(STATIC_DIR.rglob("*")):
             if path.is_file():
                 self.files[f"static/{path.relative_to(STATIC_DIR).as_posix()}"] = path.read_bytes()
@@ -461,11 +463,14 @@ class Site:
         self.vswr_plots()
         self.fleet_page()
         todo = [aircraft for aircraft in self.fleet.aircraft.values() if not self.reuse_pages(aircraft)]
+        progress.stage("rendering aircraft", len(todo))
         if writer is not None and workers > 1 and len(todo) >= 8 and "fork" in multiprocessing.get_all_start_methods():
-            self.render_forked(todo, writer, workers)
+            self.render_forked(todo, writer, workers, progress)
         else:
             for aircraft in todo:
                 self.aircraft_pages(aircraft)
+                progress.advance()
+        progress.stage("rendering fleet pages", 1)
         self.antenna_pages()
         self.cable_pages()
         self.services_page()
@@ -504,14 +509,18 @@ class Site:
             self.incremental.current[aircraft.id] = {"key": key, "files": paths}
         return paths
 
-    def render_forked(self, todo: list[Aircraft], writer: Callable[[str, str | bytes], None], workers: int) -> None:
+    def render_forked(self, todo: list[Aircraft], writer: Callable[[str, str | bytes], None], workers: int,
+                      progress: Progress) -> None:
         """Aircraft pages in `workers` forked processes; each writes its files through `writer`."""
         global _FORKED_SITE
         _FORKED_SITE = (self, writer)
         try:
             with multiprocessing.get_context("fork").Pool(workers) as pool:
-                done = pool.map(_render_forked, [aircraft.id for aircraft in todo],
-                                chunksize=max(1, len(todo) // (workers * 8)))
+                done = []
+                for result in pool.imap(_render_forked, [aircraft.id for aircraft in todo],
+                                        chunksize=max(1, len(todo) // (workers * 8))):
+                    done.append(result)
+                    progress.advance()
         finally:
             _FORKED_SITE = None
         for aircraft, (paths, entry) in zip(todo, done):

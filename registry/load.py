@@ -54,6 +54,26 @@ class _Doc:
         return {"src": src, "locator": Locator(self.srcs, parts, src)}
 
 
+def parse(file: Path, kind: str, cache: DiskCache) -> tuple[YamlDoc | None, list[Problem]]:
+    """One file read and checked against its schema: the document and its problems, from the cache
+    when the same bytes were seen before."""
+    key = None
+    if cache.folder is not None:
+        try:
+            key = key_of(kind, str(file), file.read_bytes())
+        except OSError:
+            key = None  # read_yaml reports it
+    cached = cache.get(key) if key else None
+    if cached is not None:
+        return cached
+    doc, problems = read_yaml(file, str(file))
+    if doc is not None:
+        problems = schemacheck.check(doc, kind)
+    if key:
+        cache.put(key, (doc, problems))
+    return doc, problems
+
+
 class _Run:
     def __init__(self, data_dir: Path, shipped_dir: Path, cache: DiskCache):
         self.data_dir = data_dir
@@ -70,21 +90,7 @@ class _Run:
             if required:
                 self.problem(file, "no such file", f"{file.name} ({kind} file, required)")
             return None
-        key = None
-        if self.cache.folder is not None:
-            try:
-                key = key_of(kind, str(file), file.read_bytes())
-            except OSError:
-                key = None  # read_yaml reports it
-        cached = self.cache.get(key) if key else None
-        if cached is not None:
-            doc, problems = cached
-        else:
-            doc, problems = read_yaml(file, str(file))
-            if doc is not None:
-                problems = schemacheck.check(doc, kind)
-            if key:
-                self.cache.put(key, (doc, problems))
+        doc, problems = parse(file, kind, self.cache)
         self.problems.extend(problems)
         return _Doc(doc, file) if doc is not None and not problems else None
 

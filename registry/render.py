@@ -739,27 +739,22 @@ class Site:
         self.files["audit/discrepancies.json"] = discrepancies_json(views, self.build)
 
     def methods_page(self) -> None:
+        tally: Counter = Counter()  # (key, label, unit, formula, source, where) -> uses: one pass, no per-figure calls
+        tally.update((f.key, f.label, f.unit, f.formula, f.source, "installation")
+                     for result in self.results.installations.values() for f in result.figures)
+        tally.update((f.key, f.label, f.unit, f.formula, f.source, "pair")
+                     for pair in self.results.pairs for f in pair.figures)
+        tally.update((f.key, f.label, f.unit, f.formula, f.source, "pattern")
+                     for pattern in self.results.patterns.values() for f in pattern.metrics)
+        tally.update((f.key, f.label, f.unit, f.formula, f.source, "cable")
+                     for cable in self.results.cables.values() for f in cable.figures)
         catalogue: dict[str, dict[str, Any]] = {}
-
-        def add(figure: Figure, where: str) -> None:
-            entry = catalogue.setdefault(figure.key, {"key": figure.key, "labels": set(), "unit": figure.unit,
-                                                      "variants": Counter(), "where": set()})
-            entry["labels"].add(figure.label)
-            entry["variants"][(figure.formula, figure.source)] += 1
+        for (key, label, unit, formula, source, where), count in sorted(tally.items()):
+            entry = catalogue.setdefault(key, {"key": key, "labels": set(), "unit": unit, "variants": Counter(),
+                                               "where": set()})
+            entry["labels"].add(label)
+            entry["variants"][(formula, source)] += count
             entry["where"].add(where)
-
-        for result in self.results.installations.values():
-            for figure in result.figures:
-                add(figure, "installation")
-        for pair in self.results.pairs:
-            for figure in pair.figures:
-                add(figure, "pair")
-        for pattern in self.results.patterns.values():
-            for figure in pattern.metrics:
-                add(figure, "pattern")
-        for cable in self.results.cables.values():
-            for figure in cable.figures:
-                add(figure, "cable")
         grouped: dict[str, list[dict[str, Any]]] = defaultdict(list)
         for key in sorted(catalogue):
             entry = catalogue[key]

@@ -13,7 +13,7 @@ from datetime import date
 from collections.abc import Iterator
 from pathlib import Path
 
-from registry import cache
+from registry import cache, record
 from registry.diskcache import DiskCache, key_of
 from registry.figures_element import band_figures, ground_plane_figures, length_figures, modelled_vswr
 from registry.figures_feeder import cable_result, feeder_figures, measured_figures
@@ -58,6 +58,8 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
         part = parts[aircraft_id]
         results.installations.update(part.installations)
         results.pairs += part.pairs
+        if part.record is not None:
+            results.records[aircraft_id] = part.record
         for key, pattern in part.patterns.items():
             results.patterns.setdefault(key, pattern)
     return results
@@ -70,11 +72,12 @@ class AircraftPart:
     installations: dict[tuple[str, str], InstallationResult]
     pairs: list[PairResult]
     patterns: dict[str, PatternResult]
+    record: dict | None = None
 
 
 def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftPart:
     """Every figure of one aircraft's installations, and the isolation of its pairs."""
-    part = AircraftPart({}, [], {})
+    part = AircraftPart({}, [], {})  # record share added at the end
     airframe = fleet.airframe_of(aircraft)
     for installation in aircraft.installations.values():
         service = fleet.services[installation.service]
@@ -105,6 +108,7 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftP
             vswr_limit=fleet.policy.vswr_limit_for(service.id),
         )
     part.pairs = pair_results(fleet, aircraft)
+    part.record = record.aircraft_record(aircraft, part.installations, part.pairs, Path(fleet.data_dir))
     return part
 
 

@@ -103,25 +103,36 @@ def figures(items: tuple[Figure, ...] | list[Figure]) -> dict[str, dict[str, Any
     return out
 
 
+def aircraft_record(aircraft, installations, pairs, data_dir: Path) -> dict[str, Any]:
+    """One aircraft's share of the record: its registry entry and the figures of its installations and
+    pairs. Made where the aircraft is computed, so that it is kept in the cache with its figures."""
+    entry = plain(aircraft, data_dir)
+    entry["modifications"] = sorted(entry["modifications"], key=lambda mod: (mod["date"], mod["ref"]))
+    return {
+        "aircraft": entry,
+        "installations": {f"{aircraft_id}/{position}": {
+            "aircraft": aircraft_id, "position": position, "pattern_key": result.pattern_key,
+            "figures": figures(result.figures)} for (aircraft_id, position), result in installations.items()},
+        "pairs": {f"{pair.aircraft}/{pair.position_a}+{pair.position_b}": {
+            "aircraft": pair.aircraft, "positions": [pair.position_a, pair.position_b],
+            "near_field": bool(pair.near_field), "figures": figures(pair.figures)} for pair in pairs},
+    }
+
+
 def to_record(outcome) -> dict[str, Any]:
     """The record of one pipeline run (`pipeline.Outcome`) as plain JSON data."""
     fleet, results = outcome.fleet, outcome.results
     data_dir = Path(fleet.data_dir)
-    aircraft = {}
+    aircraft, installations, pairs = {}, {}, {}
     for craft in fleet.aircraft.values():
-        entry = plain(craft, data_dir)
-        entry["modifications"] = sorted(entry["modifications"], key=lambda mod: (mod["date"], mod["ref"]))
-        aircraft[craft.id] = entry
-    installations = {}
-    for (aircraft_id, position), result in results.installations.items():
-        installations[f"{aircraft_id}/{position}"] = {
-            "aircraft": aircraft_id, "position": position, "pattern_key": result.pattern_key,
-            "figures": figures(result.figures)}
-    pairs = {}
-    for pair in results.pairs:
-        pairs[f"{pair.aircraft}/{pair.position_a}+{pair.position_b}"] = {
-            "aircraft": pair.aircraft, "positions": [pair.position_a, pair.position_b],
-            "near_field": bool(pair.near_field), "figures": figures(pair.figures)}
+        share = results.records.get(craft.id)
+        if share is None:
+            share = aircraft_record(
+                craft, {key: result for key, result in results.installations.items() if key[0] == craft.id},
+                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir)
+        aircraft[craft.id] = share["aircraft"]
+        installations.update(share["installations"])
+        pairs.update(share["pairs"])
     patterns = {key: {"antenna": pattern.antenna, "kind": pattern.kind,
                       "freq_mhz": round_sig(pattern.freq_mhz, FIGURE_DIGITS), "metrics": figures(pattern.metrics)}
                 for key, pattern in results.patterns.items()}

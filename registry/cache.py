@@ -19,8 +19,10 @@ from registry.results import Curve, Figure, PatternResult
 MHZ = 1e6
 
 
+@functools.lru_cache(maxsize=None)
 def physics_geometry(model: AntennaModel) -> tuple[str, tuple[tuple[str, object], ...]]:
-    """The physics kind and canonical geometry of a catalogue antenna model (registry names → physics)."""
+    """The physics kind and canonical geometry of a catalogue antenna model (registry names → physics);
+    once per model, since every installation of the model asks for it."""
     g = model.geometry
     kind = model.kind
     if kind == "quarter_wave_monopole":
@@ -106,17 +108,12 @@ def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
 def gain_toward_dbi(model: AntennaModel, freq_mhz: float, theta_rad: float, phi_rad: float) -> float:
     """Gain (dBi, lossless so equal to directivity) of the model toward (θ, φ) in its own axes: the
     nearest point of its pattern grid."""
-    theta_deg, phi_deg, gain = _raw_grid(*_physics_geometry_cached(model), float(freq_mhz))
+    theta_deg, phi_deg, gain = _raw_grid(*physics_geometry(model), float(freq_mhz))
     step_t = theta_deg[1] - theta_deg[0]
     step_p = phi_deg[1] - phi_deg[0]
     i = min(max(int(round((math.degrees(theta_rad) - theta_deg[0]) / step_t)), 0), len(theta_deg) - 1)
     j = int(round(((math.degrees(phi_rad) - phi_deg[0]) % 360.0) / step_p)) % len(phi_deg)
     return float(gain[i, j])
-
-
-@functools.lru_cache(maxsize=None)
-def _physics_geometry_cached(model: AntennaModel):
-    return physics_geometry(model)
 
 
 @functools.lru_cache(maxsize=None)

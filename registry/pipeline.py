@@ -67,17 +67,6 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
 
-def summary(fleet: Fleet) -> str:
-    """A few lines saying what the registry holds."""
-    installations = sum(len(aircraft.installations) for aircraft in fleet.aircraft.values())
-    return "\n".join([
-        f"{fleet.operator}: registry is valid",
-        f"  {len(fleet.aircraft)} aircraft, {installations} installations",
-        f"  {len(fleet.airframes)} airframe types, {len(fleet.antennas)} antenna models, "
-        f"{len(fleet.cables)} cables, {len(fleet.services)} services",
-    ])
-
-
 def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None,
           workers: int | None = None, naive: bool = False, progress: Progress = QUIET) -> Path:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.

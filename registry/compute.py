@@ -7,13 +7,12 @@ computed once per distinct content and reused by every installation that shares 
 """
 from __future__ import annotations
 
-import multiprocessing
 from dataclasses import dataclass, replace
 from datetime import date
-from collections.abc import Iterator
 from pathlib import Path
 
 from registry import cache, record
+from registry import workers as workers_
 from registry.diskcache import DiskCache, key_of
 from registry.figures_element import band_figures, ground_plane_figures, length_figures, modelled_vswr
 from registry.figures_feeder import cable_result, feeder_figures, measured_figures
@@ -49,8 +48,11 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
         else:
             parts[aircraft.id] = part
     progress.stage("computing aircraft", len(todo))
+    parts_computed = workers_.ordered_map(
+        lambda aircraft_id: compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of),
+        [aircraft_id for aircraft_id, _ in todo], workers, progress)
     # the generator first, so that zip runs it to its end and its worker pool is closed
-    for part, (aircraft_id, key) in zip(map_aircraft(fleet, as_of, [a for a, _ in todo], workers, progress), todo):
+    for part, (aircraft_id, key) in zip(parts_computed, todo):
         parts[aircraft_id] = part
         if key:
             store.put(key, part)
@@ -112,34 +114,7 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftP
     return part
 
 
-# --- which aircraft need computing, and where --------------------------------------------------------------
-
-_FORKED: tuple[Fleet, date] | None = None
-"""The fleet and date a forked worker computes from (inherited from the parent, never pickled)."""
-
-
-def _compute_forked(aircraft_id: str) -> AircraftPart:
-    fleet, as_of = _FORKED
-    return compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
-
-
-def map_aircraft(fleet: Fleet, as_of: date, aircraft_ids: list[str], workers: int,
-                 progress: Progress = QUIET) -> Iterator[AircraftPart]:
-    """compute_aircraft over the ids, in order; in `workers` forked processes when that pays."""
-    global _FORKED
-    if workers <= 1 or len(aircraft_ids) < 8 or "fork" not in multiprocessing.get_all_start_methods():
-        for aircraft_id in aircraft_ids:
-            yield compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
-            progress.advance()
-        return
-    _FORKED = (fleet, as_of)
-    try:
-        with multiprocessing.get_context("fork").Pool(workers) as pool:
-            for part in pool.imap(_compute_forked, aircraft_ids, chunksize=max(1, len(aircraft_ids) // (workers * 8))):
-                yield part
-                progress.advance()
-    finally:
-        _FORKED = None
+# --- which aircraft need computing -----------------------------------------------------------------------
 
 
 def shared_inputs_key(fleet: Fleet, as_of: date) -> str:

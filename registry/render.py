@@ -12,7 +12,6 @@ import hashlib
 import io
 import json
 import math
-import multiprocessing
 import os
 import re
 import subprocess
@@ -28,6 +27,7 @@ import markdown
 import nh3
 
 from registry import __version__, plots, sitedrawing, sitesearch
+from registry import workers as workers_
 from registry.diff import Comparison, changes_page
 from registry.diskcache import key_of
 from registry.progress import QUIET, Progress
@@ -301,21 +301,6 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
     return site.render(writer, workers, progress)
 
 
-_FORKED_SITE: tuple[Site, Callable[[str, str | bytes], None]] | None = None
-"""The site and writer a forked page worker renders with (inherited from the parent, never pickled)."""
-
-
-def _render_forked(aircraft_id: str) -> tuple[list[str], dict[str, Any] | None]:
-    site, writer = _FORKED_SITE
-    site.files = {}
-    paths = site.aircraft_pages(site.fleet.aircraft[aircraft_id])
-    for path, content in site.files.items():
-        writer(path, content)
-    site.files = {}
-    entry = site.incremental.current.get(aircraft_id) if site.incremental is not None else None
-    return paths, entry
-
-
 class Site:
     """Builds the page contexts and renders them; holds the lookups every page shares."""
 
@@ -464,12 +449,13 @@ class Site:
         self.fleet_page()
         todo = [aircraft for aircraft in self.fleet.aircraft.values() if not self.reuse_pages(aircraft)]
         progress.stage("rendering aircraft", len(todo))
-        if writer is not None and workers > 1 and len(todo) >= 8 and "fork" in multiprocessing.get_all_start_methods():
-            self.render_forked(todo, writer, workers, progress)
-        else:
-            for aircraft in todo:
-                self.aircraft_pages(aircraft)
-                progress.advance()
+        # in worker processes only when their pages can be written from there; the generator first in
+        # zip, so that it is run to its end and its workers are closed
+        entries = workers_.ordered_map(lambda aircraft: self.render_aircraft(aircraft, writer),
+                                       todo, workers if writer else 1, progress)
+        for entry, aircraft in zip(entries, todo):
+            if entry is not None:
+                self.incremental.current[aircraft.id] = entry
         progress.stage("rendering fleet pages", 1)
         self.antenna_pages()
         self.cable_pages()
@@ -509,23 +495,19 @@ class Site:
             self.incremental.current[aircraft.id] = {"key": key, "files": paths}
         return paths
 
-    def render_forked(self, todo: list[Aircraft], writer: Callable[[str, str | bytes], None], workers: int,
-                      progress: Progress) -> None:
-        """Aircraft pages in `workers` forked processes; each writes its files through `writer`."""
-        global _FORKED_SITE
-        _FORKED_SITE = (self, writer)
-        try:
-            with multiprocessing.get_context("fork").Pool(workers) as pool:
-                done = []
-                for result in pool.imap(_render_forked, [aircraft.id for aircraft in todo],
-                                        chunksize=max(1, len(todo) // (workers * 8))):
-                    done.append(result)
-                    progress.advance()
-        finally:
-            _FORKED_SITE = None
-        for aircraft, (paths, entry) in zip(todo, done):
-            if entry is not None:
-                self.incremental.current[aircraft.id] = entry
+    def render_aircraft(self, aircraft: Aircraft, writer: Callable[[str, str | bytes], None] | None
+                        ) -> dict[str, Any] | None:
+        """The aircraft's pages, handed to `writer` (or kept with the site's other files without one);
+        its entry for the next build's reuse. Runs in the parent or in a forked worker alike."""
+        kept, self.files = self.files, {}
+        self.aircraft_pages(aircraft)
+        produced, self.files = self.files, kept
+        if writer is None:
+            self.files.update(produced)
+        else:
+            for path, content in produced.items():
+                writer(path, content)
+        return self.incremental.current.get(aircraft.id) if self.incremental is not None else None
 
     def page_key(self, aircraft: Aircraft) -> str:
         """Key of everything an aircraft's pages show, or "" when its figures' inputs are not keyed."""

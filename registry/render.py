@@ -32,7 +32,7 @@ from registry.diff import Comparison, changes_page
 from registry.diskcache import key_of
 from registry.progress import QUIET, Progress
 from registry.model import Aircraft, Fleet, Installation
-from registry.results import (OPEN_STATES, REVIEW_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
+from registry.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
                               InstallationResult)
 
 TEMPLATE_DIR = Path(__file__).resolve().parent.parent / "site_templates"
@@ -44,7 +44,6 @@ SEVERITY_LABELS = {"blocking": "Blocking", "concern": "Concern", "advisory": "Ad
 STATUS_LABELS = {**SEVERITY_LABELS, "clear": "No open findings"}
 STATE_LABELS = {"open": "Open", "reopened": "Reopened", "accepted": "Accepted",
                 "action-raised": "Action raised", "no-fault": "No fault found"}
-ALL_STATES = OPEN_STATES + REVIEW_STATES
 
 TEMPLATES_KEY = key_of(*(f"{path.relative_to(TEMPLATE_DIR)}:{path.read_text(encoding='utf-8')}"
                          for path in sorted(TEMPLATE_DIR.rglob("*.html"))))

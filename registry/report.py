@@ -8,36 +8,34 @@ from collections import Counter
 from dataclasses import asdict
 
 from registry.model import Fleet
-from registry.results import REVIEW_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
+from registry.results import ALL_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
 
 FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",
           "source", "review", "reviewer", "review_reference", "review_comment")
-STATES = ("open", "reopened") + REVIEW_STATES
+
+
+def matches(craft, services, aircraft: list[str] | None, service: list[str] | None) -> bool:
+    """An aircraft (by id or registration) and the services involved pass the aircraft and service filters."""
+    return ((not aircraft or craft.id in aircraft or craft.registration in aircraft)
+            and (not service or bool(set(services) & set(service))))
 
 
 def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = None,
            service: list[str] | None = None, severity: list[str] | None = None) -> list[Discrepancy]:
     """Discrepancies matching every filter given (aircraft id or registration; service id; severity)."""
-    def service_of(item: Discrepancy) -> set[str]:
-        craft = fleet.aircraft[item.aircraft]
-        return {craft.installations[pos].service for pos in item.position.split("+")}
-
     out = []
     for item in found:
-        if aircraft and item.aircraft not in aircraft and fleet.aircraft[item.aircraft].registration not in aircraft:
-            continue
-        if service and not service_of(item) & set(service):
-            continue
-        if severity and item.severity not in severity:
-            continue
-        out.append(item)
+        craft = fleet.aircraft[item.aircraft]
+        services = [craft.installations[pos].service for pos in item.position.split("+")]
+        if matches(craft, services, aircraft, service) and (not severity or item.severity in severity):
+            out.append(item)
     return out
 
 
 def as_json(found: list[Discrepancy], stale: list, as_of: str) -> str:
     return json.dumps({
         "as_of": as_of,
-        "discrepancies": [{name: asdict(item)[name] for name in FIELDS} for item in found],
+        "discrepancies": [{name: getattr(item, name) for name in FIELDS} for item in found],
         "stale_reviews": [{"discrepancy": review.discrepancy, "state": review.state,
                            "source": f"{review.src.path}:{review.src.line}"} for review in stale],
     }, indent=2, ensure_ascii=False) + "\n"
@@ -57,7 +55,7 @@ def counts_line(found: list[Discrepancy]) -> str:
     by_severity = Counter(item.severity for item in found)
     by_state = Counter(item.review for item in found)
     severities = ", ".join(f"{by_severity[name]} {name}" for name in SEVERITIES)
-    states = ", ".join(f"{by_state[name]} {name}" for name in STATES if by_state[name])
+    states = ", ".join(f"{by_state[name]} {name}" for name in ALL_STATES if by_state[name])
     noun = "discrepancy" if len(found) == 1 else "discrepancies"
     return f"{len(found)} {noun} ({severities}); review: {states or 'none'}"
 
@@ -102,13 +100,9 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
             service: list[str] | None = None) -> str:
     """Every computed figure of every installation and pair, for `check --details`; the aircraft (id or
     registration) and service filters narrow it like the report."""
-    def wanted(craft, services) -> bool:
-        return ((not aircraft or craft.id in aircraft or craft.registration in aircraft)
-                and (not service or bool(set(services) & set(service))))
-
     lines = []
     for craft, installation in fleet.installations():
-        if not wanted(craft, [installation.service]):
+        if not matches(craft, [installation.service], aircraft, service):
             continue
         result = results.installations[(craft.id, installation.position)]
         lines.append(f"{craft.registration} {installation.position} ({installation.service}, {installation.antenna})")
@@ -120,8 +114,8 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
         lines.append("")
     for pair in results.pairs:
         craft = fleet.aircraft[pair.aircraft]
-        if not wanted(craft, [craft.installations[pair.position_a].service,
-                              craft.installations[pair.position_b].service]):
+        if not matches(craft, [craft.installations[pair.position_a].service,
+                               craft.installations[pair.position_b].service], aircraft, service):
             continue
         note = "  (near field: indicative only)" if pair.near_field else ""
         lines.append(f"{craft.registration} {pair.position_a} + {pair.position_b}{note}")

@@ -19,6 +19,8 @@ REVIEW_STATES = ("accepted", "action-raised", "no-fault")
 OPEN_STATES = ("open", "reopened")
 """Derived states: no review yet, or the value changed since the reviewer saw it."""
 
+ALL_STATES = OPEN_STATES + REVIEW_STATES
+
 
 class Figure(NamedTuple):
     """One computed figure with what an auditor needs to follow the arithmetic.

@@ -309,6 +309,7 @@ class Site:
         self.fleet = fleet
         self.comparison = comparison
         self.incremental = incremental
+        self.page_keys: dict[str, str] = {}
         self.plots = plot_store or plots.PlotStore()
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)
         for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
@@ -510,12 +511,16 @@ class Site:
 
     def page_key(self, aircraft: Aircraft) -> str:
         """Key of everything an aircraft's pages show, or "" when its figures' inputs are not keyed."""
+        if aircraft.id in self.page_keys:  # asked when deciding reuse and again after rendering
+            return self.page_keys[aircraft.id]
         figures_key = self.results.aircraft_keys.get(aircraft.id)
         if not figures_key:
             return ""
         reviews = [repr(review) for name, review in self.fleet.reviews.items() if name.startswith(aircraft.id + "/")]
         marks = [self.marks(aircraft.id)] + [self.marks(aircraft.id, p) for p in aircraft.installations]
-        return key_of(figures_key, *reviews, repr(marks), str(self.comparison is not None), TEMPLATES_KEY)
+        key = key_of(figures_key, *reviews, repr(marks), str(self.comparison is not None), TEMPLATES_KEY)
+        self.page_keys[aircraft.id] = key
+        return key
 
     def vswr_plots(self) -> None:
         """Every VSWR plot the installation pages show, once per distinct content."""

@@ -43,7 +43,15 @@ class Watched:
         page.on("console", lambda msg: self.errors.append(f"console {msg.type}: {msg.text} at {msg.location}")
                 if msg.type == "error" else None)
         page.on("pageerror", lambda exc: self.errors.append(f"page error: {exc}"))
-        page.on("requestfailed", lambda req: self.errors.append(f"request failed: {req.url}"))
+        page.on("requestfailed", self._request_failed)
+        page.on("response", lambda res: self.errors.append(f"HTTP {res.status}: {res.url}")
+                if res.status >= 400 else None)
+
+    def _request_failed(self, request) -> None:
+        # A request the browser cancels because the page navigated away (a favicon still loading
+        # when a test clicks on) ends as net::ERR_ABORTED: not a fault of the site. Anything else is.
+        if request.failure != "net::ERR_ABORTED":
+            self.errors.append(f"request failed: {request.url} ({request.failure})")
 
 
 @pytest.fixture

@@ -35,25 +35,37 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
     for cable in fleet.cables.values():
         results.cables[cable.id] = cable_result(cable)
     store = DiskCache(cache_dir, "aircraft")
+    pattern_store = DiskCache(cache_dir, "patterns")
     shared = shared_inputs_key(fleet, as_of) if store.folder is not None else ""
     parts: dict[str, AircraftPart] = {}
+    known: dict[str, PatternResult] = {}  # patterns by content key, each read or computed once
     todo: list[tuple[str, str]] = []
     for aircraft in fleet.aircraft.values():
         key = aircraft_key(aircraft, shared) if shared else ""
         if key:
             results.aircraft_keys[aircraft.id] = key
         part = store.get(key) if key else None
-        if part is None:
-            todo.append((aircraft.id, key))
-        else:
+        if part is not None and all(_known_pattern(pattern_key, known, pattern_store) for pattern_key in part.patterns):
             parts[aircraft.id] = part
+        else:  # not computed before, or a pattern it names has gone from the cache
+            todo.append((aircraft.id, key))
+    sent = set(known)  # patterns the parent has: each process hands back each other pattern once
+
+    def compute_one(aircraft_id: str) -> tuple[AircraftPart, dict[str, PatternResult]]:
+        part, patterns = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
+        fresh = {key: pattern for key, pattern in patterns.items() if key not in sent}
+        sent.update(fresh)
+        return part, fresh
+
     progress.stage("computing aircraft", len(todo))
-    parts_computed = workers_.ordered_map(
-        lambda aircraft_id: compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of),
-        [aircraft_id for aircraft_id, _ in todo], workers, progress)
+    parts_computed = workers_.ordered_map(compute_one, [aircraft_id for aircraft_id, _ in todo], workers, progress)
     # the generator first, so that zip runs it to its end and its worker pool is closed
-    for part, (aircraft_id, key) in zip(parts_computed, todo):
+    for (part, patterns), (aircraft_id, key) in zip(parts_computed, todo):
         parts[aircraft_id] = part
+        for pattern_key, pattern in patterns.items():
+            if pattern_key not in known:
+                known[pattern_key] = pattern
+                pattern_store.put(pattern_key, pattern)
         if key:
             store.put(key, part)
     for aircraft_id in fleet.aircraft:  # merged in id order: the same fleet gives the same results
@@ -62,24 +74,38 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
         results.pairs += part.pairs
         if part.record is not None:
             results.records[aircraft_id] = part.record
-        for key, pattern in part.patterns.items():
-            results.patterns.setdefault(key, pattern)
+        for pattern_key, model_id in part.patterns.items():
+            if pattern_key not in results.patterns:  # named after the first model using it, in id order
+                results.patterns[pattern_key] = replace(known[pattern_key], antenna=model_id)
     return results
 
 
 @dataclass
 class AircraftPart:
-    """What one aircraft contributes to the fleet's results."""
+    """What one aircraft contributes to the fleet's results. Patterns are shared by the whole fleet, so
+    a part names them (content key → the first of its models using it) and they are kept once apart."""
 
     installations: dict[tuple[str, str], InstallationResult]
     pairs: list[PairResult]
-    patterns: dict[str, PatternResult]
+    patterns: dict[str, str]
     record: dict | None = None
 
 
-def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftPart:
-    """Every figure of one aircraft's installations, and the isolation of its pairs."""
+def _known_pattern(key: str, known: dict[str, PatternResult], store: DiskCache) -> bool:
+    """True when the pattern with this content key is in `known`, reading it from `store` if need be."""
+    if key not in known:
+        pattern = store.get(key)
+        if pattern is None:
+            return False
+        known[key] = pattern
+    return True
+
+
+def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[AircraftPart, dict[str, PatternResult]]:
+    """Every figure of one aircraft's installations, and the isolation of its pairs; with the patterns
+    its installations use, by content key."""
     part = AircraftPart({}, [], {})  # record share added at the end
+    patterns: dict[str, PatternResult] = {}
     airframe = fleet.airframe_of(aircraft)
     for installation in aircraft.installations.values():
         service = fleet.services[installation.service]
@@ -98,7 +124,8 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftP
         figures += ground_plane_figures(installation, model, service, material, fleet.policy)
         pattern = cache.pattern(model, service.design_freq_mhz)
         if pattern.key not in part.patterns:  # shared by content: named after the first model using it
-            part.patterns[pattern.key] = replace(pattern, antenna=model.id)
+            part.patterns[pattern.key] = model.id
+            patterns[pattern.key] = pattern
         part.installations[(aircraft.id, installation.position)] = InstallationResult(
             aircraft=aircraft.id,
             position=installation.position,
@@ -111,7 +138,7 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> AircraftP
         )
     part.pairs = pair_results(fleet, aircraft)
     part.record = record.aircraft_record(aircraft, part.installations, part.pairs, Path(fleet.data_dir))
-    return part
+    return part, patterns
 
 
 # --- which aircraft need computing -----------------------------------------------------------------------

@@ -129,9 +129,12 @@ def run(args: argparse.Namespace) -> int:
         default_cache = os.environ.get("AERIALBOOK_CACHE_DIR") or out.parent / ".aerialbook-cache"
         cache_dir = None if args.no_cache or naive else Path(args.cache or default_cache)
         from registry.progress import Progress
-        out_dir = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive,
-                                 progress=Progress(sys.stderr))
-        print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
+        out_dir, written = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive,
+                                          progress=Progress(sys.stderr))
+        if written:
+            print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
+        else:
+            print(f"site in {out_dir} is up to date (same data, tool and options): open {out_dir / 'index.html'}")
         if baseline is not None:
             print(f"changes since {baseline.label}: open {out_dir / 'changes.html'}")
         return EXIT_OK

@@ -9,8 +9,9 @@ import subprocess
 from dataclasses import dataclass
 from datetime import date, datetime, timezone
 from pathlib import Path
+from typing import NamedTuple
 
-from registry import checks, compute, diff, plots, publish, record, render
+from registry import checks, compute, diff, plots, publish, record, render, sitekey
 from registry.load import load_fleet
 from registry.model import Fleet, Review
 from registry.progress import QUIET, Progress
@@ -67,15 +68,29 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
 
+class Published(NamedTuple):
+    """Where a build published its site, and whether it had to: False when the site was up to date."""
+
+    out_dir: Path
+    written: bool
+
+
 def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None,
-          workers: int | None = None, naive: bool = False, progress: Progress = QUIET) -> Path:
+          workers: int | None = None, naive: bool = False, progress: Progress = QUIET) -> Published:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
     The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
-    comparison with it (`changes.html`). `cache_dir` keeps parsed files, computed figures and drawn plots
-    across builds (safe to delete); `workers` processes share the work (default: one per core). `naive`
-    (the benchmark's baseline) keeps nothing and draws every plot for every installation."""
-    outcome = run(data_dir, cache_dir=cache_dir, workers=workers, progress=progress)
+    comparison with it (`changes.html`). A site already built from the same inputs (`sitekey.py`) is
+    left as it is. `cache_dir` keeps parsed files, computed figures and drawn plots across builds (safe to
+    delete); `workers` processes share the work (default: one per core). `naive` (the benchmark's
+    baseline) keeps nothing and draws every plot for every installation."""
+    as_of = as_of_date(data_dir)
+    info = render.build_info(data_dir)
+    key = "" if naive else sitekey.site_key(data_dir, as_of, info, record.dumps(baseline.record)
+                                            if baseline is not None else "", naive)
+    if key and publish.up_to_date(out_dir, key):
+        return Published(out_dir, False)
+    outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress)
     built = record.to_record(outcome)
     comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
                   if baseline is not None else None)
@@ -87,13 +102,13 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
         def write(rel_path: str, content: str | bytes) -> None:
             publish.place(stage, out_dir.resolve(), rel_path, content, render.REUSE)
 
-        pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies,
-                                   render.build_info(data_dir), comparison, plots.PlotStore(cache_dir, naive), incremental,
+        pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
+                                   plots.PlotStore(cache_dir, naive), incremental,
                                    writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
         pages[record.RECORD_NAME] = record.dumps(built)
         for rel_path, content in pages.items():
             write(rel_path, content)
-        publish.write_manifest(stage, {"aircraft": incremental.current})
+        publish.write_manifest(stage, {"aircraft": incremental.current, "site_key": key})
         progress.advance()
         progress.finish()
-    return out_dir
+    return Published(out_dir, True)

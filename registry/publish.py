@@ -30,8 +30,20 @@ def read_manifest(out_dir: Path) -> dict:
     return manifest if isinstance(manifest, dict) else {}
 
 
+def up_to_date(out_dir: Path, site_key: str) -> bool:
+    """True when the site in `out_dir` was built from inputs with this key (`sitekey.site_key`) and every
+    file it was published with is still there: building again would write the same bytes."""
+    manifest = read_manifest(out_dir)
+    files = manifest.get("files")
+    return (bool(site_key) and manifest.get("site_key") == site_key and isinstance(files, list)
+            and all(isinstance(name, str) and (out_dir / name).is_file() for name in files))
+
+
 def write_manifest(stage: Path, manifest: dict) -> None:
-    (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE, **manifest}, sort_keys=True) + "\n")
+    """The marker file, holding `manifest` and the list of every file the stage holds."""
+    files = sorted(os.path.relpath(os.path.join(folder, name), stage).replace(os.sep, "/")
+                   for folder, _, names in os.walk(stage) for name in names if name != MARKER)
+    (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE, **manifest, "files": files}, sort_keys=True) + "\n")
 
 
 def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse: bytes) -> None:

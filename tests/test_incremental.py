@@ -38,8 +38,32 @@ def test_cached_parallel_build_equals_plain_build(tmp_path, reference):
     out = tmp_path / "site"
     pipeline.build(DEMO, out, cache_dir=tmp_path / "cache", workers=2)
     assert tree(out) == reference
-    pipeline.build(DEMO, out, cache_dir=tmp_path / "cache", workers=2)  # everything from the cache
-    assert tree(out) == reference
+    again = tmp_path / "again"  # another folder: everything from the cache, nothing from the first site
+    assert pipeline.build(DEMO, again, cache_dir=tmp_path / "cache", workers=2).written
+    assert tree(again) == reference
+
+
+def test_a_site_built_from_the_same_inputs_is_left_as_it_is(tmp_path):
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    assert pipeline.build(data, out, cache_dir=cache, workers=1).written
+    before = {path: path.stat().st_ino for path in out.rglob("*") if path.is_file()}
+    assert pipeline.build(data, out, cache_dir=cache, workers=1) == (out, False)
+    assert {path: path.stat().st_ino for path in out.rglob("*") if path.is_file()} == before
+
+    # any change to the data builds again: here a review, which changes no figure
+    reviews = data / "reviews.yaml"
+    reviews.write_text(reviews.read_text(encoding="utf-8") + "\n# a comment\n", encoding="utf-8")
+    assert pipeline.build(data, out, cache_dir=cache, workers=1).written
+    # a published file that went missing is put back
+    (out / "aircraft/qx-tca/VHF1.html").unlink()
+    assert pipeline.build(data, out, cache_dir=cache, workers=1).written
+    assert (out / "aircraft/qx-tca/VHF1.html").is_file()
+    # another as-of date (it counts measurement ages) builds again
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setenv("SOURCE_DATE_EPOCH", "1796256000")
+        assert pipeline.build(data, out, cache_dir=cache, workers=1).written
 
 
 def test_unchanged_pages_are_kept_and_a_changed_aircraft_is_rendered_again(tmp_path, reference):

@@ -70,7 +70,7 @@ def test_every_installation_has_a_page_and_a_drawing_marker(demo_site, demo_flee
 
 
 def test_second_build_is_byte_identical(demo_site, demo_data, tmp_path):
-    again = pipeline.build(demo_data, tmp_path / "again")
+    again = pipeline.build(demo_data, tmp_path / "again").out_dir
     first = sorted(p.relative_to(demo_site) for p in demo_site.rglob("*") if p.is_file())
     second = sorted(p.relative_to(again) for p in again.rglob("*") if p.is_file())
     assert first == second

@@ -88,7 +88,7 @@ class AircraftPart:
     installations: dict[tuple[str, str], InstallationResult]
     pairs: list[PairResult]
     patterns: dict[str, str]
-    record: dict | None = None
+    record: record.ShareText | None = None
 
 
 def _known_pattern(key: str, known: dict[str, PatternResult], store: DiskCache) -> bool:
@@ -137,7 +137,8 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Air
             vswr_limit=fleet.policy.vswr_limit_for(service.id),
         )
     part.pairs = pair_results(fleet, aircraft)
-    part.record = record.aircraft_record(aircraft, part.installations, part.pairs, Path(fleet.data_dir))
+    part.record = record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
+                                                           Path(fleet.data_dir)))
     return part, patterns
 
 

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import contextlib
 import gc
+import json
 import os
 import subprocess
 from dataclasses import dataclass
@@ -122,9 +123,9 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
     outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress)
-    built = record.to_record(outcome)
-    comparison = (diff.compare(baseline.record, built, old_label=baseline.label, new_label=f"registry {data_dir}")
-                  if baseline is not None else None)
+    built = record.to_text(outcome)
+    comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
+                               new_label=f"registry {data_dir}") if baseline is not None else None)
     previous = publish.read_manifest(out_dir).get("aircraft", {})
     kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
             if isinstance(entry, dict) and all((out_dir / path).is_file() for path in entry.get("files", ()))}
@@ -136,7 +137,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
         pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
                                    plots.PlotStore(cache_dir, naive), incremental,
                                    writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
-        pages[record.RECORD_NAME] = record.dumps(built)
+        pages[record.RECORD_NAME] = built
         for rel_path, content in pages.items():
             write(rel_path, content)
         publish.write_manifest(stage, {"aircraft": incremental.current, "site_key": key})

@@ -13,10 +13,10 @@ from __future__ import annotations
 import dataclasses
 import json
 import math
-from collections.abc import Mapping
+from collections.abc import Iterable, Mapping
 from datetime import date
 from pathlib import Path
-from typing import Any
+from typing import Any, NamedTuple
 
 from registry import __version__
 from registry.results import Figure
@@ -119,20 +119,43 @@ def aircraft_record(aircraft, installations, pairs, data_dir: Path) -> dict[str,
     }
 
 
+class ShareText(NamedTuple):
+    """One aircraft's share of the record as JSON text, kept with its figures in the cache so that a
+    rebuild does not encode it again: its registry entry (an object), and the members (no braces) of
+    its entries in the record's installation and pair maps."""
+
+    aircraft: str
+    installations: str
+    pairs: str
+
+
+def share_text(share: Mapping[str, Any]) -> ShareText:
+    """`aircraft_record`'s result as JSON text, encoded as `dumps` would."""
+    return ShareText(_json(share["aircraft"]), _json(share["installations"])[1:-1], _json(share["pairs"])[1:-1])
+
+
 def to_record(outcome) -> dict[str, Any]:
-    """The record of one pipeline run (`pipeline.Outcome`) as plain JSON data."""
+    """The record of one pipeline run (`pipeline.Outcome`) as plain JSON data: what `to_text` writes."""
+    return json.loads(to_text(outcome))
+
+
+def to_text(outcome) -> str:
+    """The record of one pipeline run (`pipeline.Outcome`) as the JSON text `dumps` would give.
+
+    Each aircraft's share is taken as text (`ShareText`, made where it was computed) and joined in the
+    order `dumps` sorts keys: registry.aircraft by id, and the installation and pair maps (keys
+    `<aircraft>/...`) by `<aircraft>/`, which orders them as the whole keys would be."""
     fleet, results = outcome.fleet, outcome.results
     data_dir = Path(fleet.data_dir)
-    aircraft, installations, pairs = {}, {}, {}
+    shares: dict[str, ShareText] = {}
     for craft in fleet.aircraft.values():
         share = results.records.get(craft.id)
         if share is None:
-            share = aircraft_record(
+            share = share_text(aircraft_record(
                 craft, {key: result for key, result in results.installations.items() if key[0] == craft.id},
-                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir)
-        aircraft[craft.id] = share["aircraft"]
-        installations.update(share["installations"])
-        pairs.update(share["pairs"])
+                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir))
+        shares[craft.id] = share
+    by_prefix = sorted(shares, key=lambda aircraft_id: aircraft_id + "/")
     patterns = {key: {"antenna": pattern.antenna, "kind": pattern.kind,
                       "freq_mhz": round_sig(pattern.freq_mhz, FIGURE_DIGITS), "metrics": figures(pattern.metrics)}
                 for key, pattern in results.patterns.items()}
@@ -142,30 +165,63 @@ def to_record(outcome) -> dict[str, Any]:
         entry = plain(item, data_dir, FIGURE_DIGITS)
         entry["source"] = relative_src(item.source, data_dir)
         discrepancies[item.id] = entry
-    return {
-        "format_version": FORMAT_VERSION,
-        "generator": {"name": "aerialbook", "version": __version__},
-        "as_of": outcome.as_of.isoformat(),
-        "fleet": {"operator": fleet.operator, "title": fleet.title},
-        "registry": {
-            "aircraft": aircraft,
-            "airframes": {key: plain(value, data_dir) for key, value in fleet.airframes.items()},
-            "antennas": {key: plain(value, data_dir) for key, value in fleet.antennas.items()},
-            "cables": {key: plain(value, data_dir) for key, value in fleet.cables.items()},
-            "services": {key: plain(value, data_dir) for key, value in fleet.services.items()},
-            "policy": plain(fleet.policy, data_dir),
-        },
-        "figures": {"installations": installations, "pairs": pairs, "patterns": patterns, "cables": cables},
-        "discrepancies": discrepancies,
-        "stale_reviews": sorted(({"discrepancy": review.discrepancy, "state": review.state}
-                                 for review in outcome.stale_reviews), key=lambda entry: entry["discrepancy"]),
-    }
+    text = _object({
+        "format_version": _json(FORMAT_VERSION),
+        "generator": _json({"name": "aerialbook", "version": __version__}),
+        "as_of": _json(outcome.as_of.isoformat()),
+        "fleet": _json({"operator": fleet.operator, "title": fleet.title}),
+        "registry": _object({
+            "aircraft": _object({aircraft_id: share.aircraft for aircraft_id, share in shares.items()}),
+            "airframes": _json({key: plain(value, data_dir) for key, value in fleet.airframes.items()}),
+            "antennas": _json({key: plain(value, data_dir) for key, value in fleet.antennas.items()}),
+            "cables": _json({key: plain(value, data_dir) for key, value in fleet.cables.items()}),
+            "services": _json({key: plain(value, data_dir) for key, value in fleet.services.items()}),
+            "policy": _json(plain(fleet.policy, data_dir)),
+        }),
+        "figures": _object({
+            "installations": _joined(shares[aircraft_id].installations for aircraft_id in by_prefix),
+            "pairs": _joined(shares[aircraft_id].pairs for aircraft_id in by_prefix),
+            "patterns": _json(patterns),
+            "cables": _json(cables),
+        }),
+        "discrepancies": _json(discrepancies),
+        "stale_reviews": _json(sorted(({"discrepancy": review.discrepancy, "state": review.state}
+                                       for review in outcome.stale_reviews), key=lambda entry: entry["discrepancy"])),
+    })
+    text.append("\n")
+    return "".join(text)
+
+
+def _json(value: Any) -> str:
+    return json.dumps(value, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
+
+
+Chunks = list[str]
+"""JSON text in pieces, joined once at the end: the record runs to a hundred megabytes at 1,000 aircraft,
+and joining level by level would copy it at every level."""
+
+
+def _object(members: Mapping[str, str | Chunks]) -> Chunks:
+    """A JSON object from already encoded values, keys sorted as `dumps` sorts them."""
+    out = ["{"]
+    for n, key in enumerate(sorted(members)):
+        out.append(("," if n else "") + _json(key) + ":")
+        value = members[key]
+        out += [value] if isinstance(value, str) else value
+    out.append("}")
+    return out
+
+
+def _joined(members: Iterable[str]) -> Chunks:
+    """A JSON object from runs of already encoded, already ordered members ("" for none)."""
+    runs = [run for run in members if run]
+    return ["{", *(run if n == 0 else "," + run for n, run in enumerate(runs)), "}"]
 
 
 def dumps(record: Mapping[str, Any]) -> str:
     """The record as JSON text: sorted keys, compact (the fast encoder), UTF-8 characters kept, a final
     newline. `python -m json.tool record.json` shows it indented."""
-    return json.dumps(record, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False) + "\n"
+    return _json(record) + "\n"
 
 
 def write(record: Mapping[str, Any], path: Path) -> None:

@@ -126,8 +126,8 @@ class FleetResults:
     pairs: list[PairResult] = field(default_factory=list)
     patterns: dict[str, PatternResult] = field(default_factory=dict)
     cables: dict[str, CableResult] = field(default_factory=dict)
-    records: dict[str, dict] = field(default_factory=dict)
-    """Each aircraft's share of the build record (record.aircraft_record), made where it was computed."""
+    records: dict[str, tuple[str, str, str]] = field(default_factory=dict)
+    """Each aircraft's share of the build record as text (record.ShareText), made where it was computed."""
     aircraft_keys: dict[str, str] = field(default_factory=dict)
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
 

@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from registry import integrity, schemacheck
+from registry import workers as workers_
 from registry.diskcache import DiskCache, key_of
 from registry.errors import FILE_FIELD, DataError, Problem, Src, parse_path
 from registry.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
@@ -30,14 +31,16 @@ POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "f
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
 
 
-def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir: Path | None = None) -> Fleet:
+def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir: Path | None = None,
+               workers: int = 1) -> Fleet:
     """Read, validate and cross-check the registry in `data_dir`.
 
     `shipped_dir` holds the package's `services.yaml` and `policy.yaml` (default: `registry/data/`).
     `cache_dir` (optional) keeps each file's parsed and schema-checked form, keyed by its bytes, so an
-    unchanged file is not parsed again. Raises DataError listing every problem, sorted by file and line.
+    unchanged file is not parsed again; the others are parsed in `workers` processes. Raises DataError
+    listing every problem, sorted by file and line.
     """
-    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, DiskCache(cache_dir, "files")).load()
+    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, DiskCache(cache_dir, "files"), workers).load()
 
 
 class _Doc:
@@ -54,31 +57,49 @@ class _Doc:
         return {"src": src, "locator": Locator(self.srcs, parts, src)}
 
 
-def parse(file: Path, kind: str, cache: DiskCache) -> tuple[YamlDoc | None, list[Problem]]:
+Parsed = tuple[YamlDoc | None, list[Problem]]
+
+
+def parse(file: Path, kind: str, cache: DiskCache) -> Parsed:
     """One file read and checked against its schema: the document and its problems, from the cache
     when the same bytes were seen before."""
-    key = None
-    if cache.folder is not None:
-        try:
-            key = key_of(kind, str(file), file.read_bytes())
-        except OSError:
-            key = None  # read_yaml reports it
-    cached = cache.get(key) if key else None
-    if cached is not None:
-        return cached
+    return parse_many([file], kind, cache)[0]
+
+
+def parse_many(files: list[Path], kind: str, cache: DiskCache, workers: int = 1) -> list[Parsed]:
+    """`parse` for each file, in order; files not in the cache are shared out over `workers` processes."""
+    keys: list[str | None] = []
+    found: list[Parsed | None] = []
+    for file in files:
+        key = None
+        if cache.folder is not None:
+            try:
+                key = key_of(kind, str(file), file.read_bytes())
+            except OSError:
+                key = None  # read_yaml reports it
+        keys.append(key)
+        found.append(cache.get(key) if key else None)
+    todo = [n for n, parsed in enumerate(found) if parsed is None]
+    for n, parsed in zip(todo, workers_.ordered_map(lambda n: _parse_fresh(files[n], kind), todo, workers)):
+        found[n] = parsed
+        if keys[n]:
+            cache.put(keys[n], parsed)
+    return found
+
+
+def _parse_fresh(file: Path, kind: str) -> Parsed:
     doc, problems = read_yaml(file, str(file))
     if doc is not None:
         problems = schemacheck.check(doc, kind)
-    if key:
-        cache.put(key, (doc, problems))
     return doc, problems
 
 
 class _Run:
-    def __init__(self, data_dir: Path, shipped_dir: Path, cache: DiskCache):
+    def __init__(self, data_dir: Path, shipped_dir: Path, cache: DiskCache, workers: int = 1):
         self.data_dir = data_dir
         self.shipped_dir = shipped_dir
         self.cache = cache
+        self.workers = workers
         self.problems: list[Problem] = []
 
     def problem(self, file: Path, found: str, expected: str) -> None:
@@ -90,7 +111,9 @@ class _Run:
             if required:
                 self.problem(file, "no such file", f"{file.name} ({kind} file, required)")
             return None
-        doc, problems = parse(file, kind, self.cache)
+        return self.accept(file, *parse(file, kind, self.cache))
+
+    def accept(self, file: Path, doc: YamlDoc | None, problems: list[Problem]) -> _Doc | None:
         self.problems.extend(problems)
         return _Doc(doc, file) if doc is not None and not problems else None
 
@@ -102,7 +125,8 @@ class _Run:
         if not files:
             self.problem(folder, "no .yaml files", f"at least one {name}/<id>.yaml file")
             return [None]  # like a file that failed: references into this folder cannot be checked
-        return [self.read(file, kind) for file in files]
+        parsed = parse_many(files, kind, self.cache, self.workers)
+        return [self.accept(file, doc, problems) for file, (doc, problems) in zip(files, parsed)]
 
     def load(self) -> Fleet:
         if not self.data_dir.is_dir():

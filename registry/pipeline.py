@@ -32,9 +32,9 @@ class Outcome:
     stale_reviews: list[Review]
 
 
-def load(data_dir: Path, cache_dir: Path | None = None) -> Fleet:
+def load(data_dir: Path, cache_dir: Path | None = None, workers: int = 1) -> Fleet:
     """Load and validate the registry; raises DataError with every problem found."""
-    return load_fleet(data_dir, cache_dir=cache_dir)
+    return load_fleet(data_dir, cache_dir=cache_dir, workers=workers)
 
 
 def as_of_date(data_dir: Path) -> date:
@@ -64,10 +64,11 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     `workers` processes share the computation (default: one per core)."""
     with collector_paused():
         progress.stage("reading the registry", 1)
-        fleet = load(data_dir, cache_dir)
+        workers = workers or os.cpu_count() or 1
+        fleet = load(data_dir, cache_dir, workers)
         progress.advance()
         as_of = as_of or as_of_date(data_dir)
-        results = compute.compute_fleet(fleet, as_of, cache_dir, workers or os.cpu_count() or 1, progress)
+        results = compute.compute_fleet(fleet, as_of, cache_dir, workers, progress)
         found = checks.check_fleet(fleet, results)
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 

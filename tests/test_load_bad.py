@@ -306,3 +306,21 @@ def test_one_changed_value_gives_only_data_errors(scratch, data):
         parent = parent[part]
     parent[path[-1]] = data.draw(documents)
     load_with(scratch, target, yaml.safe_dump(document).encode("utf-8"))
+
+
+@pytest.mark.parametrize("flaw", ["syntax_error", "unknown_service", "wrong_type", "duplicate_registration"])
+def test_files_parsed_in_worker_processes_report_the_same_problems(tmp_path, flaw):
+    # enough aircraft files that the loader shares parsing out over processes (workers.MIN_ITEMS)
+    data = make_registry(tmp_path, flaw)
+    source = (FIXTURES / "good" / "aircraft" / "qx-fcb.yaml").read_text(encoding="utf-8")
+    for n in range(8):
+        (data / "aircraft" / f"qx-fx{n}.yaml").write_text(
+            source.replace("id: qx-fcb", f"id: qx-fx{n}").replace("registration: QX-FCB", f"registration: QX-FX{n}"),
+            encoding="utf-8")
+    reported = []
+    for workers in (1, 2):
+        with pytest.raises(DataError) as caught:
+            load_fleet(data, SHIPPED, workers=workers)
+        reported.append([str(problem) for problem in caught.value.problems])
+    assert reported[0] == reported[1]
+    assert reported[0]  # the flaw is reported at all

@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import Iterator, NamedTuple
 
 from registry import checks, compute, diff, plots, publish, record, render, sitekey
+from registry.diskcache import DiskCache
 from registry.load import load_fleet
 from registry.model import Fleet, Review
 from registry.progress import QUIET, Progress
@@ -130,7 +131,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
     previous = publish.read_manifest(out_dir).get("aircraft", {})
     kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
             if isinstance(entry, dict) and all((out_dir / path).is_file() for path in entry.get("files", ()))}
-    incremental = render.Incremental({} if naive else kept, {})
+    incremental = render.Incremental({} if naive else kept, {}, DiskCache(None if naive else cache_dir, "pieces"))
     with publish.staging_dir(out_dir) as stage, collector_skips_what_exists():
         def write(rel_path: str, content: str | bytes) -> None:
             publish.place(stage, out_dir.resolve(), rel_path, content, render.REUSE)

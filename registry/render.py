@@ -16,20 +16,21 @@ import os
 import re
 import subprocess
 from collections import Counter, defaultdict
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from pathlib import Path
 from collections.abc import Callable
-from typing import Any, Iterable
+from typing import Any, Iterable, NamedTuple
 
 import jinja2
+from markupsafe import Markup
 import markdown
 import nh3
 
 from registry import __version__, plots, sitedrawing, sitesearch
 from registry import workers as workers_
 from registry.diff import Comparison, changes_page
-from registry.diskcache import key_of
+from registry.diskcache import DiskCache, key_of
 from registry.progress import QUIET, Progress
 from registry.model import Aircraft, Fleet, Installation
 from registry.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
@@ -225,6 +226,15 @@ def cable_path(cable_id: str) -> str:
     return f"cables/{cable_id}.html"
 
 
+def service_href(service_id: str) -> str:
+    return f"services.html#svc-{anchor(service_id)}"
+
+
+SEARCH_PATHS = {"aircraft": aircraft_path, "installation": installation_path, "antenna": antenna_path,
+                "cable": cable_path, "service": service_href}
+"""Where the search index points for each kind of thing."""
+
+
 def pattern_plot_path(key: str) -> str:
     return f"plots/pattern/{safe_name(key)}.svg"
 
@@ -281,6 +291,21 @@ class Incremental:
 
     previous: dict[str, dict[str, Any]]
     current: dict[str, dict[str, Any]]
+    pieces: DiskCache = field(default_factory=lambda: DiskCache(None, "pieces"))
+    """Each aircraft's `AircraftPieces` by page key, kept across builds with its pages."""
+
+
+class AircraftPieces(NamedTuple):
+    """What one aircraft adds to the fleet-wide pages, made when its own pages are rendered and kept with
+    them, so that an aircraft whose pages are reused adds its share without being rendered again.
+
+    `uses` maps "antenna/<id>" and "cable/<id>" to (installations, rows of the "where used" table);
+    `service_links` maps a service id to (installations, links on the services page); `search` holds
+    the search-index entries of the aircraft and its installations."""
+
+    uses: dict[str, tuple[int, str]]
+    service_links: dict[str, tuple[int, str]]
+    search: tuple[dict[str, str], ...]
 
 
 def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Discrepancy],
@@ -310,6 +335,7 @@ class Site:
         self.comparison = comparison
         self.incremental = incremental
         self.page_keys: dict[str, str] = {}
+        self.pieces: dict[str, AircraftPieces] = {}
         self.plots = plot_store or plots.PlotStore()
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)
         for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
@@ -332,11 +358,6 @@ class Site:
         for item in self.discrepancies:
             for position in item.position.split("+"):
                 self.by_position[(item.aircraft, position)].append(item)
-        self.usage: dict[str, list[tuple[Aircraft, Installation]]] = defaultdict(list)
-        self.cable_usage: dict[str, list[tuple[Aircraft, Installation]]] = defaultdict(list)
-        for aircraft, installation in fleet.installations():
-            self.usage[installation.antenna].append((aircraft, installation))
-            self.cable_usage[installation.feeder.cable].append((aircraft, installation))
 
     # -- helpers --
 
@@ -453,9 +474,11 @@ class Site:
         # zip, so that it is run to its end and its workers are closed
         entries = workers_.ordered_map(lambda aircraft: self.render_aircraft(aircraft, writer),
                                        todo, workers if writer else 1, progress)
-        for entry, aircraft in zip(entries, todo):
+        for (entry, pieces), aircraft in zip(entries, todo):
+            self.pieces[aircraft.id] = pieces
             if entry is not None:
                 self.incremental.current[aircraft.id] = entry
+                self.incremental.pieces.put(entry["key"], pieces)
         progress.stage("rendering fleet pages", 1)
         self.antenna_pages()
         self.cable_pages()
@@ -478,6 +501,10 @@ class Site:
         before = self.incremental.previous.get(aircraft.id)
         if not key or not before or before.get("key") != key:
             return False
+        pieces = self.incremental.pieces.get(key)
+        if not isinstance(pieces, AircraftPieces):
+            return False
+        self.pieces[aircraft.id] = pieces
         for path in before["files"]:
             self.files[path] = REUSE
         self.incremental.current[aircraft.id] = before
@@ -496,9 +523,10 @@ class Site:
         return paths
 
     def render_aircraft(self, aircraft: Aircraft, writer: Callable[[str, str | bytes], None] | None
-                        ) -> dict[str, Any] | None:
+                        ) -> tuple[dict[str, Any] | None, AircraftPieces]:
         """The aircraft's pages, handed to `writer` (or kept with the site's other files without one);
-        its entry for the next build's reuse. Runs in the parent or in a forked worker alike."""
+        its entry for the next build's reuse and its pieces of the fleet-wide pages. Runs in the parent
+        or in a forked worker alike."""
         kept, self.files = self.files, {}
         self.aircraft_pages(aircraft)
         produced, self.files = self.files, kept
@@ -507,7 +535,30 @@ class Site:
         else:
             for path, content in produced.items():
                 writer(path, content)
-        return self.incremental.current.get(aircraft.id) if self.incremental is not None else None
+        entry = self.incremental.current.get(aircraft.id) if self.incremental is not None else None
+        return entry, self.aircraft_pieces(aircraft)
+
+    def aircraft_pieces(self, aircraft: Aircraft) -> AircraftPieces:
+        macros = self.env.get_template("partials/use_rows.html").module
+        rows: dict[str, list[str]] = defaultdict(list)
+        links: dict[str, list[str]] = defaultdict(list)
+        for installation in aircraft.installations.values():
+            row = self.installation_row(aircraft, installation)
+            html = str(macros.use_row(row, "../"))  # catalogue pages sit one folder down
+            rows[f"antenna/{installation.antenna}"].append(html)
+            rows[f"cable/{installation.feeder.cable}"].append(html)
+            links[installation.service].append(str(macros.service_link(row, "")))
+        return AircraftPieces(
+            uses={key: (len(items), "\n".join(items)) for key, items in rows.items()},
+            service_links={key: (len(items), ", ".join(items)) for key, items in links.items()},
+            search=tuple(sitesearch.aircraft_entries(self.fleet, aircraft, plain_text, SEARCH_PATHS)))
+
+    def joined_uses(self, key: str) -> tuple[int, Markup]:
+        """Installations and "where used" rows of catalogue entry `key` ("antenna/<id>", "cable/<id>"),
+        in fleet order."""
+        found = [self.pieces[aircraft_id].uses[key] for aircraft_id in self.fleet.aircraft
+                 if key in self.pieces[aircraft_id].uses]
+        return sum(count for count, _ in found), Markup("\n".join(html for _, html in found))
 
     def page_key(self, aircraft: Aircraft) -> str:
         """Key of everything an aircraft's pages show, or "" when its figures' inputs are not keyed."""
@@ -627,7 +678,7 @@ class Site:
                   zone=zone, groups=self.figure_groups(figures), computed=result is not None,
                   pattern=pattern, vswr=vswr, breakdown=breakdown, pairs=pairs,
                   discrepancies=[self.discrepancy_view(d) for d in items],
-                  notes=jinja2.utils.markupsafe.Markup(notes_html(installation.notes)),
+                  notes=Markup(notes_html(installation.notes)),
                   src=self.model_src(installation),
                   sweep_name=installation.measured.sweep.name if installation.measured and installation.measured.sweep else "")
 
@@ -641,13 +692,13 @@ class Site:
     def antenna_pages(self) -> None:
         rows = []
         for model in self.fleet.antennas.values():
-            uses = self.usage.get(model.id, [])
+            uses_count, uses_rows = self.joined_uses(f"antenna/{model.id}")
             patterns = sorted((self.results.patterns[key] for key in self.model_patterns.get(model.id, ())),
                               key=lambda p: (p.freq_mhz, p.key))
             rows.append({"id": model.id, "href": antenna_path(model.id), "description": model.description,
                          "kind": model.kind.replace("_", " "), "polarisation": model.polarisation,
                          "impedance": fmt(model.impedance_ohm, "Ω"), "rated_vswr": fmt(model.rated_vswr),
-                         "bands": bands_text(model.bands_mhz), "uses": len(uses)})
+                         "bands": bands_text(model.bands_mhz), "uses": uses_count})
             self.page(antenna_path(model.id), "antenna.html", "antennas", model.id,
                       [("Antennas", "antennas.html"), (model.id, None)],
                       model=model, kind=model.kind.replace("_", " "), bands=bands_text(model.bands_mhz),
@@ -655,13 +706,13 @@ class Site:
                       patterns=[{"src": pattern_plot_path(p.key), "alt": self.pattern_alts.get(p.key, ""),
                                  "freq": fmt(p.freq_mhz, "MHz"), "figures": [self.figure_view(f) for f in p.metrics]}
                                 for p in patterns],
-                      uses=[self.installation_row(a, i) for a, i in uses], src=self.model_src(model))
+                      uses_count=uses_count, uses_rows=uses_rows, src=self.model_src(model))
         self.page("antennas.html", "antennas.html", "antennas", "Antenna models", [], models=rows)
 
     def cable_pages(self) -> None:
         rows = []
         for cable in self.fleet.cables.values():
-            uses = self.cable_usage.get(cable.id, [])
+            uses_count, uses_rows = self.joined_uses(f"cable/{cable.id}")
             result = self.results.cables.get(cable.id)
             plot = None
             if result is not None:
@@ -672,26 +723,27 @@ class Site:
                 plot = {"src": cable_plot_path(cable.id), "alt": drawn.alt}
             rows.append({"id": cable.id, "href": cable_path(cable.id), "designation": cable.designation,
                          "impedance": fmt(cable.impedance_ohm, "Ω"), "vf": fmt(cable.velocity_factor),
-                         "max_freq": fmt(cable.max_freq_mhz, "MHz"), "uses": len(uses)})
+                         "max_freq": fmt(cable.max_freq_mhz, "MHz"), "uses": uses_count})
             self.page(cable_path(cable.id), "cable.html", "cables", cable.id,
                       [("Cables", "cables.html"), (cable.id, None)],
                       cable=cable, table=[(exact(f), fmt(a)) for f, a in cable.attenuation_db_per_100m],
                       declared=("per 100 ft in the registry, shown per 100 m"
                                 if cable.declared_unit == "db_per_100ft" else "per 100 m"),
                       plot=plot, figures=[self.figure_view(f) for f in result.figures] if result else [],
-                      uses=[self.installation_row(a, i) for a, i in uses], src=self.model_src(cable))
+                      uses_count=uses_count, uses_rows=uses_rows, src=self.model_src(cable))
         self.page("cables.html", "cables.html", "cables", "Cables", [], cables=rows)
 
     def services_page(self) -> None:
         groups = []
         rows = []
         services = sorted(self.fleet.services.values(), key=lambda s: (min(b[0] for b in s.bands_mhz), s.id))
-        installs_by_service: dict[str, list[tuple[Aircraft, Installation]]] = defaultdict(list)
-        for aircraft, installation in self.fleet.installations():
-            installs_by_service[installation.service].append((aircraft, installation))
+        models_by_service: dict[str, set[str]] = defaultdict(set)
+        for _, installation in self.fleet.installations():
+            models_by_service[installation.service].add(installation.antenna)
         for service in services:
-            uses = installs_by_service.get(service.id, [])
-            model_ids = sorted({i.antenna for _, i in uses})
+            found = [self.pieces[aircraft_id].service_links[service.id] for aircraft_id in self.fleet.aircraft
+                     if service.id in self.pieces[aircraft_id].service_links]
+            model_ids = sorted(models_by_service.get(service.id, ()))
             antennas = []
             for model_id in model_ids:
                 model = self.fleet.antennas.get(model_id)
@@ -702,9 +754,9 @@ class Site:
                                  antenna_path(model.id), model.bands_mhz, covers))
             groups.append((service.name, service.id, f"#svc-{anchor(service.id)}", service.bands_mhz, antennas))
             rows.append({"service": service, "anchor": f"svc-{anchor(service.id)}", "bands": bands_text(service.bands_mhz),
-                         "design": fmt(service.design_freq_mhz, "MHz"), "uses": len(uses),
+                         "design": fmt(service.design_freq_mhz, "MHz"), "uses": sum(count for count, _ in found),
                          "models": [(m, antenna_path(m)) for m in model_ids],
-                         "installs": [self.installation_row(a, i) for a, i in uses]})
+                         "links": Markup(", ".join(links for _, links in found))})
         chart = sitedrawing.band_chart(groups)
         self.page("services.html", "services.html", "services", "Services and bands", [], chart=chart, services=rows)
 
@@ -763,9 +815,10 @@ class Site:
                   groups=groups, checks=check_rows, policy=policy_rows(self.fleet, self.src_text))
 
     def search_page(self) -> None:
-        entries = sitesearch.build_entries(self.fleet, plain_text, {
-            "aircraft": aircraft_path, "installation": installation_path, "antenna": antenna_path,
-            "cable": cable_path, "service": lambda sid: f"services.html#svc-{anchor(sid)}"})
+        entries = sitesearch.catalogue_entries(self.fleet, SEARCH_PATHS)
+        for aircraft_id in self.fleet.aircraft:
+            entries += self.pieces[aircraft_id].search
+        entries.sort(key=sitesearch.order)
         self.files["static/search-index.js"] = sitesearch.index_script(entries)
         self.page("search.html", "search.html", "search", "Search", [], count=len(entries))
 

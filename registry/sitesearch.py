@@ -9,7 +9,7 @@ from __future__ import annotations
 import json
 from typing import Callable
 
-from registry.model import Fleet
+from registry.model import Aircraft, Fleet
 
 Paths = dict[str, Callable[..., str]]
 
@@ -25,32 +25,41 @@ def entry(kind: str, title: str, url: str, keys: list[str], text: list[str]) -> 
     }
 
 
-def build_entries(fleet: Fleet, plain_text: Callable[[str], str],
-                  paths: Paths) -> list[dict[str, str]]:
-    """Every searchable thing in the fleet, sorted by kind then title."""
-    entries = []
-    for aircraft in fleet.aircraft.values():
-        airframe = fleet.airframes.get(aircraft.airframe)
+def order(item: dict[str, str]) -> tuple[str, str, str]:
+    """The index's order: by kind, then title, then address."""
+    return item["kind"], item["title"], item["url"]
+
+
+def aircraft_entries(fleet: Fleet, aircraft: Aircraft, plain_text: Callable[[str], str],
+                     paths: Paths) -> list[dict[str, str]]:
+    """The entries of one aircraft and its installations (notes as plain words)."""
+    airframe = fleet.airframes.get(aircraft.airframe)
+    entries = [entry(
+        "aircraft", aircraft.registration, paths["aircraft"](aircraft.id),
+        [aircraft.id, aircraft.registration, aircraft.airframe, aircraft.serial or ""],
+        [airframe.name if airframe else aircraft.airframe,
+         f"serial {aircraft.serial}" if aircraft.serial else "",
+         f"{len(aircraft.installations)} installations",
+         *(f"{mod.ref}: {mod.summary}" for mod in aircraft.modifications)])]
+    for installation in aircraft.installations.values():
+        service = fleet.services.get(installation.service)
+        model = fleet.antennas.get(installation.antenna)
         entries.append(entry(
-            "aircraft", aircraft.registration, paths["aircraft"](aircraft.id),
-            [aircraft.id, aircraft.registration, aircraft.airframe, aircraft.serial or ""],
-            [airframe.name if airframe else aircraft.airframe,
-             f"serial {aircraft.serial}" if aircraft.serial else "",
-             f"{len(aircraft.installations)} installations",
-             *(f"{mod.ref}: {mod.summary}" for mod in aircraft.modifications)]))
-        for installation in aircraft.installations.values():
-            service = fleet.services.get(installation.service)
-            model = fleet.antennas.get(installation.antenna)
-            entries.append(entry(
-                "installation", f"{aircraft.registration} {installation.position}",
-                paths["installation"](aircraft.id, installation.position),
-                [installation.position, aircraft.registration, aircraft.id, installation.antenna,
-                 installation.feeder.cable, installation.service],
-                [service.name if service else installation.service,
-                 f"{installation.antenna} {model.description if model else ''}".strip(),
-                 f"{installation.surface.replace('_', ' ')} surface",
-                 f"feeder {installation.feeder.cable}",
-                 plain_text(installation.notes)]))
+            "installation", f"{aircraft.registration} {installation.position}",
+            paths["installation"](aircraft.id, installation.position),
+            [installation.position, aircraft.registration, aircraft.id, installation.antenna,
+             installation.feeder.cable, installation.service],
+            [service.name if service else installation.service,
+             f"{installation.antenna} {model.description if model else ''}".strip(),
+             f"{installation.surface.replace('_', ' ')} surface",
+             f"feeder {installation.feeder.cable}",
+             plain_text(installation.notes)]))
+    return entries
+
+
+def catalogue_entries(fleet: Fleet, paths: Paths) -> list[dict[str, str]]:
+    """The entries of the antenna models, cables and services."""
+    entries = []
     for model in fleet.antennas.values():
         entries.append(entry("antenna model", model.id, paths["antenna"](model.id), [model.id],
                              [model.description, model.kind.replace("_", " "), f"{model.polarisation} polarisation"]))
@@ -60,7 +69,7 @@ def build_entries(fleet: Fleet, plain_text: Callable[[str], str],
     for service in fleet.services.values():
         entries.append(entry("service", service.name, paths["service"](service.id), [service.id],
                              [service.group, service.coverage.replace("_", " "), service.source]))
-    return sorted(entries, key=lambda e: (e["kind"], e["title"], e["url"]))
+    return entries
 
 
 def index_script(entries: list[dict[str, str]]) -> str:

@@ -75,29 +75,20 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
 
 
 @contextlib.contextmanager
-def collector_skips_what_exists() -> Iterator[None]:
-    """Every object alive now (the loaded registry, its figures) left out of the cycle collector's walks
-    until the block ends (gc.freeze): rendering makes short-lived garbage the collector must still
-    find, without walking the fleet's figures each time. Forked workers also share those pages."""
-    gc.freeze()
-    try:
-        yield
-    finally:
-        gc.unfreeze()
-
-
-@contextlib.contextmanager
 def collector_paused() -> Iterator[None]:
-    """Python's cycle collector paused while a stage makes millions of long-lived objects.
+    """Python's cycle collector paused while a stage makes millions of long-lived objects, which are
+    then left out of its walks (gc.freeze).
 
-    Loading and computing build plain records that all survive to the end of the build; the collector
-    would walk the growing heap again and again for no garbage (at 1,000 aircraft it took two thirds of
-    a rebuild). Whatever cycles these stages leave are collected once the collector runs again."""
+    Loading and computing build plain records that all survive to the end of the build: the collector
+    would walk the growing heap again and again for no garbage (at 1,000 aircraft that was two thirds
+    of a rebuild), and walk it all once more when switched back on. Frozen objects are still freed when
+    no longer used; `build` hands them back to the collector (gc.unfreeze) when it ends."""
     enabled = gc.isenabled()
     gc.disable()
     try:
         yield
     finally:
+        gc.freeze()
         if enabled:
             gc.enable()
 
@@ -124,25 +115,30 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
                                             if baseline is not None else "", naive)
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
-    outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress)
-    built = record.to_text(outcome)
-    comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
-                               new_label=f"registry {data_dir}") if baseline is not None else None)
-    previous = publish.read_manifest(out_dir).get("aircraft", {})
-    kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
-            if isinstance(entry, dict) and all((out_dir / path).is_file() for path in entry.get("files", ()))}
-    incremental = render.Incremental({} if naive else kept, {}, DiskCache(None if naive else cache_dir, "pieces"))
-    with publish.staging_dir(out_dir) as stage, collector_skips_what_exists():
-        def write(rel_path: str, content: str | bytes) -> None:
-            publish.place(stage, out_dir.resolve(), rel_path, content, render.REUSE)
+    try:
+        outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress)
+        built = record.to_text(outcome)
+        comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
+                                   new_label=f"registry {data_dir}") if baseline is not None else None)
+        previous = publish.read_manifest(out_dir).get("aircraft", {})
+        kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
+                if isinstance(entry, dict) and all((out_dir / path).is_file() for path in entry.get("files", ()))}
+        incremental = render.Incremental({} if naive else kept, {}, DiskCache(None if naive else cache_dir, "pieces"))
+        with publish.staging_dir(out_dir) as stage:
+            target = out_dir.resolve()
 
-        pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
-                                   plots.PlotStore(cache_dir, naive), incremental,
-                                   writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
-        pages[record.RECORD_NAME] = built
-        for rel_path, content in pages.items():
-            write(rel_path, content)
-        publish.write_manifest(stage, {"aircraft": incremental.current, "site_key": key})
-        progress.advance()
-        progress.finish()
+            def write(rel_path: str, content: str | bytes) -> None:
+                publish.place(stage, target, rel_path, content, render.REUSE)
+
+            pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
+                                       plots.PlotStore(cache_dir, naive), incremental,
+                                       writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
+            pages[record.RECORD_NAME] = built
+            for rel_path, content in pages.items():
+                write(rel_path, content)
+            publish.write_manifest(stage, {"aircraft": incremental.current, "site_key": key})
+            progress.advance()
+            progress.finish()
+    finally:
+        gc.unfreeze()  # what `run` froze goes back to the collector (`collector_paused`)
     return Published(out_dir, True)

@@ -54,7 +54,7 @@ def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse
     target.parent.mkdir(parents=True, exist_ok=True)
     old = out_dir / rel_path
     data = content.encode("utf-8") if isinstance(content, str) else content
-    if data is reuse or (old.is_file() and old.stat().st_size == len(data) and old.read_bytes() == data):
+    if data is reuse or same_content(old, data):
         try:
             os.link(old, target)
             return
@@ -63,6 +63,22 @@ def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse
                 shutil.copyfile(old, target)
                 return
     target.write_bytes(data)
+
+
+def same_content(path: Path, data: bytes, block: int = 1 << 20) -> bool:
+    """True when the file at `path` holds exactly `data`; read a block at a time, since the build record
+    runs to a hundred megabytes and reading it whole would double what the build holds in memory."""
+    try:
+        if path.stat().st_size != len(data):
+            return False
+        view = memoryview(data)
+        with open(path, "rb") as handle:
+            for start in range(0, len(data), block):
+                if handle.read(block) != view[start:start + block]:
+                    return False
+        return True
+    except OSError:
+        return False
 
 
 class PublishError(Exception):

@@ -336,6 +336,7 @@ class Site:
         self.incremental = incremental
         self.page_keys: dict[str, str] = {}
         self.pieces: dict[str, AircraftPieces] = {}
+        self.figure_cells: dict[Figure, Markup] = {}
         self.plots = plot_store or plots.PlotStore()
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)
         for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
@@ -349,6 +350,7 @@ class Site:
         self.results = results
         self.build = build
         self.env = environment()
+        self.figure_macros = self.env.get_template("partials/figures.html").module
         self.files: dict[str, str | bytes] = {}
         self.pattern_alts: dict[str, str] = {}
         self.data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
@@ -388,13 +390,24 @@ class Site:
         """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
         return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
 
-    def figure_view(self, figure: Figure) -> dict[str, Any]:
-        return {
-            "key": figure.key, "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value),
-            "unit": figure.unit, "formula": figure.formula,
-            "inputs": tuple((name, value) for name, value in figure.inputs),
-            "source": figure.source, "src": self.src_text(figure.src) if figure.src else "",
-        }
+    def figure_view(self, figure: Figure) -> tuple[Markup, str]:
+        """A figure's row in a figure table: its cells up to the registry line (rendered once per
+        distinct figure in this process), and its registry line."""
+        plain = figure._replace(src="")
+        try:
+            cells = self.figure_cells.get(plain)
+        except TypeError:  # a value that cannot be hashed: rendered, not remembered
+            plain, cells = None, None
+        if cells is None:
+            if len(self.figure_cells) > 50_000:  # bounded: a fleet's figures recur, but not all of them
+                self.figure_cells.clear()
+            cells = Markup(self.figure_macros.figure_cells({
+                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value),
+                "unit": figure.unit, "formula": figure.formula,
+                "inputs": tuple((name, value) for name, value in figure.inputs), "source": figure.source}))
+            if plain is not None:
+                self.figure_cells[plain] = cells
+        return cells, self.src_text(figure.src) if figure.src else ""
 
     def figure_groups(self, figures: Iterable[Figure]) -> list[dict[str, Any]]:
         groups: dict[str, list[Figure]] = defaultdict(list)

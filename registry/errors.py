@@ -13,7 +13,7 @@ FILE_FIELD = "(file)"
 """The field path of a problem with the file as a whole (syntax, encoding, size, empty file)."""
 
 
-@dataclass(frozen=True, order=True)
+@dataclass(frozen=True, order=True, slots=True)
 class Src:
     """Where something came from: a file and a 1-based line and column."""
 
@@ -25,7 +25,7 @@ class Src:
         return f"{self.path}:{self.line}:{self.column}"
 
 
-@dataclass(frozen=True, order=True)
+@dataclass(frozen=True, order=True, slots=True)
 class Problem:
     """One thing wrong with the registry, with the place it was found.
 

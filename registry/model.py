@@ -57,6 +57,8 @@ def freeze(value: Any) -> Any:
 class Locator:
     """Finds where a field of one object sits: `index` maps path tuples to positions, `prefix` is the object's."""
 
+    __slots__ = ("index", "prefix", "fallback")
+
     def __init__(self, index: Mapping[tuple[str | int, ...], Src], prefix: tuple[str | int, ...], fallback: Src):
         self.index = index
         self.prefix = prefix
@@ -76,7 +78,7 @@ class Locator:
         return format_path(self.prefix + parse_path(field_path))
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Sourced:
     """Base of every model object: where it came from."""
 
@@ -95,7 +97,7 @@ class Sourced:
 # --- aircraft -------------------------------------------------------------------------------------------
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Location(Sourced):
     """Body-axis position in the airframe's coord_unit: station, buttline (+ right), waterline."""
 
@@ -104,7 +106,7 @@ class Location(Sourced):
     wl: float
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class GroundPlane(Sourced):
     """`skin`, `plate` (with `radius_m`) or `none`."""
 
@@ -112,7 +114,7 @@ class GroundPlane(Sourced):
     radius_m: float | None = None
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Feeder(Sourced):
     cable: str
     length_m: float
@@ -120,7 +122,7 @@ class Feeder(Sourced):
     adapters: int = 0
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Measured(Sourced):
     """The last measurement. `sweep` is the Touchstone file's path (joined onto the data folder)."""
 
@@ -129,7 +131,7 @@ class Measured(Sourced):
     sweep: Path | None = None
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Installation(Sourced):
     position: str
     service: str
@@ -144,14 +146,14 @@ class Installation(Sourced):
     notes: str = ""
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Modification(Sourced):
     ref: str
     date: date
     summary: str
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Aircraft(Sourced):
     """One aircraft; `installations` maps position id to installation, in sorted position order."""
 
@@ -166,7 +168,7 @@ class Aircraft(Sourced):
 # --- airframe types -------------------------------------------------------------------------------------
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Fuselage(Sourced):
     nose_sta: float
     tail_sta: float
@@ -175,7 +177,7 @@ class Fuselage(Sourced):
     centreline_wl: float
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Wing(Sourced):
     root_le_sta: float
     root_chord: float
@@ -183,7 +185,7 @@ class Wing(Sourced):
     sweep_deg: float
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Fin(Sourced):
     root_le_sta: float
     root_chord: float
@@ -191,7 +193,7 @@ class Fin(Sourced):
     sweep_deg: float
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Zone(Sourced):
     """Skin material over stations [sta_from, sta_to); `surfaces` empty means every surface."""
 
@@ -205,7 +207,7 @@ class Zone(Sourced):
         return self.sta_from <= sta < self.sta_to and (not self.surfaces or surface in self.surfaces)
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Airframe(Sourced):
     id: str
     name: str
@@ -230,7 +232,7 @@ class Airframe(Sourced):
 # --- catalogues -----------------------------------------------------------------------------------------
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class AntennaModel(Sourced):
     """An antenna model; `geometry` holds the kind's keys (lengths in metres) as a read-only mapping."""
 
@@ -244,7 +246,7 @@ class AntennaModel(Sourced):
     description: str = ""
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Cable(Sourced):
     """A cable type. `attenuation_db_per_100m` is always per 100 m; `declared_unit` says what the file used
     (`db_per_100m` or `db_per_100ft`)."""
@@ -258,7 +260,7 @@ class Cable(Sourced):
     designation: str = ""
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Service(Sourced):
     """A radio service; `design_freq_mhz` is the declared one or the centre of the first band.
     `shipped` is true when the entry comes from the package's table rather than the fleet's file."""
@@ -275,13 +277,13 @@ class Service(Sourced):
     shipped: bool = False
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class IsolationRule(Sourced):
     services: tuple[str, str]
     isolation_db: float
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Policy(Sourced):
     """Thresholds the checks use: the shipped defaults with the fleet's overrides applied.
     `where(key)` points into whichever file the key's value came from."""
@@ -309,7 +311,7 @@ class Policy(Sourced):
         return next((rule for rule in self.min_isolation_db if tuple(sorted(rule.services)) == pair), None)
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Review(Sourced):
     """An auditor's disposition of one discrepancy (`<aircraft>/<position>[+<position>]/<rule>`)."""
 
@@ -334,7 +336,7 @@ class Review(Sourced):
         return self.discrepancy.split("/")[2]
 
 
-@dataclass(frozen=True, kw_only=True)
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Fleet(Sourced):
     """The whole registry. Every mapping is keyed by id and iterates in sorted id order;
     `reviews` is keyed by discrepancy id."""

@@ -118,6 +118,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
     try:
         outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress)
         built = record.to_text(outcome)
+        outcome.results.records.clear()  # joined into `built`: not held twice
         comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
                                    new_label=f"registry {data_dir}") if baseline is not None else None)
         previous = publish.read_manifest(out_dir).get("aircraft", {})
@@ -130,10 +131,11 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
             def write(rel_path: str, content: str | bytes) -> None:
                 publish.place(stage, target, rel_path, content, render.REUSE)
 
+            write(record.RECORD_NAME, built)  # first, and then let go: 100 MB and more for a large fleet
+            del built
             pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
                                        plots.PlotStore(cache_dir, naive), incremental,
                                        writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
-            pages[record.RECORD_NAME] = built
             for rel_path, content in pages.items():
                 write(rel_path, content)
             publish.write_manifest(stage, {"aircraft": incremental.current, "site_key": key})

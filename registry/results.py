@@ -41,7 +41,7 @@ class Figure(NamedTuple):
     src: str = ""
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Curve:
     """A sampled curve, x and y as float arrays of equal length, with axis labels carrying units."""
 
@@ -51,7 +51,7 @@ class Curve:
     y_label: str
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class PatternResult:
     """A radiation pattern computed once per (antenna model content, frequency).
 
@@ -71,6 +71,8 @@ class PatternResult:
 class WithFigures:
     """Lookup of a figure by key, for records holding `figures`."""
 
+    __slots__ = ()
+
     figures: tuple[Figure, ...]
 
     def figure(self, key: str) -> Figure | None:
@@ -81,7 +83,7 @@ class WithFigures:
         return None
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class InstallationResult(WithFigures):
     """Everything computed for one installation."""
 
@@ -96,7 +98,7 @@ class InstallationResult(WithFigures):
 
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class PairResult(WithFigures):
     """Isolation between two installations on one aircraft (positions in sorted order)."""
 
@@ -108,7 +110,7 @@ class PairResult(WithFigures):
 
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class CableResult:
     """A cable's attenuation table, its a·√f + b·f fit and the fit's residual."""
 
@@ -132,7 +134,7 @@ class FleetResults:
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Discrepancy:
     """One problem found by a rule; `id` is `<aircraft>/<position>/<rule>` and never depends on order."""
 

@@ -50,7 +50,7 @@ _CONTEXTS = {
 }
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Placed:
     """Where one value sits: its key (for a mapping member), the value itself, and the scalar as written."""
 
@@ -64,7 +64,7 @@ class Placed:
         return self.key or self.value
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class YamlDoc:
     """A parsed file: `data` as plain Python, `index` from a path tuple to where that value sits."""
 

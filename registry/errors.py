@@ -7,15 +7,15 @@ A problem prints gcc style, so editors and CI make it clickable:
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Iterable
+from typing import Iterable, NamedTuple
 
 FILE_FIELD = "(file)"
 """The field path of a problem with the file as a whole (syntax, encoding, size, empty file)."""
 
 
-@dataclass(frozen=True, order=True, slots=True)
-class Src:
-    """Where something came from: a file and a 1-based line and column."""
+class Src(NamedTuple):
+    """Where something came from: a file and a 1-based line and column. A named tuple: a registry has
+    a position for every value, and tuples are the cheapest to keep in the cache and read back."""
 
     path: str
     line: int

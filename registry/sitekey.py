@@ -2,13 +2,16 @@
 
 A build whose key equals the one recorded in the published site's marker file would write exactly the
 same files (builds are reproducible), so it leaves the site as it is. The key covers every file under the
-data folder (hidden ones such as .git aside), the tool's own code, data and templates, the as-of date,
-the build information shown in the footer, the compared build's record and the naive flag.
+data folder (hidden ones such as .git aside), the tool's own code, data and templates, the versions of
+Python and of the libraries that shape the output, the as-of date, the build information shown in the
+footer, the compared build's record and the naive flag.
 """
 from __future__ import annotations
 
 import functools
+import sys
 from datetime import date
+from importlib import metadata
 from pathlib import Path
 
 from registry.diskcache import key_of
@@ -36,10 +39,25 @@ def _content_parts(folder: Path) -> list[str | bytes]:
     return parts
 
 
+LIBRARIES = ("jinja2", "markdown", "matplotlib", "nh3", "numpy", "pyyaml", "scipy", "jsonschema")
+"""Libraries whose version can change what a page or plot looks like."""
+
+
+def _library_versions() -> list[str]:
+    versions = [sys.version]
+    for name in LIBRARIES:
+        try:
+            versions.append(f"{name} {metadata.version(name)}")
+        except metadata.PackageNotFoundError:
+            versions.append(f"{name} absent")
+    return versions
+
+
 @functools.lru_cache(maxsize=1)
 def code_key() -> str:
-    """Key of the tool itself: its modules, schemas, shipped data and the site templates."""
-    return key_of(*_content_parts(PACKAGE_DIR), *_content_parts(TEMPLATE_DIR))
+    """Key of the tool itself: its modules, schemas, shipped data and the site templates, the Python
+    version and the versions of the libraries that shape the output."""
+    return key_of(*_library_versions(), *_content_parts(PACKAGE_DIR), *_content_parts(TEMPLATE_DIR))
 
 
 def site_key(data_dir: Path, as_of: date, build_info: object, baseline_text: str, naive: bool) -> str:

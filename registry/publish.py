@@ -35,24 +35,29 @@ def up_to_date(out_dir: Path, site_key: str) -> bool:
     file it was published with is still there: building again would write the same bytes."""
     manifest = read_manifest(out_dir)
     files = manifest.get("files")
+    folder = str(out_dir)
     return (bool(site_key) and manifest.get("site_key") == site_key and isinstance(files, list)
-            and all(isinstance(name, str) and (out_dir / name).is_file() for name in files))
+            and all(isinstance(name, str) and os.path.isfile(os.path.join(folder, name)) for name in files))
 
 
 def write_manifest(stage: Path, manifest: dict) -> None:
     """The marker file, holding `manifest` and the list of every file the stage holds."""
-    files = sorted(os.path.relpath(os.path.join(folder, name), stage).replace(os.sep, "/")
-                   for folder, _, names in os.walk(stage) for name in names if name != MARKER)
+    root = str(stage).rstrip(os.sep) + os.sep
+    files = sorted((os.path.join(folder, name)[len(root):]).replace(os.sep, "/")
+                   for folder, _, names in os.walk(root) for name in names if name != MARKER)
     (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE, **manifest, "files": files}, sort_keys=True) + "\n")
 
 
 def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse: bytes) -> None:
     """Put one file of the new site into `stage`: a hard link to the previous site's file when it is to be
     kept as it is (`content is reuse`) or is byte-identical, else freshly written. Unchanged files thus
-    keep their inode and modification time."""
-    target = stage / rel_path
-    target.parent.mkdir(parents=True, exist_ok=True)
-    old = out_dir / rel_path
+    keep their inode and modification time. Plain string paths: a large site has tens of thousands."""
+    target = os.path.join(stage, rel_path)
+    folder = os.path.dirname(target)
+    if folder not in _MADE:
+        os.makedirs(folder, exist_ok=True)
+        _MADE.add(folder)
+    old = os.path.join(out_dir, rel_path)
     data = content.encode("utf-8") if isinstance(content, str) else content
     if data is reuse or same_content(old, data):
         try:
@@ -62,14 +67,19 @@ def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse
             if data is reuse:
                 shutil.copyfile(old, target)
                 return
-    target.write_bytes(data)
+    with open(target, "wb") as out:
+        out.write(data)
 
 
-def same_content(path: Path, data: bytes, block: int = 1 << 20) -> bool:
+_MADE: set[str] = set()
+"""Folders `place` has made in this process for the current stage (cleared for each new stage)."""
+
+
+def same_content(path: Path | str, data: bytes, block: int = 1 << 20) -> bool:
     """True when the file at `path` holds exactly `data`; read a block at a time, since the build record
     runs to a hundred megabytes and reading it whole would double what the build holds in memory."""
     try:
-        if path.stat().st_size != len(data):
+        if os.stat(path).st_size != len(data):
             return False
         view = memoryview(data)
         with open(path, "rb") as handle:
@@ -120,6 +130,7 @@ def staging_dir(out_dir: Path) -> Iterator[Path]:
     with target_lock(out_dir):
         check_target(out_dir)
         stage = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.build-", dir=out_dir.parent))
+        _MADE.clear()
         try:
             yield stage
             if not (stage / MARKER).exists():

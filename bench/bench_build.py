@@ -52,7 +52,8 @@ class Run:
     exit_code: int | None
     cpu_seconds: float | None         # user + system time of the child and its waited-for descendants
     max_rss_mb: float | None          # largest single process (child or a waited-for descendant)
-    tree_peak_mb: float | None        # sampled peak of the child's whole process tree, summed
+    tree_peak_mb: float | None        # sampled peak of the child's whole process tree, RSS summed
+    tree_pss_mb: float | None = None  # the same, PSS summed (shared pages counted once in all)
     timed_out: bool = False
     log_tail: str = ""
 
@@ -82,9 +83,13 @@ class SizeResult:
 # ---- running one measured child --------------------------------------------------------------------------
 
 
-def tree_rss_bytes(pid: int) -> int:
-    """RSS of `pid` and all its descendants (Linux /proc; 0 where unreadable)."""
-    total, stack, seen = 0, [pid], set()
+def tree_memory_bytes(pid: int) -> tuple[int, int]:
+    """RSS and PSS of `pid` and all its descendants, summed (Linux /proc; 0 where unreadable).
+
+    Forked workers share their parent's pages until they write to them: summed RSS counts a shared page
+    once per process, summed PSS (proportional set size) shares it out, so it is what the tree really
+    holds in memory."""
+    rss, pss, stack, seen = 0, 0, [pid], set()
     while stack:
         current = stack.pop()
         if current in seen:
@@ -92,13 +97,18 @@ def tree_rss_bytes(pid: int) -> int:
         seen.add(current)
         try:
             with open(f"/proc/{current}/statm") as statm:
-                total += int(statm.read().split()[1]) * PAGE
+                rss += int(statm.read().split()[1]) * PAGE
+            try:
+                with open(f"/proc/{current}/smaps_rollup") as rollup:
+                    pss += next(int(line.split()[1]) * 1024 for line in rollup if line.startswith("Pss:"))
+            except (OSError, StopIteration):
+                pass
             for task in os.listdir(f"/proc/{current}/task"):
                 with open(f"/proc/{current}/task/{task}/children") as children:
                     stack.extend(int(child) for child in children.read().split())
         except (OSError, ValueError):
             continue
-    return total
+    return rss, pss
 
 
 def run_measured(command: list[str], env: dict[str, str], timeout: float | None, log: Path) -> Run:
@@ -108,13 +118,15 @@ def run_measured(command: list[str], env: dict[str, str], timeout: float | None,
         start = time.perf_counter()
         child = subprocess.Popen(command, cwd=ROOT, env=env, stdout=out, stderr=subprocess.STDOUT,
                                  start_new_session=True)
-    peak = [0]
+    peak, peak_pss = [0], [0]
     timed_out = threading.Event()
     done = threading.Event()
 
     def watch() -> None:
         while not done.wait(0.1):
-            peak[0] = max(peak[0], tree_rss_bytes(child.pid))
+            rss, pss = tree_memory_bytes(child.pid)
+            peak[0] = max(peak[0], rss)
+            peak_pss[0] = max(peak_pss[0], pss)
             if timeout is not None and time.perf_counter() - start > timeout:
                 timed_out.set()
                 try:
@@ -133,10 +145,10 @@ def run_measured(command: list[str], env: dict[str, str], timeout: float | None,
     tail = "\n".join(log.read_text(encoding="utf-8", errors="replace").splitlines()[-15:])
     if timed_out.is_set():  # the memory seen until the kill is still worth knowing
         return Run(None, None, None, None, round(peak[0] / 2**20, 1) if peak[0] else None,
-                   timed_out=True, log_tail=tail)
+                   round(peak_pss[0] / 2**20, 1) if peak_pss[0] else None, timed_out=True, log_tail=tail)
     return Run(round(seconds, 3), child.returncode, round(usage.ru_utime + usage.ru_stime, 3),
-               round(usage.ru_maxrss / 1024, 1),
-               round(peak[0] / 2**20, 1) if peak[0] else None, log_tail=tail)
+               round(usage.ru_maxrss / 1024, 1), round(peak[0] / 2**20, 1) if peak[0] else None,
+               round(peak_pss[0] / 2**20, 1) if peak_pss[0] else None, log_tail=tail)
 
 
 # ---- the steps -------------------------------------------------------------------------------------------
@@ -236,17 +248,18 @@ def fmt(value, spec: str = ".2f") -> str:
 def table(results: list[SizeResult], stage: str) -> str:
     head = (f"{'aircraft':>8} {'install.':>8} {'cold s':>8} {'cold cpu':>8} {'nochg s':>8} {'1chg s':>8} "
             f"{'maxrss MB':>9} "
-            f"{'tree MB':>8} {'site MB':>8} {'files':>7} {'ms/inst':>8}")
+            f"{'tree MB':>8} {'tree PSS':>8} {'site MB':>8} {'files':>7} {'ms/inst':>8}")
     lines = [f"stage: {stage}", head, "-" * len(head)]
     for r in results:
         runs = [run for run in (r.cold, r.no_change, r.one_changed) if run]
         rss = max((run.max_rss_mb for run in runs if run.max_rss_mb), default=None)
         tree = max((run.tree_peak_mb for run in runs if run.tree_peak_mb), default=None)
+        pss = max((run.tree_pss_mb for run in runs if run.tree_pss_mb), default=None)
         lines.append(
             f"{r.aircraft:>8} {r.installations:>8} {fmt(r.cold and r.cold.seconds):>8} "
             f"{fmt(r.cold and r.cold.cpu_seconds):>8} "
             f"{fmt(r.no_change and r.no_change.seconds):>8} {fmt(r.one_changed and r.one_changed.seconds):>8} "
-            f"{fmt(rss, '.0f'):>9} {fmt(tree, '.0f'):>8} "
+            f"{fmt(rss, '.0f'):>9} {fmt(tree, '.0f'):>8} {fmt(pss, '.0f'):>8} "
             f"{fmt(r.site_bytes and r.site_bytes / 1e6, '.1f'):>8} {fmt(r.site_files, 'd'):>7} "
             f"{fmt(r.ms_per_installation, '.1f'):>8}")
         if r.error:

@@ -37,15 +37,35 @@ an engineer must judge it, `advisory` when the record needs attention."""
 
 
 def check_fleet(fleet: Fleet, results: FleetResults) -> list[Discrepancy]:
-    """Every discrepancy of the fleet, sorted by id, with the reviews applied."""
+    """Every discrepancy of the fleet, sorted by id, with the reviews applied.
+
+    The rules run over each aircraft where it is computed (`aircraft_discrepancies`, kept in its
+    summary and cached with its figures); an aircraft computed without them is checked here."""
     found: list[Discrepancy] = []
-    for aircraft, installation in fleet.installations():
-        result = results.installations[(aircraft.id, installation.position)]
-        found += installation_discrepancies(fleet, aircraft, installation, result)
-    for pair in results.pairs:
-        found += pair_discrepancies(fleet, pair)
+    for aircraft in fleet.aircraft.values():
+        summary = results.summaries.get(aircraft.id)
+        if summary is not None and summary.findings is not None:
+            found += summary.findings
+            continue
+        results.load([aircraft.id])
+        found += aircraft_discrepancies(
+            fleet, aircraft, {key: results.installations[key] for key in
+                              ((aircraft.id, position) for position in aircraft.installations)},
+            [pair for pair in results.pairs if pair.aircraft == aircraft.id])
     found.sort(key=lambda item: item.id)
     return apply_reviews(found, fleet.reviews)
+
+
+def aircraft_discrepancies(fleet: Fleet, aircraft: Aircraft, installations: dict[tuple[str, str], InstallationResult],
+                           pairs: list) -> list[Discrepancy]:
+    """Every rule over one aircraft's figures: its installations' and its pairs' (no reviews applied)."""
+    found: list[Discrepancy] = []
+    for installation in aircraft.installations.values():
+        found += installation_discrepancies(fleet, aircraft, installation,
+                                            installations[(aircraft.id, installation.position)])
+    for pair in pairs:
+        found += pair_discrepancies(fleet, pair)
+    return found
 
 
 def make(rule: str, aircraft: str, position: str, value, limit, unit: str, message: str,

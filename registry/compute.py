@@ -7,6 +7,8 @@ computed once per distinct content and reused by every installation that shares 
 """
 from __future__ import annotations
 
+from collections import Counter
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
@@ -20,23 +22,32 @@ from registry.figures_pair import pair_results
 from registry.load import SHIPPED_DIR
 from registry.model import Aircraft, Fleet
 from registry.progress import QUIET, Progress
-from registry.results import Figure, FleetResults, InstallationResult, PairResult, PatternResult
+from registry.results import (AircraftSummary, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
+                              PatternResult)
+
+
+Assess = Callable[[Fleet, Aircraft, dict[tuple[str, str], InstallationResult], list[PairResult]], list[Discrepancy]]
+"""The rules over one aircraft's figures (checks.aircraft_discrepancies), run where it is computed."""
 
 
 def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, workers: int = 1,
-                  progress: Progress = QUIET) -> FleetResults:
+                  progress: Progress = QUIET, assess: Assess | None = None, lazy: bool = False) -> FleetResults:
     """All figures of the fleet. `as_of` is the date measurement ages are counted to.
 
     Each aircraft is computed on its own (its installations and its pairs depend on nothing of the other
     aircraft), so an aircraft whose inputs are unchanged is taken from `cache_dir` and the others are
     shared out over `workers` processes. The result is the same whichever path each aircraft took.
+    `assess` runs the rules over each computed aircraft (its findings go into its summary). With `lazy`,
+    an unchanged aircraft contributes its summary only; its full figures stay in the cache until
+    `FleetResults.load` asks for them.
     """
     results = FleetResults()
     for cable in fleet.cables.values():
         results.cables[cable.id] = cable_result(cable)
-    store = DiskCache(cache_dir, "aircraft")
+    part_store = DiskCache(cache_dir, "aircraft")
+    summary_store = DiskCache(cache_dir, "summaries")
     pattern_store = DiskCache(cache_dir, "patterns")
-    shared = shared_inputs_key(fleet, as_of) if store.folder is not None else ""
+    shared = shared_inputs_key(fleet, as_of) if part_store.folder is not None else ""
     parts: dict[str, AircraftPart] = {}
     known: dict[str, PatternResult] = {}  # patterns by content key, each read or computed once
     todo: list[tuple[str, str]] = []
@@ -44,51 +55,87 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
         key = aircraft_key(aircraft, shared) if shared else ""
         if key:
             results.aircraft_keys[aircraft.id] = key
-        part = store.get(key) if key else None
-        if part is not None and all(_known_pattern(pattern_key, known, pattern_store) for pattern_key in part.patterns):
-            parts[aircraft.id] = part
-        else:  # not computed before, or a pattern it names has gone from the cache
+        summary = summary_store.get(key) if key else None
+        usable = (isinstance(summary, AircraftSummary) and (assess is None or summary.findings is not None)
+                  and all(_known_pattern(pattern_key, known, pattern_store)
+                          for pattern_key in set(summary.pattern_of.values()) if pattern_key))
+        part = part_store.get(key) if usable and not lazy else None
+        if not usable or (part is None and not lazy):  # not computed before, or gone from the cache
             todo.append((aircraft.id, key))
+            continue
+        results.summaries[aircraft.id] = summary
+        if part is None:
+            results.unloaded.add(aircraft.id)
+        else:
+            parts[aircraft.id] = part
     sent = set(known)  # patterns the parent has: each process hands back each other pattern once
 
-    def compute_one(aircraft_id: str) -> tuple[AircraftPart, dict[str, PatternResult]]:
-        part, patterns = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
+    def compute_one(aircraft_id: str) -> tuple[AircraftPart, AircraftSummary, dict[str, PatternResult]]:
+        aircraft = fleet.aircraft[aircraft_id]
+        part, patterns = compute_aircraft(fleet, aircraft, as_of)
         fresh = {key: pattern for key, pattern in patterns.items() if key not in sent}
         sent.update(fresh)
-        return part, fresh
+        return part, summarise(fleet, aircraft, part, assess), fresh
 
     progress.stage("computing aircraft", len(todo))
     parts_computed = workers_.ordered_map(compute_one, [aircraft_id for aircraft_id, _ in todo], workers, progress)
     # the generator first, so that zip runs it to its end and its worker pool is closed
-    for (part, patterns), (aircraft_id, key) in zip(parts_computed, todo):
+    for (part, summary, patterns), (aircraft_id, key) in zip(parts_computed, todo):
         parts[aircraft_id] = part
+        results.summaries[aircraft_id] = summary
         for pattern_key, pattern in patterns.items():
             if pattern_key not in known:
                 known[pattern_key] = pattern
                 pattern_store.put(pattern_key, pattern)
         if key:
-            store.put(key, part)
-    for aircraft_id in fleet.aircraft:  # merged in id order: the same fleet gives the same results
-        part = parts[aircraft_id]
-        results.installations.update(part.installations)
-        results.pairs += part.pairs
-        if part.record is not None:
-            results.records[aircraft_id] = part.record
-        for pattern_key, model_id in part.patterns.items():
-            if pattern_key not in results.patterns:  # named after the first model using it, in id order
-                results.patterns[pattern_key] = replace(known[pattern_key], antenna=model_id)
+            part_store.put(key, part)
+            summary_store.put(key, summary)
+    for aircraft_id, aircraft in fleet.aircraft.items():  # merged in id order: the same fleet, the same results
+        summary = results.summaries[aircraft_id]
+        if summary.record is not None:  # the record text is kept once, apart
+            results.records[aircraft_id] = summary.record
+            results.summaries[aircraft_id] = summary._replace(record=None)
+        if aircraft_id in parts:
+            results.installations.update(parts[aircraft_id].installations)
+            results.pairs += parts[aircraft_id].pairs
+        for position, installation in aircraft.installations.items():
+            pattern_key = summary.pattern_of.get(position)
+            if pattern_key and pattern_key not in results.patterns:  # named after the first model using it
+                results.patterns[pattern_key] = replace(known[pattern_key], antenna=installation.antenna)
+
+    def load(aircraft_ids: list[str]) -> None:
+        for aircraft_id in aircraft_ids:
+            part = part_store.get(results.aircraft_keys.get(aircraft_id, ""))
+            if part is None:  # gone from the cache since: computed again, here
+                part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
+            results.installations.update(part.installations)
+            results.pairs += part.pairs
+            results.unloaded.discard(aircraft_id)
+
+    results.loader = load
     return results
 
 
 @dataclass
 class AircraftPart:
-    """What one aircraft contributes to the fleet's results. Patterns are shared by the whole fleet, so
-    a part names them (content key → the first of its models using it) and they are kept once apart."""
+    """One aircraft's full figures: its installations' and its pairs'. Patterns are shared by the whole
+    fleet and kept once apart; the summary (`AircraftSummary`) names them."""
 
     installations: dict[tuple[str, str], InstallationResult]
     pairs: list[PairResult]
-    patterns: dict[str, str]
-    record: record.ShareText | None = None
+
+
+def summarise(fleet: Fleet, aircraft: Aircraft, part: AircraftPart, assess: Assess | None) -> AircraftSummary:
+    """What the fleet-wide stages need of one computed aircraft (`AircraftSummary`)."""
+    uses: Counter = Counter((f.key, f.label, f.unit, f.formula, f.source, "installation")
+                            for result in part.installations.values() for f in result.figures)
+    uses.update((f.key, f.label, f.unit, f.formula, f.source, "pair") for pair in part.pairs for f in pair.figures)
+    return AircraftSummary(
+        pattern_of={position: result.pattern_key for (_, position), result in part.installations.items()},
+        findings=None if assess is None else tuple(assess(fleet, aircraft, part.installations, part.pairs)),
+        figure_uses=dict(uses),
+        record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
+                                                        Path(fleet.data_dir))))
 
 
 def _known_pattern(key: str, known: dict[str, PatternResult], store: DiskCache) -> bool:
@@ -104,7 +151,7 @@ def _known_pattern(key: str, known: dict[str, PatternResult], store: DiskCache) 
 def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[AircraftPart, dict[str, PatternResult]]:
     """Every figure of one aircraft's installations, and the isolation of its pairs; with the patterns
     its installations use, by content key."""
-    part = AircraftPart({}, [], {})  # record share added at the end
+    part = AircraftPart({}, [])
     patterns: dict[str, PatternResult] = {}
     airframe = fleet.airframe_of(aircraft)
     for installation in aircraft.installations.values():
@@ -123,9 +170,7 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Air
         figures += feeder_figures(installation, model, service, cable, fleet.policy, figures)
         figures += ground_plane_figures(installation, model, service, material, fleet.policy)
         pattern = cache.pattern(model, service.design_freq_mhz)
-        if pattern.key not in part.patterns:  # shared by content: named after the first model using it
-            part.patterns[pattern.key] = model.id
-            patterns[pattern.key] = pattern
+        patterns.setdefault(pattern.key, pattern)
         part.installations[(aircraft.id, installation.position)] = InstallationResult(
             aircraft=aircraft.id,
             position=installation.position,
@@ -137,8 +182,6 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Air
             vswr_limit=fleet.policy.vswr_limit_for(service.id),
         )
     part.pairs = pair_results(fleet, aircraft)
-    part.record = record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
-                                                           Path(fleet.data_dir)))
     return part, patterns
 
 

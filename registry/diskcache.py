@@ -17,7 +17,7 @@ from typing import Any
 
 from registry import __version__
 
-FORMAT = "7"
+FORMAT = "8"
 """Bumped when what the cache holds changes shape, so an old entry is never read as a new one."""
 
 

@@ -57,19 +57,22 @@ def as_of_date(data_dir: Path) -> date:
 
 
 def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None,
-        workers: int | None = None, progress: Progress = QUIET) -> Outcome:
+        workers: int | None = None, progress: Progress = QUIET, lazy: bool = False) -> Outcome:
     """Load, compute and check: every figure and every discrepancy of the registry.
 
     `as_of` overrides the date measurement ages are counted to (`build.py diff` computes both sides
     of a comparison as of one date). `cache_dir` keeps what depends only on content between runs;
-    `workers` processes share the computation (default: one per core)."""
+    `workers` processes share the computation (default: one per core). With `lazy`, the full figures
+    of an aircraft unchanged since the cache last saw it stay there until a page needs them
+    (`FleetResults.load`); its summary stands in for them."""
     with collector_paused():
         progress.stage("reading the registry", 1)
         workers = workers or os.cpu_count() or 1
         fleet = load(data_dir, cache_dir, workers)
         progress.advance()
         as_of = as_of or as_of_date(data_dir)
-        results = compute.compute_fleet(fleet, as_of, cache_dir, workers, progress)
+        results = compute.compute_fleet(fleet, as_of, cache_dir, workers, progress,
+                                        assess=checks.aircraft_discrepancies, lazy=lazy)
         found = checks.check_fleet(fleet, results)
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
@@ -116,7 +119,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
     try:
-        outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress)
+        outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress, lazy=True)
         built = record.to_text(outcome)
         outcome.results.records.clear()  # joined into `built`: not held twice
         comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,

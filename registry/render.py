@@ -338,15 +338,12 @@ class Site:
         self.pieces: dict[str, AircraftPieces] = {}
         self.figure_cells: dict[Figure, Markup] = {}
         self.plots = plot_store or plots.PlotStore()
-        self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)
-        for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
-            self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
-            self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
+        self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)  # filled once the figures are loaded
         self.model_patterns: dict[str, set[str]] = defaultdict(set)
-        for (aircraft_id, position), result in results.installations.items():
-            if result.pattern_key:
-                model_id = fleet.aircraft[aircraft_id].installations[position].antenna
-                self.model_patterns[model_id].add(result.pattern_key)
+        for aircraft, installation in fleet.installations():
+            pattern_key = pattern_of(results, aircraft.id, installation.position)
+            if pattern_key:
+                self.model_patterns[installation.antenna].add(pattern_key)
         self.results = results
         self.build = build
         self.env = environment()
@@ -479,9 +476,13 @@ class Site:
             if path.is_file():
                 self.files[f"static/{path.relative_to(STATIC_DIR).as_posix()}"] = path.read_bytes()
         self.pattern_plots()
-        self.vswr_plots()
         self.fleet_page()
         todo = [aircraft for aircraft in self.fleet.aircraft.values() if not self.reuse_pages(aircraft)]
+        self.results.load(aircraft.id for aircraft in todo)  # full figures only for the pages rendered
+        for pair in sorted(self.results.pairs, key=lambda p: (p.position_a, p.position_b)):
+            self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
+            self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
+        self.vswr_plots()
         progress.stage("rendering aircraft", len(todo))
         # in worker processes only when their pages can be written from there; the generator first in
         # zip, so that it is run to its end and its workers are closed
@@ -527,9 +528,15 @@ class Site:
         """Render the aircraft's page and its installations' pages; their paths."""
         paths = [aircraft_path(aircraft.id)]
         self.aircraft_page(aircraft)
+        plot_paths = set()
         for installation in aircraft.installations.values():
             self.installation_page(aircraft, installation)
             paths.append(installation_path(aircraft.id, installation.position))
+            result = self.results.installations.get((aircraft.id, installation.position))
+            key = plots.vswr_key(result) if result is not None else None
+            if key is not None:
+                plot_paths.add(vswr_plot_path(key))
+        paths += sorted(plot_paths)  # shared by content, but kept with each aircraft that shows them
         key = self.page_key(aircraft)
         if self.incremental is not None and key:
             self.incremental.current[aircraft.id] = {"key": key, "files": paths}
@@ -587,7 +594,8 @@ class Site:
         return key
 
     def vswr_plots(self) -> None:
-        """Every VSWR plot the installation pages show, once per distinct content."""
+        """Every VSWR plot the rendered installation pages show, once per distinct content (a reused
+        aircraft's plots are among its reused files)."""
         for (aircraft_id, position), result in sorted(self.results.installations.items()):
             key = plots.vswr_key(result)
             if key is not None and (vswr_plot_path(key) not in self.files or self.plots.naive):
@@ -791,10 +799,16 @@ class Site:
 
     def methods_page(self) -> None:
         tally: Counter = Counter()  # (key, label, unit, formula, source, where) -> uses: one pass, no per-figure calls
-        tally.update((f.key, f.label, f.unit, f.formula, f.source, "installation")
-                     for result in self.results.installations.values() for f in result.figures)
-        tally.update((f.key, f.label, f.unit, f.formula, f.source, "pair")
-                     for pair in self.results.pairs for f in pair.figures)
+        for aircraft in self.fleet.aircraft.values():
+            summary = self.results.summaries.get(aircraft.id)
+            if summary is not None:
+                tally.update(summary.figure_uses)
+                continue
+            tally.update((f.key, f.label, f.unit, f.formula, f.source, "installation")
+                         for (aircraft_id, _), result in self.results.installations.items()
+                         if aircraft_id == aircraft.id for f in result.figures)
+            tally.update((f.key, f.label, f.unit, f.formula, f.source, "pair")
+                         for pair in self.results.pairs if pair.aircraft == aircraft.id for f in pair.figures)
         tally.update((f.key, f.label, f.unit, f.formula, f.source, "pattern")
                      for pattern in self.results.patterns.values() for f in pattern.metrics)
         tally.update((f.key, f.label, f.unit, f.formula, f.source, "cable")
@@ -837,6 +851,15 @@ class Site:
 
 
 # ---- small pieces --------------------------------------------------------------------------------------
+
+
+def pattern_of(results: FleetResults, aircraft_id: str, position: str) -> str | None:
+    """Content key of an installation's pattern, from its aircraft's summary or its full figures."""
+    summary = results.summaries.get(aircraft_id)
+    if summary is not None:
+        return summary.pattern_of.get(position)
+    result = results.installations.get((aircraft_id, position))
+    return result.pattern_key if result is not None else None
 
 
 def fmt_figure(figure: Figure | None) -> str:

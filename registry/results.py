@@ -6,6 +6,7 @@ reports read these and never call the physics themselves.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from collections.abc import Callable, Iterable
 from typing import NamedTuple
 
 import numpy as np
@@ -120,18 +121,50 @@ class CableResult:
     figures: tuple[Figure, ...]
 
 
+FigureUse = tuple[str, str, str, str, str, str]
+"""(key, label, unit, formula, source, where): one kind of figure as the methods page lists it."""
+
+
+class AircraftSummary(NamedTuple):
+    """What the fleet-wide stages need of one aircraft, kept apart from its full figures so that a
+    rebuild reads back only this for an aircraft whose pages it does not render again.
+
+    `pattern_of` maps each position to its pattern's content key; `findings` are the rules' discrepancies
+    before reviews (None when no rules were run where it was computed); `figure_uses` counts its figures
+    by `FigureUse`; `record` is its share of the build record as text (record.ShareText)."""
+
+    pattern_of: dict[str, str | None]
+    findings: tuple[Discrepancy, ...] | None
+    figure_uses: dict[FigureUse, int]
+    record: tuple[str, str, str] | None = None
+
+
 @dataclass
 class FleetResults:
-    """All computed results of one build, keyed for lookup."""
+    """All computed results of one build, keyed for lookup.
+
+    `installations` and `pairs` hold the full figures of the aircraft loaded so far: every aircraft,
+    unless the compute stage was asked to leave the full figures of unchanged aircraft in the cache
+    (`loader` then reads them when a page needs them: `load`). `summaries` covers every aircraft."""
 
     installations: dict[tuple[str, str], InstallationResult] = field(default_factory=dict)
     pairs: list[PairResult] = field(default_factory=list)
     patterns: dict[str, PatternResult] = field(default_factory=dict)
     cables: dict[str, CableResult] = field(default_factory=dict)
+    summaries: dict[str, AircraftSummary] = field(default_factory=dict)
     records: dict[str, tuple[str, str, str]] = field(default_factory=dict)
     """Each aircraft's share of the build record as text (record.ShareText), made where it was computed."""
     aircraft_keys: dict[str, str] = field(default_factory=dict)
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
+    unloaded: set[str] = field(default_factory=set)
+    """Aircraft whose full figures are still in the cache."""
+    loader: Callable[[list[str]], None] | None = field(default=None, repr=False)
+
+    def load(self, aircraft_ids: Iterable[str]) -> None:
+        """Make sure the full figures of these aircraft are in `installations` and `pairs`."""
+        wanted = [aircraft_id for aircraft_id in aircraft_ids if aircraft_id in self.unloaded]
+        if wanted and self.loader is not None:
+            self.loader(wanted)
 
 
 @dataclass(frozen=True, slots=True)

@@ -121,3 +121,37 @@ def test_damaged_cache_entries_are_misses(tmp_path, reference):
 def test_cache_keys_depend_on_every_part():
     assert diskcache.key_of("a", "bc") != diskcache.key_of("ab", "c")
     assert diskcache.key_of("a", b"b") == diskcache.key_of("a", "b")
+
+
+def test_a_changed_review_renders_its_aircraft_again_from_cached_figures(tmp_path):
+    # A review changes no figure: the aircraft's figures come from the cache (summary first, full figures
+    # read back only for the pages rendered again), and the site equals a plain build.
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    reviews = data / "reviews.yaml"
+    text = reviews.read_text(encoding="utf-8")
+    assert "state: accepted" in text
+    reviews.write_text(text.replace("state: accepted", "state: no-fault", 1), encoding="utf-8")
+    assert pipeline.build(data, out, cache_dir=cache, workers=1).written
+    fresh = tmp_path / "fresh"
+    pipeline.build(data, fresh, cache_dir=None, workers=1)
+    assert tree(out) == tree(fresh)
+
+
+def test_full_figures_gone_from_the_cache_are_computed_again(tmp_path):
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    shutil.rmtree(cache / "aircraft")  # summaries kept, full figures gone
+    aircraft = data / "aircraft" / "qx-tcb.yaml"
+    aircraft.write_text(aircraft.read_text(encoding="utf-8") + "\n# touched\n", encoding="utf-8")
+    reviews = data / "reviews.yaml"
+    reviews.write_text(reviews.read_text(encoding="utf-8").replace("state: accepted", "state: no-fault", 1),
+                       encoding="utf-8")
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    fresh = tmp_path / "fresh"
+    pipeline.build(data, fresh, cache_dir=None, workers=1)
+    assert tree(out) == tree(fresh)

@@ -7,6 +7,7 @@ computed once per distinct content and reused by every installation that shares 
 """
 from __future__ import annotations
 
+import functools
 from collections import Counter
 from collections.abc import Callable
 from dataclasses import dataclass, replace
@@ -103,17 +104,19 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
             if pattern_key and pattern_key not in results.patterns:  # named after the first model using it
                 results.patterns[pattern_key] = replace(known[pattern_key], antenna=installation.antenna)
 
-    def load(aircraft_ids: list[str]) -> None:
-        for aircraft_id in aircraft_ids:
-            part = part_store.get(results.aircraft_keys.get(aircraft_id, ""))
-            if part is None:  # gone from the cache since: computed again, here
-                part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
-            results.installations.update(part.installations)
-            results.pairs += part.pairs
-            results.unloaded.discard(aircraft_id)
-
-    results.loader = load
+    results.loader = functools.partial(_load_parts, fleet, as_of, part_store)
     return results
+
+
+def _load_parts(fleet: Fleet, as_of: date, store: DiskCache, results: FleetResults, aircraft_ids: list[str]) -> None:
+    """`FleetResults.loader`: aircraft's full figures from the cache, or computed again if they are gone."""
+    for aircraft_id in aircraft_ids:
+        part = store.get(results.aircraft_keys.get(aircraft_id, "")) if store.folder is not None else None
+        if part is None:
+            part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
+        results.installations.update(part.installations)
+        results.pairs += part.pairs
+        results.unloaded.discard(aircraft_id)
 
 
 @dataclass

@@ -339,6 +339,9 @@ class Site:
         self.figure_cells: dict[Figure, Markup] = {}
         self.plots = plot_store or plots.PlotStore()
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)  # filled once the figures are loaded
+        self.reviews_of: dict[str, list] = defaultdict(list)  # in the reviews' (sorted) order
+        for name, review in fleet.reviews.items():
+            self.reviews_of[name.split("/", 1)[0]].append(review)
         self.model_patterns: dict[str, set[str]] = defaultdict(set)
         for aircraft, installation in fleet.installations():
             pattern_key = pattern_of(results, aircraft.id, installation.position)
@@ -587,7 +590,7 @@ class Site:
         figures_key = self.results.aircraft_keys.get(aircraft.id)
         if not figures_key:
             return ""
-        reviews = [repr(review) for name, review in self.fleet.reviews.items() if name.startswith(aircraft.id + "/")]
+        reviews = [repr(review) for review in self.reviews_of.get(aircraft.id, ())]
         marks = [self.marks(aircraft.id)] + [self.marks(aircraft.id, p) for p in aircraft.installations]
         key = key_of(figures_key, *reviews, repr(marks), str(self.comparison is not None), TEMPLATES_KEY)
         self.page_keys[aircraft.id] = key

@@ -158,13 +158,14 @@ class FleetResults:
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
     unloaded: set[str] = field(default_factory=set)
     """Aircraft whose full figures are still in the cache."""
-    loader: Callable[[list[str]], None] | None = field(default=None, repr=False)
+    loader: Callable[[FleetResults, list[str]], None] | None = field(default=None, repr=False)
+    """Reads aircraft's full figures into these results (given them, so that it holds no reference back)."""
 
     def load(self, aircraft_ids: Iterable[str]) -> None:
         """Make sure the full figures of these aircraft are in `installations` and `pairs`."""
         wanted = [aircraft_id for aircraft_id in aircraft_ids if aircraft_id in self.unloaded]
         if wanted and self.loader is not None:
-            self.loader(wanted)
+            self.loader(self, wanted)
 
 
 @dataclass(frozen=True, slots=True)

@@ -9,7 +9,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.special import jv
 
 from registry.units import C_M_PER_S
 
@@ -77,6 +76,8 @@ def collinear_half_wave_power(theta_rad, phi_rad):
 
 def _lambda_function(p: int, u):
     """Lambda_p(u) = 2^p p! J_p(u)/u^p, with Lambda_p(0) = 1."""
+    from scipy.special import jv  # imported when first needed: a rebuild from the cache never is
+
     u = np.asarray(u, dtype=float)
     small = np.abs(u) < 1e-8
     us = np.where(small, 1.0, u)

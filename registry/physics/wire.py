@@ -25,7 +25,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import sici
 
 from registry.units import C_M_PER_S, ETA0
 
@@ -124,6 +123,8 @@ def build_structure(wires) -> WireStructure:
 
 def _e1_imag(x):
     """E1(jx) for real x > 0: -Ci(x) + j(Si(x) - pi/2) (Abramowitz & Stegun 5.2.23)."""
+    from scipy.special import sici  # imported when first needed: a rebuild from the cache never is
+
     si, ci = sici(x)
     return -ci + 1j * (si - np.pi / 2)
 

@@ -40,7 +40,7 @@ def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir:
     unchanged file is not parsed again; the others are parsed in `workers` processes. Raises DataError
     listing every problem, sorted by file and line.
     """
-    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, DiskCache(cache_dir, "files"), workers).load()
+    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, cache_dir, workers).load()
 
 
 class _Doc:
@@ -68,23 +68,22 @@ def parse(file: Path, kind: str, cache: DiskCache) -> Parsed:
 
 def parse_many(files: list[Path], kind: str, cache: DiskCache, workers: int = 1) -> list[Parsed]:
     """`parse` for each file, in order; files not in the cache are shared out over `workers` processes."""
-    keys: list[str | None] = []
-    found: list[Parsed | None] = []
-    for file in files:
-        key = None
-        if cache.folder is not None:
-            try:
-                key = key_of(kind, str(file), file.read_bytes())
-            except OSError:
-                key = None  # read_yaml reports it
-        keys.append(key)
-        found.append(cache.get(key) if key else None)
+    keys = [_file_key(kind, file) if cache.folder is not None else None for file in files]
+    found: list[Parsed | None] = [cache.get(key) if key else None for key in keys]
     todo = [n for n, parsed in enumerate(found) if parsed is None]
     for n, parsed in zip(todo, workers_.ordered_map(lambda n: _parse_fresh(files[n], kind), todo, workers)):
         found[n] = parsed
         if keys[n]:
             cache.put(keys[n], parsed)
     return found
+
+
+def _file_key(kind: str, file: Path) -> str | None:
+    """Cache key of what is made of a file's bytes; None when it cannot be read (`read_yaml` reports it)."""
+    try:
+        return key_of(kind, str(file), file.read_bytes())
+    except OSError:
+        return None
 
 
 def _parse_fresh(file: Path, kind: str) -> Parsed:
@@ -95,10 +94,11 @@ def _parse_fresh(file: Path, kind: str) -> Parsed:
 
 
 class _Run:
-    def __init__(self, data_dir: Path, shipped_dir: Path, cache: DiskCache, workers: int = 1):
+    def __init__(self, data_dir: Path, shipped_dir: Path, cache_dir: Path | None, workers: int = 1):
         self.data_dir = data_dir
         self.shipped_dir = shipped_dir
-        self.cache = cache
+        self.cache = DiskCache(cache_dir, "files")
+        self.models = DiskCache(cache_dir, "models")
         self.workers = workers
         self.problems: list[Problem] = []
 
@@ -117,16 +117,46 @@ class _Run:
         self.problems.extend(problems)
         return _Doc(doc, file) if doc is not None and not problems else None
 
-    def read_folder(self, name: str, kind: str) -> list[_Doc | None]:
+    def folder_files(self, name: str) -> list[Path]:
+        """The .yaml files of a folder of the registry, sorted; a stray .yml or no file at all is a problem."""
         folder = self.data_dir / name
         files = sorted(folder.glob("*.yaml")) if folder.is_dir() else []
         for stray in sorted(folder.glob("*.yml")) if folder.is_dir() else []:
             self.problem(stray, "a file ending in .yml", "the ending .yaml (other endings are not read)")
         if not files:
             self.problem(folder, "no .yaml files", f"at least one {name}/<id>.yaml file")
+        return files
+
+    def read_folder(self, name: str, kind: str) -> list[_Doc | None]:
+        files = self.folder_files(name)
+        if not files:
             return [None]  # like a file that failed: references into this folder cannot be checked
         parsed = parse_many(files, kind, self.cache, self.workers)
         return [self.accept(file, doc, problems) for file, (doc, problems) in zip(files, parsed)]
+
+    def read_aircraft(self) -> list[Aircraft]:
+        """The aircraft files as model objects. Each file's model, with the problems found in building
+        it, is kept in the cache by the file's bytes: an unchanged aircraft is neither parsed nor built
+        again (a fleet has a thousand of them)."""
+        files = self.folder_files("aircraft")
+        keys = [_file_key("aircraft-model", file) if self.models.folder is not None else None for file in files]
+        built = [self.models.get(key) if key else None for key in keys]
+        missing = [file for file, hit in zip(files, built) if hit is None]
+        parsed = dict(zip(missing, parse_many(missing, "aircraft", self.cache, self.workers)))
+        models = []
+        for file, key, hit in zip(files, keys, built):
+            if hit is None:
+                doc = self.accept(file, *parsed[file])
+                if doc is None:
+                    continue
+                before = len(self.problems)
+                hit = (self.aircraft(doc), self.problems[before:])
+                if key:
+                    self.models.put(key, hit)
+            else:
+                self.problems += hit[1]
+            models.append(hit[0])
+        return models
 
     def load(self) -> Fleet:
         if not self.data_dir.is_dir():
@@ -134,7 +164,7 @@ class _Run:
             raise DataError(self.problems)
         fleet_doc = self.read(self.data_dir / "fleet.yaml", "fleet")
         airframe_docs = self.read_folder("airframes", "airframe")
-        aircraft_docs = self.read_folder("aircraft", "aircraft")
+        aircraft = self.read_aircraft()
         antennas_doc = self.read(self.data_dir / "antennas.yaml", "antennas")
         cables_doc = self.read(self.data_dir / "cables.yaml", "cables")
         shipped_services = self.read(self.shipped_dir / "services.yaml", "services")
@@ -149,7 +179,6 @@ class _Run:
         cables = [_cable(cables_doc, n, item) for n, item in enumerate(cables_doc.data["cables"])] \
             if cables_doc else None
         services = self.services(shipped_services, fleet_services)
-        aircraft = [self.aircraft(doc) for doc in aircraft_docs if doc]
         policy = self.policy(shipped_policy, fleet_policy)
         reviews = [_review(reviews_doc, n, item) for n, item in enumerate(reviews_doc.data["reviews"])] \
             if reviews_doc else []

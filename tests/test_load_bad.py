@@ -324,3 +324,22 @@ def test_files_parsed_in_worker_processes_report_the_same_problems(tmp_path, fla
         reported.append([str(problem) for problem in caught.value.problems])
     assert reported[0] == reported[1]
     assert reported[0]  # the flaw is reported at all
+
+
+def test_problems_found_in_building_an_aircraft_come_back_from_the_cache(tmp_path):
+    # An aircraft's model is kept in the cache with the problems found in building it: a second load
+    # from the cache reports exactly what the first did (common practice for build caches, no source).
+    data = make_registry(tmp_path)
+    path = data / "aircraft" / "qx-fca.yaml"
+    text = path.read_text(encoding="utf-8")
+    first = text.split("position: ")[1].split("\n")[0]
+    second = text.split("position: ")[2].split("\n")[0]
+    path.write_text(text.replace(f"position: {second}", f"position: {first}", 1), encoding="utf-8")
+    reported = []
+    for _ in range(2):
+        with pytest.raises(DataError) as caught:
+            load_fleet(data, SHIPPED, cache_dir=tmp_path / "cache")
+        reported.append([str(problem) for problem in caught.value.problems])
+    assert reported[0] == reported[1]
+    assert any("position" in line and "again" in line for line in reported[0])
+    assert (tmp_path / "cache" / "models").is_dir()  # the second load came from there

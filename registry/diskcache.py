@@ -1,34 +1,85 @@
 """A folder of results keyed by their inputs' content and the tool version; safe to delete at any time.
 
 Used for what is costly and depends only on content: a registry file's parsed and schema-checked form,
-an aircraft's computed figures. A key is the SHA-256 of the tool version, a namespace and the inputs,
-so a new version or any changed input simply misses. Entries are pickles written whole (temporary file,
+an aircraft's computed figures. A key is the SHA-256 of the tool itself (`code_key`: its version, code,
+templates and libraries), a namespace and the inputs, so new code or any changed input simply misses. Entries are pickles written whole (temporary file,
 then rename), so an interrupted or concurrent build never reads half an entry; an unreadable entry is a
 miss. Only this tool's own cache folder is read: never point it at files you did not let it write.
 """
 from __future__ import annotations
 
+import functools
 import hashlib
 import os
 import pickle
+import sys
 import tempfile
+from importlib import metadata
 from pathlib import Path
 from typing import Any
 
 from registry import __version__
 
 FORMAT = "8"
-"""Bumped when what the cache holds changes shape, so an old entry is never read as a new one."""
+"""The cache's own layout version (the code's content is in every key as well)."""
+
+PACKAGE_DIR = Path(__file__).resolve().parent
+TEMPLATE_DIR = PACKAGE_DIR.parent / "site_templates"
+LIBRARIES = ("jinja2", "markdown", "matplotlib", "nh3", "numpy", "pyyaml", "scipy", "jsonschema")
+"""Libraries whose version can change a figure, a page or a plot."""
 
 
-def key_of(*parts: bytes | str) -> str:
-    """SHA-256 (hex) of the tool version and the parts, each length-prefixed so no two inputs collide."""
-    digest = hashlib.sha256(f"{__version__}|{FORMAT}".encode())
+def files_under(folder: Path) -> list[Path]:
+    """Regular files under `folder`, sorted, skipping anything hidden or inside a hidden folder."""
+    found = []
+    for path in folder.rglob("*"):
+        relative = path.relative_to(folder).parts
+        if any(part.startswith(".") or part == "__pycache__" for part in relative):
+            continue
+        if path.is_file():
+            found.append(path)
+    return sorted(found)
+
+
+def content_parts(folder: Path) -> list[str | bytes]:
+    """Each file under `folder` (`files_under`) as its relative path and its bytes, for `key_of`."""
+    parts: list[str | bytes] = []
+    for path in files_under(folder):
+        parts += [path.relative_to(folder).as_posix(), path.read_bytes()]
+    return parts
+
+
+def library_versions() -> list[str]:
+    versions = [sys.version]
+    for name in LIBRARIES:
+        try:
+            versions.append(f"{name} {metadata.version(name)}")
+        except metadata.PackageNotFoundError:
+            versions.append(f"{name} absent")
+    return versions
+
+
+@functools.lru_cache(maxsize=1)
+def code_key() -> str:
+    """Key of the tool itself: its version, its modules, schemas, shipped data and site templates, and
+    the versions of Python and of the libraries that shape the output. Part of every cache key, so an
+    edited rule or template, or an upgraded library, never reads an entry made by the code before."""
+    return _digest([f"{__version__}|{FORMAT}", *library_versions(), *content_parts(PACKAGE_DIR),
+                    *content_parts(TEMPLATE_DIR)])
+
+
+def _digest(parts: list[bytes | str], seed: str = "") -> str:
+    digest = hashlib.sha256(seed.encode())
     for part in parts:
         data = part.encode() if isinstance(part, str) else part
         digest.update(len(data).to_bytes(8, "little"))
         digest.update(data)
     return digest.hexdigest()
+
+
+def key_of(*parts: bytes | str) -> str:
+    """SHA-256 (hex) of the tool (`code_key`) and the parts, each length-prefixed so no two inputs collide."""
+    return _digest(list(parts), code_key())
 
 
 class DiskCache:

@@ -4,7 +4,7 @@ import shutil
 from datetime import date
 from pathlib import Path
 
-from registry import sitekey
+from registry import diskcache, sitekey
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 DAY = date(2026, 10, 1)
@@ -42,6 +42,17 @@ def test_site_key_ignores_hidden_folders(tmp_path):
 
 
 def test_code_key_names_the_libraries_that_shape_the_output():
-    versions = sitekey._library_versions()
+    versions = diskcache.library_versions()
     assert any(item.startswith("matplotlib ") for item in versions)
     assert any(item.startswith("jinja2 ") for item in versions)
+
+
+def test_every_cache_key_follows_the_tool_itself(tmp_path, monkeypatch):
+    # an edited template (or rule, or module) must never read a cache entry made by the code before it
+    templates = tmp_path / "site_templates"
+    shutil.copytree(diskcache.TEMPLATE_DIR, templates)
+    monkeypatch.setattr(diskcache, "TEMPLATE_DIR", templates)
+    before = diskcache.code_key.__wrapped__()
+    base = templates / "base.html"
+    base.write_text(base.read_text(encoding="utf-8") + "<!-- edited -->\n", encoding="utf-8")
+    assert diskcache.code_key.__wrapped__() != before

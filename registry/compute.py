@@ -71,25 +71,35 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
             parts[aircraft.id] = part
     sent = set(known)  # patterns the parent has: each process hands back each other pattern once
 
-    def compute_one(aircraft_id: str) -> tuple[AircraftPart, AircraftSummary, dict[str, PatternResult]]:
+    def compute_one(job: tuple[str, str]) -> tuple[AircraftPart | None, AircraftSummary, dict[str, PatternResult]]:
+        """One aircraft, where it is computed: with `lazy` and a cache, its full figures go straight
+        into the cache and only its summary comes back."""
+        aircraft_id, key = job
         aircraft = fleet.aircraft[aircraft_id]
         part, patterns = compute_aircraft(fleet, aircraft, as_of)
-        fresh = {key: pattern for key, pattern in patterns.items() if key not in sent}
+        fresh = {pattern_key: pattern for pattern_key, pattern in patterns.items() if pattern_key not in sent}
         sent.update(fresh)
-        return part, summarise(fleet, aircraft, part, assess), fresh
+        summary = summarise(fleet, aircraft, part, assess)
+        if key:
+            part_store.put(key, part)
+            if lazy:
+                return None, summary, fresh
+        return part, summary, fresh
 
     progress.stage("computing aircraft", len(todo))
-    parts_computed = workers_.ordered_map(compute_one, [aircraft_id for aircraft_id, _ in todo], workers, progress)
+    parts_computed = workers_.ordered_map(compute_one, todo, workers, progress)
     # the generator first, so that zip runs it to its end and its worker pool is closed
     for (part, summary, patterns), (aircraft_id, key) in zip(parts_computed, todo):
-        parts[aircraft_id] = part
+        if part is None:
+            results.unloaded.add(aircraft_id)
+        else:
+            parts[aircraft_id] = part
         results.summaries[aircraft_id] = summary
         for pattern_key, pattern in patterns.items():
             if pattern_key not in known:
                 known[pattern_key] = pattern
                 pattern_store.put(pattern_key, pattern)
         if key:
-            part_store.put(key, part)
             summary_store.put(key, summary)
     for aircraft_id, aircraft in fleet.aircraft.items():  # merged in id order: the same fleet, the same results
         summary = results.summaries[aircraft_id]

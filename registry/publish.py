@@ -63,12 +63,17 @@ def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse
         try:
             os.link(old, target)
             return
+        except FileExistsError:  # placed already by another worker: files named by content, same bytes
+            return
         except OSError:
             if data is reuse:
                 shutil.copyfile(old, target)
                 return
-    with open(target, "wb") as out:
-        out.write(data)
+    try:
+        with open(target, "xb") as out:
+            out.write(data)
+    except FileExistsError:  # written already by another worker: files named by content, same bytes
+        pass
 
 
 _MADE: set[str] = set()

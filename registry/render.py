@@ -337,6 +337,7 @@ class Site:
         self.page_keys: dict[str, str] = {}
         self.pieces: dict[str, AircraftPieces] = {}
         self.figure_cells: dict[Figure, Markup] = {}
+        self.vswr_drawn: set[str] = set()
         self.plots = plot_store or plots.PlotStore()
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)  # filled once the figures are loaded
         self.reviews_of: dict[str, list] = defaultdict(list)  # in the reviews' (sorted) order
@@ -481,11 +482,6 @@ class Site:
         self.pattern_plots()
         self.fleet_page()
         todo = [aircraft for aircraft in self.fleet.aircraft.values() if not self.reuse_pages(aircraft)]
-        self.results.load(aircraft.id for aircraft in todo)  # full figures only for the pages rendered
-        for pair in sorted(self.results.pairs, key=lambda p: (p.position_a, p.position_b)):
-            self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
-            self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
-        self.vswr_plots()
         progress.stage("rendering aircraft", len(todo))
         # in worker processes only when their pages can be written from there; the generator first in
         # zip, so that it is run to its end and its workers are closed
@@ -539,6 +535,7 @@ class Site:
             key = plots.vswr_key(result) if result is not None else None
             if key is not None:
                 plot_paths.add(vswr_plot_path(key))
+                self.vswr_plot(key, result, f"{aircraft.registration} {installation.position}")
         paths += sorted(plot_paths)  # shared by content, but kept with each aircraft that shows them
         key = self.page_key(aircraft)
         if self.incremental is not None and key:
@@ -550,9 +547,17 @@ class Site:
         """The aircraft's pages, handed to `writer` (or kept with the site's other files without one);
         its entry for the next build's reuse and its pieces of the fleet-wide pages. Runs in the parent
         or in a forked worker alike."""
+        read_here = self.results.load([aircraft.id])  # its full figures, from the cache if need be
+        if read_here or not self.pairs_of:
+            self.pairs_of.clear()
+            for pair in sorted(self.results.pairs, key=lambda p: (p.position_a, p.position_b)):
+                self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
+                self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
         kept, self.files = self.files, {}
         self.aircraft_pages(aircraft)
         produced, self.files = self.files, kept
+        if read_here:  # let go again: a worker renders hundreds of aircraft
+            self.results.unload(aircraft.id, aircraft.installations)
         if writer is None:
             self.files.update(produced)
         else:
@@ -596,15 +601,13 @@ class Site:
         self.page_keys[aircraft.id] = key
         return key
 
-    def vswr_plots(self) -> None:
-        """Every VSWR plot the rendered installation pages show, once per distinct content (a reused
-        aircraft's plots are among its reused files)."""
-        for (aircraft_id, position), result in sorted(self.results.installations.items()):
-            key = plots.vswr_key(result)
-            if key is not None and (vswr_plot_path(key) not in self.files or self.plots.naive):
-                title = f"{self.fleet.aircraft[aircraft_id].registration} {position}"
-                self.files[vswr_plot_path(key)] = self.plots.get(
-                    "vswr", key, lambda: plots.vswr_plot(result, title)).svg
+    def vswr_plot(self, key: str, result: InstallationResult, title: str) -> None:
+        """An installation's VSWR plot, drawn once per distinct content in this process (plots are named
+        by content, so two processes that both write one write the same bytes)."""
+        path = vswr_plot_path(key)
+        if path not in self.vswr_drawn or self.plots.naive:
+            self.files[path] = self.plots.get("vswr", key, lambda: plots.vswr_plot(result, title)).svg
+            self.vswr_drawn.add(path)
 
     def fleet_page(self) -> None:
         aircraft_rows = []

@@ -161,11 +161,20 @@ class FleetResults:
     loader: Callable[[FleetResults, list[str]], None] | None = field(default=None, repr=False)
     """Reads aircraft's full figures into these results (given them, so that it holds no reference back)."""
 
-    def load(self, aircraft_ids: Iterable[str]) -> None:
-        """Make sure the full figures of these aircraft are in `installations` and `pairs`."""
+    def load(self, aircraft_ids: Iterable[str]) -> list[str]:
+        """Make sure the full figures of these aircraft are in `installations` and `pairs`; the ids of
+        those that had to be read."""
         wanted = [aircraft_id for aircraft_id in aircraft_ids if aircraft_id in self.unloaded]
         if wanted and self.loader is not None:
             self.loader(self, wanted)
+        return wanted
+
+    def unload(self, aircraft_id: str, positions: Iterable[str]) -> None:
+        """Let go of an aircraft's full figures again (they stay in the cache)."""
+        for position in positions:
+            self.installations.pop((aircraft_id, position), None)
+        self.pairs = [pair for pair in self.pairs if pair.aircraft != aircraft_id]
+        self.unloaded.add(aircraft_id)
 
 
 @dataclass(frozen=True, slots=True)

@@ -86,6 +86,14 @@ def _file_key(kind: str, file: Path) -> str | None:
         return None
 
 
+def _read_aircraft(file: Path) -> tuple[Aircraft | None, list[Problem]]:
+    """An aircraft file read, checked against its schema and built into its model; with its problems."""
+    doc, problems = _parse_fresh(file, "aircraft")
+    if doc is None or problems:
+        return None, problems
+    return _aircraft(_Doc(doc, file))
+
+
 def _parse_fresh(file: Path, kind: str) -> Parsed:
     doc, problems = read_yaml(file, str(file))
     if doc is not None:
@@ -135,27 +143,22 @@ class _Run:
         return [self.accept(file, doc, problems) for file, (doc, problems) in zip(files, parsed)]
 
     def read_aircraft(self) -> list[Aircraft]:
-        """The aircraft files as model objects. Each file's model, with the problems found in building
-        it, is kept in the cache by the file's bytes: an unchanged aircraft is neither parsed nor built
-        again (a fleet has a thousand of them)."""
+        """The aircraft files as model objects. Each file's model, with the problems found in reading and
+        building it, is kept in the cache by the file's bytes: an unchanged aircraft is neither parsed nor
+        built again (a fleet has a thousand of them). The others are read in `workers` processes."""
         files = self.folder_files("aircraft")
         keys = [_file_key("aircraft-model", file) if self.models.folder is not None else None for file in files]
         built = [self.models.get(key) if key else None for key in keys]
-        missing = [file for file, hit in zip(files, built) if hit is None]
-        parsed = dict(zip(missing, parse_many(missing, "aircraft", self.cache, self.workers)))
+        missing = [n for n, hit in enumerate(built) if hit is None]
+        for n, hit in zip(missing, workers_.ordered_map(lambda n: _read_aircraft(files[n]), missing, self.workers)):
+            built[n] = hit
+            if keys[n]:
+                self.models.put(keys[n], hit)
         models = []
-        for file, key, hit in zip(files, keys, built):
-            if hit is None:
-                doc = self.accept(file, *parsed[file])
-                if doc is None:
-                    continue
-                before = len(self.problems)
-                hit = (self.aircraft(doc), self.problems[before:])
-                if key:
-                    self.models.put(key, hit)
-            else:
-                self.problems += hit[1]
-            models.append(hit[0])
+        for model, problems in built:
+            self.problems += problems
+            if model is not None:
+                models.append(model)
         return models
 
     def load(self) -> Fleet:
@@ -212,23 +215,6 @@ class _Run:
             services=_by_id(services),
             policy=policy,
             reviews=FrozenMap((review.discrepancy, review) for review in reviews),
-        )
-
-    def aircraft(self, doc: _Doc) -> Aircraft:
-        data = doc.data
-        installations = [_installation(doc, n, item) for n, item in enumerate(data["installations"])]
-        self.problems += integrity.duplicates(installations, "position", "position in this aircraft")
-        return Aircraft(
-            **doc.at(),
-            id=data["id"],
-            registration=data["registration"],
-            airframe=data["airframe"],
-            serial=data.get("serial"),
-            modifications=tuple(
-                Modification(**doc.at("modifications", n), ref=item["ref"], date=_date(item["date"]),
-                             summary=item["summary"])
-                for n, item in enumerate(data.get("modifications", []))),
-            installations=FrozenMap((item.position, item) for item in installations),
         )
 
     def services(self, shipped: _Doc | None, fleet: _Doc | None) -> list[Service] | None:
@@ -388,6 +374,25 @@ def _services(doc: _Doc, shipped: bool) -> list[Service]:
             shipped=shipped,
         ))
     return services
+
+
+def _aircraft(doc: _Doc) -> tuple[Aircraft, list[Problem]]:
+    """An aircraft file's model, and the problems found in building it (positions used twice)."""
+    data = doc.data
+    installations = [_installation(doc, n, item) for n, item in enumerate(data["installations"])]
+    problems = integrity.duplicates(installations, "position", "position in this aircraft")
+    return Aircraft(
+        **doc.at(),
+        id=data["id"],
+        registration=data["registration"],
+        airframe=data["airframe"],
+        serial=data.get("serial"),
+        modifications=tuple(
+            Modification(**doc.at("modifications", n), ref=item["ref"], date=_date(item["date"]),
+                         summary=item["summary"])
+            for n, item in enumerate(data.get("modifications", []))),
+        installations=FrozenMap((item.position, item) for item in installations),
+    ), problems
 
 
 def _installation(doc: _Doc, n: int, item: dict[str, Any]) -> Installation:

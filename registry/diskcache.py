@@ -12,6 +12,8 @@ import functools
 import hashlib
 import os
 import pickle
+import re
+import shutil
 import sys
 import tempfile
 from importlib import metadata
@@ -80,6 +82,30 @@ def _digest(parts: list[bytes | str], seed: str = "") -> str:
 def key_of(*parts: bytes | str) -> str:
     """SHA-256 (hex) of the tool (`code_key`) and the parts, each length-prefixed so no two inputs collide."""
     return _digest(list(parts), code_key())
+
+
+def version_folder(cache_dir: Path) -> Path:
+    """The folder, inside a cache folder, for entries made by this very code (`code_key`): nothing
+    outside it can ever be read by this code again."""
+    return Path(cache_dir) / code_key()[:16]
+
+
+def prune(cache_dir: Path) -> None:
+    """Remove what earlier code left in `cache_dir` (its other version folders, and the flat layout of
+    older releases); this code's own folder stays."""
+    keep = version_folder(cache_dir).name
+    try:
+        entries = list(Path(cache_dir).iterdir())
+    except OSError:
+        return
+    for entry in entries:
+        if entry.is_dir() and entry.name != keep and (
+                re.fullmatch(r"[0-9a-f]{16}", entry.name) or entry.name in OLD_LAYOUT):
+            shutil.rmtree(entry, ignore_errors=True)
+
+
+OLD_LAYOUT = ("files", "models", "aircraft", "summaries", "patterns", "pieces", "plots")
+"""Namespaces that earlier releases kept directly in the cache folder."""
 
 
 class DiskCache:

@@ -14,7 +14,7 @@ from datetime import date, datetime, timezone
 from pathlib import Path
 from typing import Iterator, NamedTuple
 
-from registry import checks, compute, diff, plots, publish, record, render, sitekey
+from registry import checks, compute, diff, diskcache, plots, publish, record, render, sitekey
 from registry.diskcache import DiskCache
 from registry.load import load_fleet
 from registry.model import Fleet, Review
@@ -109,7 +109,8 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
 
     The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
     comparison with it (`changes.html`). A site already built from the same inputs (`sitekey.py`) is
-    left as it is. `cache_dir` keeps parsed files, computed figures and drawn plots across builds (safe to
+    left as it is. `cache_dir` keeps parsed files, computed figures and drawn plots across builds, in a
+    folder of this code's own (`diskcache.version_folder`; other versions' folders are removed; all safe to
     delete); `workers` processes share the work (default: one per core). `naive` (the benchmark's
     baseline) keeps nothing and draws every plot for every installation."""
     as_of = as_of_date(data_dir)
@@ -118,8 +119,9 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
                                             if baseline is not None else "", naive)
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
+    cache_root = diskcache.version_folder(cache_dir) if cache_dir is not None else None
     try:
-        outcome = run(data_dir, as_of=as_of, cache_dir=cache_dir, workers=workers, progress=progress, lazy=True)
+        outcome = run(data_dir, as_of=as_of, cache_dir=cache_root, workers=workers, progress=progress, lazy=True)
         built = record.to_text(outcome)
         outcome.results.records.clear()  # joined into `built`: not held twice
         comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
@@ -128,7 +130,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
         kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
                 if isinstance(entry, dict) and all(os.path.isfile(os.path.join(out_dir, path))
                                                    for path in entry.get("files", ()))}
-        incremental = render.Incremental({} if naive else kept, {}, DiskCache(None if naive else cache_dir, "pieces"))
+        incremental = render.Incremental({} if naive else kept, {}, DiskCache(None if naive else cache_root, "pieces"))
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()
 
@@ -138,7 +140,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
             write(record.RECORD_NAME, built)  # first, and then let go: 100 MB and more for a large fleet
             del built
             pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
-                                       plots.PlotStore(cache_dir, naive), incremental,
+                                       plots.PlotStore(cache_root, naive), incremental,
                                        writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
             for rel_path, content in pages.items():
                 write(rel_path, content)
@@ -147,4 +149,6 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
             progress.finish()
     finally:
         gc.unfreeze()  # what `run` froze goes back to the collector (`collector_paused`)
+    if cache_dir is not None:
+        diskcache.prune(cache_dir)  # entries of earlier code can never be read again
     return Published(out_dir, True)

@@ -145,7 +145,7 @@ def test_full_figures_gone_from_the_cache_are_computed_again(tmp_path):
     shutil.copytree(DEMO, data)
     out, cache = tmp_path / "site", tmp_path / "cache"
     pipeline.build(data, out, cache_dir=cache, workers=1)
-    shutil.rmtree(cache / "aircraft")  # summaries kept, full figures gone
+    shutil.rmtree(diskcache.version_folder(cache) / "aircraft")  # summaries kept, full figures gone
     aircraft = data / "aircraft" / "qx-tcb.yaml"
     aircraft.write_text(aircraft.read_text(encoding="utf-8") + "\n# touched\n", encoding="utf-8")
     reviews = data / "reviews.yaml"
@@ -155,3 +155,14 @@ def test_full_figures_gone_from_the_cache_are_computed_again(tmp_path):
     fresh = tmp_path / "fresh"
     pipeline.build(data, fresh, cache_dir=None, workers=1)
     assert tree(out) == tree(fresh)
+
+
+def test_cache_entries_of_earlier_code_are_removed(tmp_path):
+    # entries made by other code can never be read (their keys hold that code), so a build removes them
+    cache = tmp_path / "cache"
+    (cache / "0123456789abcdef" / "aircraft").mkdir(parents=True)  # another version's folder
+    (cache / "plots").mkdir()  # the flat layout of an earlier release
+    (cache / "notes").mkdir()  # not ours: left alone
+    pipeline.build(DEMO, tmp_path / "site", cache_dir=cache, workers=1)
+    assert sorted(entry.name for entry in cache.iterdir()) == sorted(["notes", diskcache.version_folder(cache).name])
+    assert (diskcache.version_folder(cache) / "aircraft").is_dir()

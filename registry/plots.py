@@ -20,6 +20,7 @@ from pathlib import Path
 import numpy as np
 
 from registry import __version__
+from registry import workers as workers_
 from registry.results import CableResult, Curve, InstallationResult, PatternResult
 
 INK = "#2b2f36"
@@ -286,27 +287,38 @@ class PlotStore:
 
     def get(self, kind: str, key: str, draw: Callable[[], Drawn]) -> Drawn:
         """Plot `kind`/`key` from this build, from the disk cache, or from `draw()`."""
-        full = f"{kind}-{key}"
+        return self.get_all(kind, [(key, draw)])[0]
+
+    def get_all(self, kind: str, wanted: list[tuple[str, Callable[[], Drawn]]], workers: int = 1) -> list[Drawn]:
+        """`get` for each (key, draw) in `wanted`; those still to draw are drawn in `workers` processes."""
         if self.naive:
-            return draw()
-        if full in self.drawn:
-            return self.drawn[full]
-        drawn = None
-        path = None
-        if self.cache_dir is not None:
-            stamp = hashlib.sha256(f"{__version__}|{full}".encode()).hexdigest()[:24]
-            path = self.cache_dir / f"{stamp}.json"
-            try:
-                stored = json.loads(path.read_text(encoding="utf-8"))
-                drawn = Drawn(stored["svg"], stored["alt"])
-            except (OSError, ValueError, KeyError, TypeError):
-                drawn = None  # absent or damaged: draw it again
-        if drawn is None:
-            drawn = draw()
+            return [draw() for _, draw in wanted]
+        found = [self.drawn.get(f"{kind}-{key}") or self._stored(kind, key) for key, _ in wanted]
+        missing = [n for n, drawn in enumerate(found) if drawn is None]
+        for n, drawn in zip(missing, workers_.ordered_map(lambda n: wanted[n][1](), missing, workers)):
+            found[n] = drawn
+            path = self._path(kind, wanted[n][0])
             if path is not None:
                 write_atomically(path, json.dumps({"svg": drawn.svg, "alt": drawn.alt}))
-        self.drawn[full] = drawn
-        return drawn
+        for (key, _), drawn in zip(wanted, found):
+            self.drawn[f"{kind}-{key}"] = drawn
+        return found
+
+    def _path(self, kind: str, key: str) -> Path | None:
+        if self.cache_dir is None:
+            return None
+        stamp = hashlib.sha256(f"{__version__}|{kind}-{key}".encode()).hexdigest()[:24]
+        return self.cache_dir / f"{stamp}.json"
+
+    def _stored(self, kind: str, key: str) -> Drawn | None:
+        path = self._path(kind, key)
+        if path is None:
+            return None
+        try:
+            stored = json.loads(path.read_text(encoding="utf-8"))
+            return Drawn(stored["svg"], stored["alt"])
+        except (OSError, ValueError, KeyError, TypeError):
+            return None  # absent or damaged: draw it again
 
 
 def content_key(*parts) -> str:

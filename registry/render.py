@@ -8,6 +8,7 @@ Everything is sorted and nothing depends on the clock, so the same data gives th
 from __future__ import annotations
 
 import csv
+import functools
 import hashlib
 import io
 import json
@@ -479,7 +480,7 @@ class Site:
         for path in sorted(STATIC_DIR.rglob("*")):
             if path.is_file():
                 self.files[f"static/{path.relative_to(STATIC_DIR).as_posix()}"] = path.read_bytes()
-        self.pattern_plots()
+        self.pattern_plots(workers)
         self.fleet_page()
         todo = [aircraft for aircraft in self.fleet.aircraft.values() if not self.reuse_pages(aircraft)]
         progress.stage("rendering aircraft", len(todo))
@@ -709,10 +710,13 @@ class Site:
                   src=self.model_src(installation),
                   sweep_name=installation.measured.sweep.name if installation.measured and installation.measured.sweep else "")
 
-    def pattern_plots(self) -> None:
-        for key, pattern in sorted(self.results.patterns.items()):
-            drawn = self.plots.get("pattern", plots.content_key(key, pattern.antenna),
-                                   lambda: plots.pattern_plot(pattern))
+    def pattern_plots(self, workers: int = 1) -> None:
+        """Every pattern's plot, the ones not drawn before drawn in `workers` processes."""
+        patterns = sorted(self.results.patterns.items())
+        drawings = self.plots.get_all("pattern", [
+            (plots.content_key(key, pattern.antenna), functools.partial(plots.pattern_plot, pattern))
+            for key, pattern in patterns], workers)
+        for (key, _), drawn in zip(patterns, drawings):
             self.files[pattern_plot_path(key)] = drawn.svg
             self.pattern_alts[key] = drawn.alt
 

@@ -25,6 +25,29 @@ def tree(folder: Path) -> dict[str, bytes]:
             if p.is_file() and p.name != ".aerialbook-site"}
 
 
+def built_copy(tmp_path: Path) -> tuple[Path, Path, Path]:
+    """A copy of the demo registry built once with a cache: (data, site, cache)."""
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    return data, out, cache
+
+
+def assert_same_as_plain_build(data: Path, out: Path, tmp_path: Path) -> None:
+    fresh = tmp_path / "fresh"
+    pipeline.build(data, fresh, cache_dir=None, workers=1)
+    assert tree(out) == tree(fresh)
+
+
+def accept_to_no_fault(data: Path) -> None:
+    """Change the first accepted review to no-fault: no figure changes, one aircraft's pages do."""
+    reviews = data / "reviews.yaml"
+    text = reviews.read_text(encoding="utf-8")
+    assert "state: accepted" in text
+    reviews.write_text(text.replace("state: accepted", "state: no-fault", 1), encoding="utf-8")
+
+
 @pytest.fixture(scope="module")
 def reference(tmp_path_factory):
     out = tmp_path_factory.mktemp("ref") / "site"
@@ -44,10 +67,7 @@ def test_cached_parallel_build_equals_plain_build(tmp_path, reference):
 
 
 def test_a_site_built_from_the_same_inputs_is_left_as_it_is(tmp_path):
-    data = tmp_path / "data"
-    shutil.copytree(DEMO, data)
-    out, cache = tmp_path / "site", tmp_path / "cache"
-    assert pipeline.build(data, out, cache_dir=cache, workers=1).written
+    data, out, cache = built_copy(tmp_path)
     before = {path: path.stat().st_ino for path in out.rglob("*") if path.is_file()}
     assert pipeline.build(data, out, cache_dir=cache, workers=1) == (out, False)
     assert {path: path.stat().st_ino for path in out.rglob("*") if path.is_file()} == before
@@ -67,10 +87,7 @@ def test_a_site_built_from_the_same_inputs_is_left_as_it_is(tmp_path):
 
 
 def test_unchanged_pages_are_kept_and_a_changed_aircraft_is_rendered_again(tmp_path, reference):
-    data = tmp_path / "data"
-    shutil.copytree(DEMO, data)
-    out, cache = tmp_path / "site", tmp_path / "cache"
-    pipeline.build(data, out, cache_dir=cache, workers=1)
+    data, out, cache = built_copy(tmp_path)
     inode = {path: (out / path).stat().st_ino
              for path in ("aircraft/qx-tca/VHF1.html", "aircraft/qx-tcb/VHF1.html", "aircraft/qx-tcb/ELT.html")}
 
@@ -87,16 +104,11 @@ def test_unchanged_pages_are_kept_and_a_changed_aircraft_is_rendered_again(tmp_p
     # rendered again with its aircraft, but byte-identical: linked, not rewritten
     assert (out / "aircraft/qx-tcb/ELT.html").stat().st_ino == inode["aircraft/qx-tcb/ELT.html"]
 
-    fresh = tmp_path / "fresh"
-    pipeline.build(data, fresh, cache_dir=None, workers=1)
-    assert tree(out) == tree(fresh)
+    assert_same_as_plain_build(data, out, tmp_path)
 
 
 def test_removed_aircraft_pages_disappear(tmp_path):
-    data = tmp_path / "data"
-    shutil.copytree(DEMO, data)
-    out, cache = tmp_path / "site", tmp_path / "cache"
-    pipeline.build(data, out, cache_dir=cache, workers=1)
+    data, out, cache = built_copy(tmp_path)
     assert (out / "aircraft/qx-tce.html").exists()
     (data / "aircraft" / "qx-tce.yaml").unlink()
     reviews = data / "reviews.yaml"
@@ -126,35 +138,20 @@ def test_cache_keys_depend_on_every_part():
 def test_a_changed_review_renders_its_aircraft_again_from_cached_figures(tmp_path):
     # A review changes no figure: the aircraft's figures come from the cache (summary first, full figures
     # read back only for the pages rendered again), and the site equals a plain build.
-    data = tmp_path / "data"
-    shutil.copytree(DEMO, data)
-    out, cache = tmp_path / "site", tmp_path / "cache"
-    pipeline.build(data, out, cache_dir=cache, workers=1)
-    reviews = data / "reviews.yaml"
-    text = reviews.read_text(encoding="utf-8")
-    assert "state: accepted" in text
-    reviews.write_text(text.replace("state: accepted", "state: no-fault", 1), encoding="utf-8")
+    data, out, cache = built_copy(tmp_path)
+    accept_to_no_fault(data)
     assert pipeline.build(data, out, cache_dir=cache, workers=1).written
-    fresh = tmp_path / "fresh"
-    pipeline.build(data, fresh, cache_dir=None, workers=1)
-    assert tree(out) == tree(fresh)
+    assert_same_as_plain_build(data, out, tmp_path)
 
 
 def test_full_figures_gone_from_the_cache_are_computed_again(tmp_path):
-    data = tmp_path / "data"
-    shutil.copytree(DEMO, data)
-    out, cache = tmp_path / "site", tmp_path / "cache"
-    pipeline.build(data, out, cache_dir=cache, workers=1)
+    data, out, cache = built_copy(tmp_path)
     shutil.rmtree(diskcache.version_folder(cache) / "aircraft")  # summaries kept, full figures gone
     aircraft = data / "aircraft" / "qx-tcb.yaml"
     aircraft.write_text(aircraft.read_text(encoding="utf-8") + "\n# touched\n", encoding="utf-8")
-    reviews = data / "reviews.yaml"
-    reviews.write_text(reviews.read_text(encoding="utf-8").replace("state: accepted", "state: no-fault", 1),
-                       encoding="utf-8")
+    accept_to_no_fault(data)
     pipeline.build(data, out, cache_dir=cache, workers=1)
-    fresh = tmp_path / "fresh"
-    pipeline.build(data, fresh, cache_dir=None, workers=1)
-    assert tree(out) == tree(fresh)
+    assert_same_as_plain_build(data, out, tmp_path)
 
 
 def test_cache_entries_of_earlier_code_are_removed(tmp_path):

@@ -126,11 +126,8 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
         outcome.results.records.clear()  # joined into `built`: not held twice
         comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
                                    new_label=f"registry {data_dir}") if baseline is not None else None)
-        previous = publish.read_manifest(out_dir).get("aircraft", {})
-        kept = {aircraft_id: entry for aircraft_id, entry in previous.items()  # only what is really still there
-                if isinstance(entry, dict) and all(os.path.isfile(os.path.join(out_dir, path))
-                                                   for path in entry.get("files", ()))}
-        incremental = render.Incremental({} if naive else kept, {}, DiskCache(None if naive else cache_root, "pieces"))
+        incremental = render.Incremental({} if naive else publish.previous_aircraft(out_dir), {},
+                                         DiskCache(None if naive else cache_root, "pieces"))
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()
 

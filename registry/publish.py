@@ -30,6 +30,15 @@ def read_manifest(out_dir: Path) -> dict:
     return manifest if isinstance(manifest, dict) else {}
 
 
+def previous_aircraft(out_dir: Path) -> dict[str, dict]:
+    """Each aircraft's entry (page key and files) as the previous build recorded it, for the aircraft
+    whose files are all still in the site."""
+    previous = read_manifest(out_dir).get("aircraft", {})
+    folder = str(out_dir)
+    return {aircraft_id: entry for aircraft_id, entry in previous.items() if isinstance(entry, dict)
+            and all(os.path.isfile(os.path.join(folder, path)) for path in entry.get("files", ()))}
+
+
 def up_to_date(out_dir: Path, site_key: str) -> bool:
     """True when the site in `out_dir` was built from inputs with this key (`sitekey.site_key`) and every
     file it was published with is still there: building again would write the same bytes."""

@@ -8,7 +8,6 @@ computed once per distinct content and reused by every installation that shares 
 from __future__ import annotations
 
 import functools
-from collections import Counter
 from collections.abc import Callable
 from dataclasses import dataclass, replace
 from datetime import date
@@ -24,7 +23,7 @@ from registry.load import SHIPPED_DIR
 from registry.model import Aircraft, Fleet
 from registry.progress import QUIET, Progress
 from registry.results import (AircraftSummary, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
-                              PatternResult)
+                              PatternResult, figure_uses)
 
 
 Assess = Callable[[Fleet, Aircraft, dict[tuple[str, str], InstallationResult], list[PairResult]], list[Discrepancy]]
@@ -140,13 +139,10 @@ class AircraftPart:
 
 def summarise(fleet: Fleet, aircraft: Aircraft, part: AircraftPart, assess: Assess | None) -> AircraftSummary:
     """What the fleet-wide stages need of one computed aircraft (`AircraftSummary`)."""
-    uses: Counter = Counter((f.key, f.label, f.unit, f.formula, f.source, "installation")
-                            for result in part.installations.values() for f in result.figures)
-    uses.update((f.key, f.label, f.unit, f.formula, f.source, "pair") for pair in part.pairs for f in pair.figures)
     return AircraftSummary(
         pattern_of={position: result.pattern_key for (_, position), result in part.installations.items()},
         findings=None if assess is None else tuple(assess(fleet, aircraft, part.installations, part.pairs)),
-        figure_uses=dict(uses),
+        figure_uses=figure_uses(part.installations.values(), part.pairs),
         record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
                                                         Path(fleet.data_dir))))
 

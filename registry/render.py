@@ -35,7 +35,7 @@ from registry.diskcache import DiskCache, key_of
 from registry.progress import QUIET, Progress
 from registry.model import Aircraft, Fleet, Installation
 from registry.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
-                              InstallationResult)
+                              InstallationResult, figure_uses)
 
 TEMPLATE_DIR = Path(__file__).resolve().parent.parent / "site_templates"
 STATIC_DIR = TEMPLATE_DIR / "static"
@@ -814,11 +814,9 @@ class Site:
             if summary is not None:
                 tally.update(summary.figure_uses)
                 continue
-            tally.update((f.key, f.label, f.unit, f.formula, f.source, "installation")
-                         for (aircraft_id, _), result in self.results.installations.items()
-                         if aircraft_id == aircraft.id for f in result.figures)
-            tally.update((f.key, f.label, f.unit, f.formula, f.source, "pair")
-                         for pair in self.results.pairs if pair.aircraft == aircraft.id for f in pair.figures)
+            tally.update(figure_uses(
+                (result for (aircraft_id, _), result in self.results.installations.items() if aircraft_id == aircraft.id),
+                (pair for pair in self.results.pairs if pair.aircraft == aircraft.id)))
         tally.update((f.key, f.label, f.unit, f.formula, f.source, "pattern")
                      for pattern in self.results.patterns.values() for f in pattern.metrics)
         tally.update((f.key, f.label, f.unit, f.formula, f.source, "cable")

@@ -5,6 +5,7 @@ reports read these and never call the physics themselves.
 """
 from __future__ import annotations
 
+from collections import Counter
 from dataclasses import dataclass, field
 from collections.abc import Callable, Iterable
 from typing import NamedTuple
@@ -123,6 +124,14 @@ class CableResult:
 
 FigureUse = tuple[str, str, str, str, str, str]
 """(key, label, unit, formula, source, where): one kind of figure as the methods page lists it."""
+
+
+def figure_uses(installations: Iterable[InstallationResult], pairs: Iterable[PairResult]) -> dict[FigureUse, int]:
+    """How often each kind of figure (`FigureUse`) occurs among these installations' and pairs' figures."""
+    uses: Counter = Counter((f.key, f.label, f.unit, f.formula, f.source, "installation")
+                            for result in installations for f in result.figures)
+    uses.update((f.key, f.label, f.unit, f.formula, f.source, "pair") for pair in pairs for f in pair.figures)
+    return dict(uses)
 
 
 class AircraftSummary(NamedTuple):

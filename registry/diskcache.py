@@ -1,10 +1,11 @@
-"""A folder of results keyed by their inputs' content and the tool version; safe to delete at any time.
+"""A folder of results keyed by their inputs' content and the tool itself; safe to delete at any time.
 
 Used for what is costly and depends only on content: a registry file's parsed and schema-checked form,
-an aircraft's computed figures. A key is the SHA-256 of the tool itself (`code_key`: its version, code,
-templates and libraries), a namespace and the inputs, so new code or any changed input simply misses. Entries are pickles written whole (temporary file,
-then rename), so an interrupted or concurrent build never reads half an entry; an unreadable entry is a
-miss. Only this tool's own cache folder is read: never point it at files you did not let it write.
+an aircraft's computed figures. A key is the SHA-256 of the tool (`code_key`: its code, templates and
+libraries) and the inputs, so new code or any changed input simply misses. Entries are pickles written
+whole (temporary file, then rename), so an interrupted or concurrent build never reads half an entry;
+an unreadable entry is a miss. Only this tool's own cache folder is read: never point it at files you
+did not let it write.
 """
 from __future__ import annotations
 
@@ -19,11 +20,6 @@ import tempfile
 from importlib import metadata
 from pathlib import Path
 from typing import Any
-
-from registry import __version__
-
-FORMAT = "8"
-"""The cache's own layout version (the code's content is in every key as well)."""
 
 PACKAGE_DIR = Path(__file__).resolve().parent
 TEMPLATE_DIR = PACKAGE_DIR.parent / "site_templates"
@@ -63,11 +59,10 @@ def library_versions() -> list[str]:
 
 @functools.lru_cache(maxsize=1)
 def code_key() -> str:
-    """Key of the tool itself: its version, its modules, schemas, shipped data and site templates, and
-    the versions of Python and of the libraries that shape the output. Part of every cache key, so an
-    edited rule or template, or an upgraded library, never reads an entry made by the code before."""
-    return _digest([f"{__version__}|{FORMAT}", *library_versions(), *content_parts(PACKAGE_DIR),
-                    *content_parts(TEMPLATE_DIR)])
+    """Key of the tool itself: its modules (version included), schemas, shipped data and site templates,
+    and the versions of Python and of the libraries that shape the output. Part of every cache key, so
+    an edited rule or template, or an upgraded library, never reads an entry made by the code before."""
+    return _digest([*library_versions(), *content_parts(PACKAGE_DIR), *content_parts(TEMPLATE_DIR)])
 
 
 def _digest(parts: list[bytes | str], seed: str = "") -> str:

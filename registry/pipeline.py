@@ -116,7 +116,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
     as_of = as_of_date(data_dir)
     info = render.build_info(data_dir)
     key = "" if naive else sitekey.site_key(data_dir, as_of, info, record.dumps(baseline.record)
-                                            if baseline is not None else "", naive)
+                                            if baseline is not None else "")
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
     cache_root = diskcache.version_folder(cache_dir) if cache_dir is not None else None

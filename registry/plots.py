@@ -19,8 +19,8 @@ from pathlib import Path
 
 import numpy as np
 
-from registry import __version__
 from registry import workers as workers_
+from registry.diskcache import key_of
 from registry.results import CableResult, Curve, InstallationResult, PatternResult
 
 INK = "#2b2f36"
@@ -275,8 +275,8 @@ def attenuation_plot(cable: CableResult) -> Drawn:
 class PlotStore:
     """Plots by content key: drawn at most once per build, and kept on disk across builds.
 
-    `cache_dir` (optional) holds one JSON file (SVG and alt text) per key; the key includes the tool
-    version, so a new version never reuses an old drawing. The folder is safe to delete at any time.
+    `cache_dir` (optional) holds one JSON file (SVG and alt text) per key; the key includes the tool's
+    code (`diskcache.key_of`), so new plotting code never reuses an old drawing. The folder is safe to delete at any time.
     """
 
     def __init__(self, cache_dir: Path | None = None, naive: bool = False):
@@ -307,7 +307,7 @@ class PlotStore:
     def _path(self, kind: str, key: str) -> Path | None:
         if self.cache_dir is None:
             return None
-        stamp = hashlib.sha256(f"{__version__}|{kind}-{key}".encode()).hexdigest()[:24]
+        stamp = key_of(kind, key)[:24]  # the tool's code is in the key: new plotting code draws again
         return self.cache_dir / f"{stamp}.json"
 
     def _stored(self, kind: str, key: str) -> Drawn | None:

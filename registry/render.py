@@ -47,10 +47,6 @@ STATUS_LABELS = {**SEVERITY_LABELS, "clear": "No open findings"}
 STATE_LABELS = {"open": "Open", "reopened": "Reopened", "accepted": "Accepted",
                 "action-raised": "Action raised", "no-fault": "No fault found"}
 
-TEMPLATES_KEY = key_of(*(f"{path.relative_to(TEMPLATE_DIR)}:{path.read_text(encoding='utf-8')}"
-                         for path in sorted(TEMPLATE_DIR.rglob("*.html"))))
-"""Key of the page templates: a changed template renders every page again."""
-
 NAV_ITEMS = (
     ("fleet", "Fleet", "index.html"),
     ("services", "Services", "services.html"),
@@ -508,7 +504,7 @@ class Site:
 
     def reuse_pages(self, aircraft: Aircraft) -> bool:
         """True (and the files given as REUSE) when the previous build's pages of this aircraft show what
-        this build would (same figures' inputs, reviews, change marks, templates and tool version)."""
+        this build would (same figures' inputs, reviews, change marks, and the tool's code and templates)."""
         if self.incremental is None:
             return False
         key = self.page_key(aircraft)
@@ -598,7 +594,8 @@ class Site:
             return ""
         reviews = [repr(review) for review in self.reviews_of.get(aircraft.id, ())]
         marks = [self.marks(aircraft.id)] + [self.marks(aircraft.id, p) for p in aircraft.installations]
-        key = key_of(figures_key, *reviews, repr(marks), str(self.comparison is not None), TEMPLATES_KEY)
+        # key_of holds the templates and the code (diskcache.code_key): a changed template renders every page
+        key = key_of(figures_key, *reviews, repr(marks), str(self.comparison is not None))
         self.page_keys[aircraft.id] = key
         return key
 

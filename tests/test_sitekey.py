@@ -10,8 +10,8 @@ DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 DAY = date(2026, 10, 1)
 
 
-def key(data: Path, day: date = DAY, info: str = "build", baseline: str = "", naive: bool = False) -> str:
-    return sitekey.site_key(data, day, info, baseline, naive)
+def key(data: Path, day: date = DAY, info: str = "build", baseline: str = "") -> str:
+    return sitekey.site_key(data, day, info, baseline)
 
 
 def test_site_key_follows_every_input(tmp_path):

@@ -17,7 +17,7 @@ import os
 import re
 import subprocess
 from collections import Counter, defaultdict
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from datetime import datetime, timezone
 from pathlib import Path
 from collections.abc import Callable
@@ -35,7 +35,7 @@ from registry.diskcache import DiskCache, key_of
 from registry.progress import QUIET, Progress
 from registry.model import Aircraft, Fleet, Installation
 from registry.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
-                              InstallationResult, figure_uses)
+                              InstallationResult, PatternResult, figure_uses)
 
 TEMPLATE_DIR = Path(__file__).resolve().parent.parent / "site_templates"
 STATIC_DIR = TEMPLATE_DIR / "static"
@@ -232,8 +232,12 @@ SEARCH_PATHS = {"aircraft": aircraft_path, "installation": installation_path, "a
 """Where the search index points for each kind of thing."""
 
 
-def pattern_plot_path(key: str) -> str:
-    return f"plots/pattern/{safe_name(key)}.svg"
+def pattern_plot_path(key: str, model_id: str, named_after: str) -> str:
+    """A pattern's plot as drawn for one antenna model. Models of the same content share the pattern
+    but each plot carries its model's name, so a model other than the one the pattern is named after
+    gets a file of its own."""
+    name = key if model_id == named_after else f"{key}~{model_id}"
+    return f"plots/pattern/{safe_name(name)}.svg"
 
 
 def vswr_plot_path(key: str) -> str:
@@ -670,10 +674,7 @@ class Site:
         figures = result.figures if result else ()
         pattern = None
         if result and result.pattern_key and result.pattern_key in self.results.patterns:
-            pattern_result = self.results.patterns[result.pattern_key]
-            pattern = {"src": pattern_plot_path(pattern_result.key), "freq": fmt(pattern_result.freq_mhz, "MHz"),
-                       "alt": self.pattern_alts[pattern_result.key],
-                       "figures": [self.figure_view(f) for f in pattern_result.metrics]}
+            pattern = self.pattern_view(self.results.patterns[result.pattern_key], installation.antenna)
         vswr = None
         key = plots.vswr_key(result) if result is not None else None
         if key is not None:
@@ -708,14 +709,24 @@ class Site:
                   sweep_name=installation.measured.sweep.name if installation.measured and installation.measured.sweep else "")
 
     def pattern_plots(self, workers: int = 1) -> None:
-        """Every pattern's plot, the ones not drawn before drawn in `workers` processes."""
-        patterns = sorted(self.results.patterns.items())
+        """Every pattern's plot for each model that uses it, those not drawn before drawn in `workers`
+        processes."""
+        wanted = sorted((key, model_id) for model_id, keys in self.model_patterns.items() for key in keys
+                        if key in self.results.patterns)
         drawings = self.plots.get_all("pattern", [
-            (plots.content_key(key, pattern.antenna), functools.partial(plots.pattern_plot, pattern))
-            for key, pattern in patterns], workers)
-        for (key, _), drawn in zip(patterns, drawings):
-            self.files[pattern_plot_path(key)] = drawn.svg
-            self.pattern_alts[key] = drawn.alt
+            (plots.content_key(key, model_id),
+             functools.partial(plots.pattern_plot, replace(self.results.patterns[key], antenna=model_id)))
+            for key, model_id in wanted], workers)
+        for (key, model_id), drawn in zip(wanted, drawings):
+            path = pattern_plot_path(key, model_id, self.results.patterns[key].antenna)
+            self.files[path] = drawn.svg
+            self.pattern_alts[path] = drawn.alt
+
+    def pattern_view(self, pattern: PatternResult, model_id: str) -> dict[str, Any]:
+        """A pattern as a page shows it for one antenna model: its plot, the plot's alt text, its figures."""
+        path = pattern_plot_path(pattern.key, model_id, pattern.antenna)
+        return {"src": path, "alt": self.pattern_alts.get(path, ""), "freq": fmt(pattern.freq_mhz, "MHz"),
+                "figures": [self.figure_view(f) for f in pattern.metrics]}
 
     def antenna_pages(self) -> None:
         rows = []
@@ -731,9 +742,7 @@ class Site:
                       [("Antennas", "antennas.html"), (model.id, None)],
                       model=model, kind=model.kind.replace("_", " "), bands=bands_text(model.bands_mhz),
                       geometry=[(key, geometry_text(value)) for key, value in model.geometry.items()],
-                      patterns=[{"src": pattern_plot_path(p.key), "alt": self.pattern_alts.get(p.key, ""),
-                                 "freq": fmt(p.freq_mhz, "MHz"), "figures": [self.figure_view(f) for f in p.metrics]}
-                                for p in patterns],
+                      patterns=[self.pattern_view(p, model.id) for p in patterns],
                       uses_count=uses_count, uses_rows=uses_rows, src=self.model_src(model))
         self.page("antennas.html", "antennas.html", "antennas", "Antenna models", [], models=rows)
 

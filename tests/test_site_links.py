@@ -83,3 +83,18 @@ def test_downloads_and_search_index_are_written(demo_site):
     assert (demo_site / "audit" / "discrepancies.json").is_file()
     index = (demo_site / "static" / "search-index.js").read_text(encoding="utf-8")
     assert index.startswith("window.AERIALBOOK_SEARCH = [")
+
+
+def test_a_pattern_shared_by_two_models_is_shown_under_each_models_name(demo_site, demo_fleet):
+    # Two catalogue models of the same geometry share one computed pattern; each page's plot and its
+    # alt text must still name the model installed there (common practice, no source).
+    checked = 0
+    for aircraft, installation in demo_fleet.installations():
+        page = (demo_site / "aircraft" / aircraft.id / f"{installation.position}.html").read_text(encoding="utf-8")
+        found = re.search(r'<img class="plot" src="\.\./\.\./(plots/pattern/[^"]+)" alt="([^"]*)"', page)
+        if not found:
+            continue
+        assert f"antenna model {installation.antenna} at" in found.group(2), (aircraft.id, installation.position)
+        assert f"{installation.antenna} at" in (demo_site / found.group(1)).read_text(encoding="utf-8")
+        checked += 1
+    assert checked > 100

@@ -56,8 +56,9 @@ def demo_fleet():
     import datetime
     from pathlib import Path
 
-    from registry import cache, compute
-    from registry.load import load_fleet
+    from registry.compute import antenna as cache
+    from registry.compute import aircraft as compute
+    from registry.load.fleet import load_fleet
 
     fleet = load_fleet(Path(__file__).resolve().parent.parent / "fleet_data")
     for cached in (cache._pattern, cache._impedance, cache._raw_grid):

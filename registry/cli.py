@@ -16,7 +16,7 @@ import traceback
 from pathlib import Path
 
 from registry import __version__
-from registry.results import SEVERITIES
+from registry.core.results import SEVERITIES
 
 EXIT_OK = 0
 EXIT_OPEN = 1
@@ -121,14 +121,14 @@ def run(args: argparse.Namespace) -> int:
     if args.command == "build":
         baseline = None
         if args.compare:
-            from registry import diff
+            from registry.output import diff
             baseline = diff.read_side(args.compare, run=pipeline.run, git_data_dir=data_dir,
                                       as_of=pipeline.as_of_date(data_dir))
         out = Path(args.out)
         naive = os.environ.get("AERIALBOOK_NAIVE") == "1"  # the benchmark's baseline: no reuse at all
         default_cache = os.environ.get("AERIALBOOK_CACHE_DIR") or out.parent / ".aerialbook-cache"
         cache_dir = None if args.no_cache or naive else Path(args.cache or default_cache)
-        from registry.progress import Progress
+        from registry.core.progress import Progress
         out_dir, written = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive,
                                           progress=Progress(sys.stderr))
         if written:
@@ -142,7 +142,8 @@ def run(args: argparse.Namespace) -> int:
 
 
 def run_check(args: argparse.Namespace, outcome) -> int:
-    from registry import checks, report
+    from registry.check import rules as checks
+    from registry.output import report
 
     fleet = outcome.fleet
     unknown = [name for name in args.aircraft or () if name not in fleet.aircraft
@@ -167,7 +168,8 @@ def run_check(args: argparse.Namespace, outcome) -> int:
 def run_diff(args: argparse.Namespace) -> int:
     from datetime import date
 
-    from registry import diff, pipeline
+    from registry import pipeline
+    from registry.output import diff
 
     sides = list(args.sides)
     if args.git:
@@ -197,9 +199,9 @@ def run_diff(args: argparse.Namespace) -> int:
 
 
 def report_error(error: Exception, debug: bool) -> int:
-    from registry.errors import DataError
-    from registry.publish import PublishError
-    from registry.record import RecordError
+    from registry.core.errors import DataError
+    from registry.site.publish import PublishError
+    from registry.output.record import RecordError
 
     if debug:
         traceback.print_exception(error, file=sys.stderr)

@@ -14,12 +14,20 @@ from datetime import date, datetime, timezone
 from pathlib import Path
 from typing import Iterator, NamedTuple
 
-from registry import checks, compute, diff, diskcache, plots, publish, record, render, sitekey
-from registry.diskcache import DiskCache
-from registry.load import load_fleet
-from registry.model import Fleet, Review
-from registry.progress import QUIET, Progress
-from registry.results import Discrepancy, FleetResults
+from registry.check import rules as checks
+from registry.compute import aircraft as compute
+from registry.output import diff
+from registry.incremental import store as diskcache
+from registry.site import plots
+from registry.site import publish
+from registry.output import record
+from registry.site import render
+from registry.incremental import sitekey
+from registry.incremental.store import DiskCache
+from registry.load.fleet import load_fleet
+from registry.core.model import Fleet, Review
+from registry.core.progress import QUIET, Progress
+from registry.core.results import Discrepancy, FleetResults
 
 
 @dataclass

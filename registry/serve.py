@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import Callable
 
 from registry import pipeline
-from registry.errors import DataError
+from registry.core.errors import DataError
 
 Snapshot = dict[str, tuple[int, int]]
 

@@ -9,11 +9,11 @@ from datetime import date
 
 import pytest
 
-from registry import checks
-from registry.figures_element import uncovered_mhz
-from registry.errors import Src
-from registry.model import FrozenMap, Review
-from registry.results import Discrepancy
+from registry.check import rules as checks
+from registry.compute.element import uncovered_mhz
+from registry.core.errors import Src
+from registry.core.model import FrozenMap, Review
+from registry.core.results import Discrepancy
 
 
 def test_uncovered_band_is_service_minus_rated():

@@ -9,8 +9,11 @@ from pathlib import Path
 
 import pytest
 
-import registry.load
-from registry import diff, pipeline, record, render
+import registry.load.fleet
+from registry import pipeline
+from registry.output import diff
+from registry.output import record
+from registry.site import render
 from registry.cli import main
 
 FIXTURES = Path(__file__).parent / "fixtures"
@@ -29,7 +32,7 @@ GNSS_ON_FCB = """  - position: GNSS1
 
 @pytest.fixture
 def fixture_shipped(monkeypatch):
-    monkeypatch.setattr(registry.load, "SHIPPED_DIR", FIXTURES / "shipped")
+    monkeypatch.setattr(registry.load.fleet, "SHIPPED_DIR", FIXTURES / "shipped")
     monkeypatch.setenv("SOURCE_DATE_EPOCH", AS_OF_EPOCH)
 
 

@@ -10,7 +10,8 @@ from pathlib import Path
 
 import pytest
 
-from registry import diskcache, pipeline
+from registry import pipeline
+from registry.incremental import store as diskcache
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 

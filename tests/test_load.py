@@ -7,9 +7,9 @@ from pathlib import Path
 
 import pytest
 
-from registry.errors import DataError, Problem, Src
-from registry.load import load_fleet
-from registry.units import FOOT_M
+from registry.core.errors import DataError, Problem, Src
+from registry.load.fleet import load_fleet
+from registry.core.units import FOOT_M
 
 FIXTURES = Path(__file__).parent / "fixtures"
 GOOD = FIXTURES / "good"

@@ -15,10 +15,10 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import registry.load
-from registry.errors import DataError
-from registry.load import load_fleet
-from registry.yamlsource import MAX_BYTES
+import registry.load.fleet
+from registry.core.errors import DataError
+from registry.load.fleet import load_fleet
+from registry.load.yamlsource import MAX_BYTES
 
 FIXTURES = Path(__file__).parent / "fixtures"
 SHIPPED = FIXTURES / "shipped"
@@ -224,7 +224,7 @@ def test_missing_shipped_table_is_reported(tmp_path):
 
 def test_check_command_prints_problems_and_exits_2(tmp_path, monkeypatch, capsys):
     cli = pytest.importorskip("registry.cli")
-    monkeypatch.setattr(registry.load, "SHIPPED_DIR", SHIPPED)
+    monkeypatch.setattr(registry.load.fleet, "SHIPPED_DIR", SHIPPED)
     data = make_registry(tmp_path, "unknown_cable")
     assert cli.main(["check", str(data)]) == 2
     err = capsys.readouterr().err

@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 from jsonschema import Draft202012Validator
 
-from registry.schemacheck import ID_PATTERN, number_words, unit_of
+from registry.load.schemacheck import ID_PATTERN, number_words, unit_of
 
 SCHEMAS = sorted((Path(__file__).parent.parent / "registry" / "schemas").glob("*.schema.json"))
 KINDS = ["aircraft", "airframe", "antennas", "cables", "fleet", "policy", "reviews", "services"]

@@ -5,8 +5,8 @@ from pathlib import Path
 
 import pytest
 
-from registry.errors import Src
-from registry.yamlsource import MAX_ALIAS_VALUES, MAX_DEPTH, read_yaml
+from registry.core.errors import Src
+from registry.load.yamlsource import MAX_ALIAS_VALUES, MAX_DEPTH, read_yaml
 
 
 def read(tmp_path: Path, text: str | bytes):

@@ -10,7 +10,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from registry import units
+from registry.core import units
 from registry.physics import coupling, feeder, mismatch, wave
 
 REF = Path(__file__).parent / "reference"

@@ -172,7 +172,7 @@ def test_radiated_power_equals_input_power_for_lossless_wires():
     equals the input power 1/2 Re(V I*) (Poynting's theorem; Balanis 4th ed., ch. 2). 1 %."""
     from registry.physics.metrics import radiated_integral
     from registry.physics.wire import far_field_theta
-    from registry.units import ETA0
+    from registry.core.units import ETA0
 
     lengths_l, positions_l = YAGIS["3 elements"]
     geometry = {"element_lengths_m": tuple(v * LAM for v in lengths_l),

@@ -8,8 +8,8 @@ import xml.etree.ElementTree as ET
 import numpy as np
 import pytest
 
-from registry import plots
-from registry.results import CableResult, Curve, InstallationResult, PatternResult
+from registry.site import plots
+from registry.core.results import CableResult, Curve, InstallationResult, PatternResult
 
 
 def dipole_cut(step_deg: float = 0.25) -> Curve:
@@ -91,8 +91,8 @@ def test_attenuation_plot_is_well_formed():
 def test_plots_never_load_pyplot():
     code = (
         "import sys, numpy as np\n"
-        "from registry import plots\n"
-        "from registry.results import Curve, CableResult\n"
+        "from registry.site import plots\n"
+        "from registry.core.results import Curve, CableResult\n"
         "c = Curve(np.array([1.0, 2.0]), np.array([1.0, 2.0]), 'f (MHz)', 'a (dB)')\n"
         "plots.attenuation_plot(CableResult('x', c, c, ()))\n"
         "print('matplotlib.pyplot' in sys.modules)\n"

@@ -3,7 +3,7 @@ import io
 from pathlib import Path
 
 from registry import cli
-from registry.progress import Progress
+from registry.core.progress import Progress
 
 
 class Terminal(io.StringIO):

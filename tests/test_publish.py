@@ -7,7 +7,7 @@ import fcntl
 
 import pytest
 
-from registry import publish
+from registry.site import publish
 
 
 def write_site(out_dir, text):

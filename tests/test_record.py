@@ -8,9 +8,10 @@ from pathlib import Path
 import jsonschema
 import pytest
 
-import registry.load
-from registry import pipeline, record
-from registry.record import RecordError
+import registry.load.fleet
+from registry import pipeline
+from registry.output import record
+from registry.output.record import RecordError
 
 FIXTURES = Path(__file__).parent / "fixtures"
 GOOD = FIXTURES / "good"
@@ -19,7 +20,7 @@ AS_OF_EPOCH = "1772323200"  # 2026-03-01 00:00 UTC: measurement ages do not depe
 
 @pytest.fixture(autouse=True)
 def fixed_inputs(monkeypatch):
-    monkeypatch.setattr(registry.load, "SHIPPED_DIR", FIXTURES / "shipped")
+    monkeypatch.setattr(registry.load.fleet, "SHIPPED_DIR", FIXTURES / "shipped")
     monkeypatch.setenv("SOURCE_DATE_EPOCH", AS_OF_EPOCH)
 
 

@@ -13,11 +13,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from registry import render
-from registry.errors import Src
-from registry.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap, Fuselage,
+from registry.site import render
+from registry.core.errors import Src
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap, Fuselage,
                             Installation, Location, Measured, Modification, Policy, Service, Wing, Zone)
-from registry.results import (CableResult, Curve, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
+from registry.core.results import (CableResult, Curve, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
                               PatternResult)
 
 BUILD = render.BuildInfo(revision="abc1234", time="2026-01-15 10:00:00 UTC", version="0.1.0")

@@ -4,7 +4,8 @@ import shutil
 from datetime import date
 from pathlib import Path
 
-from registry import diskcache, sitekey
+from registry.incremental import store as diskcache
+from registry.incremental import sitekey
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 DAY = date(2026, 10, 1)

@@ -11,7 +11,7 @@ import pytest
 import yaml
 
 from registry import pipeline
-from registry.load import load_fleet
+from registry.load.fleet import load_fleet
 
 ROOT = Path(__file__).resolve().parent.parent
 ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from registry.physics.wave import wavelength_m
-from registry.units import INCH_M
+from registry.core.units import INCH_M
 
 _UNIT_M = {"inch": INCH_M, "mm": 1e-3, "m": 1.0}
 

@@ -10,7 +10,7 @@ import math
 
 import numpy as np
 
-from registry.units import C_M_PER_S
+from registry.core.units import C_M_PER_S
 
 
 def wavenumber_rad_per_m(freq_hz):

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from registry.physics.mismatch import gamma_from_vswr, mismatch_loss_db, return_loss_db
-from registry.units import C_M_PER_S, ETA0, MU0, NP_TO_DB, per_100ft_to_per_100m
+from registry.core.units import C_M_PER_S, ETA0, MU0, NP_TO_DB, per_100ft_to_per_100m
 
 #: annealed copper conductivity, S/m (IEC 60028: 58.0 MS/m)
 COPPER_S_PER_M = 5.8e7

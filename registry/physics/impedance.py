@@ -22,7 +22,7 @@ import numpy as np
 from registry.physics import kinds as _kinds
 from registry.physics.mismatch import vswr_from_z
 from registry.physics.wire import Wire, WireSolution, build_structure, solve_structure
-from registry.units import C_M_PER_S, ETA0
+from registry.core.units import C_M_PER_S, ETA0
 
 #: default segments on the longest wire of a structure (the others scale with their length)
 DEFAULT_SEGMENTS = 20

@@ -25,7 +25,7 @@ import numpy as np
 
 from registry.physics import arrays, elements, metrics
 from registry.physics.kinds import OMNI_KINDS, canonical_geometry
-from registry.units import C_M_PER_S
+from registry.core.units import C_M_PER_S
 
 #: E-plane and H-plane of each kind (see metrics.plane_directions and the axes in kinds.py)
 PLANES = {

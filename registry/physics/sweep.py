@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 
 from registry.physics.mismatch import return_loss_db, vswr_from_gamma
-from registry.units import C_M_PER_S
+from registry.core.units import C_M_PER_S
 
 _FREQ_UNITS = {"HZ": 1.0, "KHZ": 1e3, "MHZ": 1e6, "GHZ": 1e9}
 

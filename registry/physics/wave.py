@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from registry.units import C_M_PER_S
+from registry.core.units import C_M_PER_S
 
 #: the trade's shortening rule: resonant length = 95 % of the free-space half or quarter wavelength
 RULE_OF_THUMB_FACTOR = 0.95

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from registry.units import C_M_PER_S, ETA0
+from registry.core.units import C_M_PER_S, ETA0
 
 
 @dataclass(frozen=True)

@@ -7,8 +7,8 @@ import json
 from collections import Counter
 from dataclasses import asdict
 
-from registry.model import Fleet
-from registry.results import ALL_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
+from registry.core.model import Fleet
+from registry.core.results import ALL_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
 
 FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",
           "source", "review", "reviewer", "review_reference", "review_comment")

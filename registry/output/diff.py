@@ -26,8 +26,8 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry import record as build_record
-from registry.record import RecordError
+from registry.output import record as build_record
+from registry.output.record import RecordError
 
 DEFAULT_REL_TOL = 1e-3
 """Figures closer than 0.1 % of the larger magnitude have not moved..."""
@@ -690,7 +690,7 @@ def git(cwd: Path, *args: str) -> subprocess.CompletedProcess:
 
 def git_side(rev: str, data_dir: Path, run: Callable[..., Any], as_of: date | None) -> Side:
     """`data_dir` at git revision `rev`: `git archive` of its tree into a temporary folder, then run."""
-    from registry.errors import DataError
+    from registry.core.errors import DataError
 
     if not rev or rev.startswith("-"):
         raise RecordError(f"git:{rev}: expected a git revision after 'git:' (HEAD~1, a tag, a commit)")

@@ -13,16 +13,17 @@ from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
 
-from registry import cache, record
-from registry import workers as workers_
-from registry.diskcache import DiskCache, key_of
-from registry.figures_element import band_figures, ground_plane_figures, length_figures, modelled_vswr
-from registry.figures_feeder import cable_result, feeder_figures, measured_figures
-from registry.figures_pair import pair_results
-from registry.load import SHIPPED_DIR
-from registry.model import Aircraft, Fleet
-from registry.progress import QUIET, Progress
-from registry.results import (AircraftSummary, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
+from registry.compute import antenna as cache
+from registry.output import record
+from registry.incremental import parallel as workers_
+from registry.incremental.store import DiskCache, key_of
+from registry.compute.element import band_figures, ground_plane_figures, length_figures, modelled_vswr
+from registry.compute.feeder import cable_result, feeder_figures, measured_figures
+from registry.compute.pair import pair_results
+from registry.load.fleet import SHIPPED_DIR
+from registry.core.model import Aircraft, Fleet
+from registry.core.progress import QUIET, Progress
+from registry.core.results import (AircraftSummary, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
                               PatternResult, figure_uses)
 
 

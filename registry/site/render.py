@@ -28,18 +28,21 @@ from markupsafe import Markup
 import markdown
 import nh3
 
-from registry import __version__, plots, sitedrawing, sitesearch
-from registry import workers as workers_
-from registry.diff import Comparison, changes_page
-from registry.diskcache import DiskCache, key_of
-from registry.progress import QUIET, Progress
-from registry.model import Aircraft, Fleet, Installation
-from registry.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
+from registry import __version__
+from registry.site import plots
+from registry.site import drawing as sitedrawing
+from registry.site import search as sitesearch
+from registry.incremental import parallel as workers_
+from registry.output.diff import Comparison, changes_page
+from registry.incremental.store import DiskCache, key_of
+from registry.core.progress import QUIET, Progress
+from registry.core.model import Aircraft, Fleet, Installation
+from registry.core.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
                               InstallationResult, PatternResult, figure_uses)
 
-TEMPLATE_DIR = Path(__file__).resolve().parent.parent / "site_templates"
+TEMPLATE_DIR = Path(__file__).resolve().parent.parent.parent / "site_templates"
 STATIC_DIR = TEMPLATE_DIR / "static"
-PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent) + "/"
+PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent.parent) + "/"
 """Shipped files (registry/data/...) are shown relative to the package's folder, never as absolute paths."""
 
 SEVERITY_LABELS = {"blocking": "Blocking", "concern": "Concern", "advisory": "Advisory"}

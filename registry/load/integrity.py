@@ -10,10 +10,10 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Iterable
 
-from registry.errors import Problem
-from registry.model import (RULES, Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
+from registry.core.errors import Problem
+from registry.core.model import (RULES, Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
                             Review, Service, Sourced)
-from registry.schemacheck import suggest
+from registry.load.schemacheck import suggest
 
 
 @dataclass(frozen=True)

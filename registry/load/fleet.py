@@ -14,17 +14,18 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry import integrity, schemacheck
-from registry import workers as workers_
-from registry.diskcache import DiskCache, key_of
-from registry.errors import FILE_FIELD, DataError, Problem, Src, parse_path
-from registry.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
+from registry.load import integrity
+from registry.load import schemacheck
+from registry.incremental import parallel as workers_
+from registry.incremental.store import DiskCache, key_of
+from registry.core.errors import FILE_FIELD, DataError, Problem, Src, parse_path
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
                             Fuselage, GroundPlane, Installation, IsolationRule, Locator, Location, Measured,
                             Modification, Policy, Review, Service, Wing, Zone, freeze)
-from registry.units import per_100ft_to_per_100m
-from registry.yamlsource import YamlDoc, read_yaml
+from registry.core.units import per_100ft_to_per_100m
+from registry.load.yamlsource import YamlDoc, read_yaml
 
-SHIPPED_DIR = Path(__file__).parent / "data"
+SHIPPED_DIR = Path(__file__).parent.parent / "data"
 POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "feeder_loss_budget_db",
                "connector_loss_db", "adapter_loss_db", "measurement_max_age_days",
                "ground_plane_min_radius_wavelengths", "min_isolation_db")

@@ -12,9 +12,9 @@ import math
 
 import numpy as np
 
-from registry.model import AntennaModel
+from registry.core.model import AntennaModel
 from registry.physics import impedance, kinds, patterns
-from registry.results import Curve, Figure, PatternResult
+from registry.core.results import Curve, Figure, PatternResult
 
 MHZ = 1e6
 

@@ -5,11 +5,11 @@ import math
 
 import numpy as np
 
-from registry import cache
-from registry.model import AntennaModel, Fleet, Installation
+from registry.compute import antenna as cache
+from registry.core.model import AntennaModel, Fleet, Installation
 from registry.physics import coupling
-from registry.results import Figure, PairResult
-from registry.sources import where
+from registry.core.results import Figure, PairResult
+from registry.core.sources import where
 
 MHZ = 1e6
 

@@ -8,10 +8,10 @@ from datetime import date
 
 import numpy as np
 
-from registry.model import AntennaModel, Cable, Installation, Policy, Service
+from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
 from registry.physics import feeder, mismatch, sweep
-from registry.results import CableResult, Curve, Figure
-from registry.sources import where
+from registry.core.results import CableResult, Curve, Figure
+from registry.core.sources import where
 
 MHZ = 1e6
 

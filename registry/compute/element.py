@@ -6,11 +6,11 @@ import math
 
 import numpy as np
 
-from registry import cache
-from registry.model import AntennaModel, Cable, Installation, Policy, Service
+from registry.compute import antenna as cache
+from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
 from registry.physics import impedance, mismatch, wave
-from registry.results import Curve, Figure
-from registry.sources import where
+from registry.core.results import Curve, Figure
+from registry.core.sources import where
 
 MHZ = 1e6
 MONOPOLE_KINDS = ("quarter_wave_monopole",)

@@ -23,7 +23,7 @@ from typing import Any, NamedTuple
 import yaml
 from yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
-from registry.errors import FILE_FIELD, Problem, Src, format_path
+from registry.core.errors import FILE_FIELD, Problem, Src, format_path
 
 MAX_BYTES = 2 * 1024 * 1024
 MAX_DEPTH = 50

@@ -14,8 +14,8 @@ from typing import Any, Iterable
 
 from jsonschema import Draft202012Validator, ValidationError
 
-from registry.errors import Problem, format_path
-from registry.yamlsource import YamlDoc
+from registry.core.errors import Problem, format_path
+from registry.load.yamlsource import YamlDoc
 
 ID_PATTERN = "^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$"
 ID_WORDS = "an id of up to 64 letters, digits, '.', '_' or '-', starting with a letter or digit"

@@ -12,7 +12,7 @@ import math
 import re
 from dataclasses import dataclass
 
-from registry.model import Airframe
+from registry.core.model import Airframe
 
 NOSE_FRACTION = 0.11   # share of the length the rounded nose takes (drawing only)
 TAIL_FRACTION = 0.27   # share of the length the tail cone takes (drawing only)

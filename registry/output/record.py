@@ -19,11 +19,11 @@ from pathlib import Path
 from typing import Any, NamedTuple
 
 from registry import __version__
-from registry.results import Figure
+from registry.core.results import Figure
 
 FORMAT_VERSION = 1
 RECORD_NAME = "record.json"
-SCHEMA_PATH = Path(__file__).parent / "schemas" / "record.schema.json"
+SCHEMA_PATH = Path(__file__).parent.parent / "schemas" / "record.schema.json"
 REGISTRY_DIGITS = 10
 FIGURE_DIGITS = 6
 SKIPPED_FIELDS = ("src", "locator")

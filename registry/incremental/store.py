@@ -21,7 +21,7 @@ from importlib import metadata
 from pathlib import Path
 from typing import Any
 
-PACKAGE_DIR = Path(__file__).resolve().parent
+PACKAGE_DIR = Path(__file__).resolve().parent.parent
 TEMPLATE_DIR = PACKAGE_DIR.parent / "site_templates"
 LIBRARIES = ("jinja2", "markdown", "matplotlib", "nh3", "numpy", "pyyaml", "scipy", "jsonschema")
 """Libraries whose version can change a figure, a page or a plot."""

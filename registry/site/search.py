@@ -9,7 +9,7 @@ from __future__ import annotations
 import json
 from typing import Callable
 
-from registry.model import Aircraft, Fleet
+from registry.core.model import Aircraft, Fleet
 
 Paths = dict[str, Callable[..., str]]
 

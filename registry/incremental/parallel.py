@@ -5,7 +5,7 @@ import multiprocessing
 from collections.abc import Callable, Iterable, Iterator
 from typing import Any
 
-from registry.progress import QUIET, Progress
+from registry.core.progress import QUIET, Progress
 
 MIN_ITEMS = 8
 """Below this many items the work stays in this process: starting workers would cost more."""

@@ -14,7 +14,7 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry.errors import Src, format_path, parse_path
+from registry.core.errors import Src, format_path, parse_path
 
 SURFACES = ("top", "bottom", "fin", "nose", "tail", "wing_left", "wing_right", "side_left", "side_right")
 RULES = ("element-length", "band-coverage", "vswr-bandwidth", "measured-vswr", "feeder-loss",

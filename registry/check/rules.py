@@ -9,9 +9,9 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from registry.model import Aircraft, Fleet, Installation, Review
-from registry.sources import where
-from registry.results import Discrepancy, Figure, FleetResults, InstallationResult, SEVERITIES
+from registry.core.model import Aircraft, Fleet, Installation, Review
+from registry.core.sources import where
+from registry.core.results import Discrepancy, Figure, FleetResults, InstallationResult, SEVERITIES
 
 DIRECTIONAL_KINDS = ("yagi_uda", "linear_array", "slotted_planar_array", "parabolic_reflector")
 IMPEDANCE_TOLERANCE_PCT = 5.0

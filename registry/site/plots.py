@@ -19,9 +19,9 @@ from pathlib import Path
 
 import numpy as np
 
-from registry import workers as workers_
-from registry.diskcache import key_of
-from registry.results import CableResult, Curve, InstallationResult, PatternResult
+from registry.incremental import parallel as workers_
+from registry.incremental.store import key_of
+from registry.core.results import CableResult, Curve, InstallationResult, PatternResult
 
 INK = "#2b2f36"
 GRID = "#9aa3ad"

@@ -4,26 +4,22 @@ Each stage is finished before the next starts, and no stage reaches back into an
 """
 from __future__ import annotations
 
-import contextlib
-import gc
 import json
 import os
 import subprocess
 from dataclasses import dataclass
 from datetime import date, datetime, timezone
 from pathlib import Path
-from typing import Iterator, NamedTuple
+from typing import NamedTuple
 
 from registry.check import rules as checks
 from registry.compute import aircraft as compute
 from registry.output import diff
-from registry.incremental import store as diskcache
 from registry.site import plots
 from registry.site import publish
 from registry.output import record
 from registry.site import render
-from registry.incremental import sitekey
-from registry.incremental.store import DiskCache
+from registry.incremental import DiskCache, collector_paused, collector_released, prune, site_key, version_folder
 from registry.load.fleet import load_fleet
 from registry.core.model import Fleet, Review
 from registry.core.progress import QUIET, Progress
@@ -85,25 +81,6 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
 
 
-@contextlib.contextmanager
-def collector_paused() -> Iterator[None]:
-    """Python's cycle collector paused while a stage makes millions of long-lived objects, which are
-    then left out of its walks (gc.freeze).
-
-    Loading and computing build plain records that all survive to the end of the build: the collector
-    would walk the growing heap again and again for no garbage (at 1,000 aircraft that was two thirds
-    of a rebuild), and walk it all once more when switched back on. Frozen objects are still freed when
-    no longer used; `build` hands them back to the collector (gc.unfreeze) when it ends."""
-    enabled = gc.isenabled()
-    gc.disable()
-    try:
-        yield
-    finally:
-        gc.freeze()
-        if enabled:
-            gc.enable()
-
-
 class Published(NamedTuple):
     """Where a build published its site, and whether it had to: False when the site was up to date."""
 
@@ -116,18 +93,18 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
     The site gets the build record (`record.json`); with a `baseline` (a record and its label), also a
-    comparison with it (`changes.html`). A site already built from the same inputs (`sitekey.py`) is
+    comparison with it (`changes.html`). A site already built from the same inputs (`incremental/sitekey.py`) is
     left as it is. `cache_dir` keeps parsed files, computed figures and drawn plots across builds, in a
-    folder of this code's own (`diskcache.version_folder`; other versions' folders are removed; all safe to
+    folder of this code's own (`incremental.version_folder`; other versions' folders are removed; all safe to
     delete); `workers` processes share the work (default: one per core). `naive` (the benchmark's
     baseline) keeps nothing and draws every plot for every installation."""
     as_of = as_of_date(data_dir)
     info = render.build_info(data_dir)
-    key = "" if naive else sitekey.site_key(data_dir, as_of, info, record.dumps(baseline.record)
+    key = "" if naive else site_key(data_dir, as_of, info, record.dumps(baseline.record)
                                             if baseline is not None else "")
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
-    cache_root = diskcache.version_folder(cache_dir) if cache_dir is not None else None
+    cache_root = version_folder(cache_dir) if cache_dir is not None else None
     try:
         outcome = run(data_dir, as_of=as_of, cache_dir=cache_root, workers=workers, progress=progress, lazy=True)
         built = record.to_text(outcome)
@@ -153,7 +130,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
             progress.advance()
             progress.finish()
     finally:
-        gc.unfreeze()  # what `run` froze goes back to the collector (`collector_paused`)
+        collector_released()  # what `run` froze goes back to the collector (`collector_paused`)
     if cache_dir is not None:
-        diskcache.prune(cache_dir)  # entries of earlier code can never be read again
+        prune(cache_dir)  # entries of earlier code can never be read again
     return Published(out_dir, True)

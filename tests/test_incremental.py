@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from registry import pipeline
-from registry.incremental import store as diskcache
+from registry import incremental as diskcache
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 

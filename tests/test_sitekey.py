@@ -4,7 +4,7 @@ import shutil
 from datetime import date
 from pathlib import Path
 
-from registry.incremental import store as diskcache
+from registry.incremental import keys as diskcache
 from registry.incremental import sitekey
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"

@@ -15,8 +15,7 @@ from pathlib import Path
 
 from registry.compute import antenna as cache
 from registry.output import record
-from registry.incremental import parallel as workers_
-from registry.incremental.store import DiskCache, key_of
+from registry.incremental import DiskCache, key_of, ordered_map
 from registry.compute.element import band_figures, ground_plane_figures, length_figures, modelled_vswr
 from registry.compute.feeder import cable_result, feeder_figures, measured_figures
 from registry.compute.pair import pair_results
@@ -87,7 +86,7 @@ def compute_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, work
         return part, summary, fresh
 
     progress.stage("computing aircraft", len(todo))
-    parts_computed = workers_.ordered_map(compute_one, todo, workers, progress)
+    parts_computed = ordered_map(compute_one, todo, workers, progress)
     # the generator first, so that zip runs it to its end and its worker pool is closed
     for (part, summary, patterns), (aircraft_id, key) in zip(parts_computed, todo):
         if part is None:

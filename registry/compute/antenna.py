@@ -7,12 +7,12 @@ model's id, so two models with the same geometry share one result and an edited 
 from __future__ import annotations
 
 import functools
-import hashlib
 import math
 
 import numpy as np
 
 from registry.core.model import AntennaModel
+from registry.incremental import repr_key
 from registry.physics import impedance, kinds, patterns
 from registry.core.results import Curve, Figure, PatternResult
 
@@ -68,11 +68,6 @@ def physics_geometry(model: AntennaModel) -> tuple[str, tuple[tuple[str, object]
     raise ValueError(f"no physics for antenna kind '{kind}'")
 
 
-def content_key(*parts: object) -> str:
-    """A short stable hash of the parts' repr (floats repr exactly, so equal content → equal key)."""
-    return hashlib.sha256(repr(parts).encode()).hexdigest()[:16]
-
-
 def pattern(model: AntennaModel, freq_mhz: float) -> PatternResult:
     """The model's pattern at `freq_mhz`, computed once per distinct content."""
     kind, geometry = physics_geometry(model)
@@ -95,7 +90,7 @@ def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
         Figure("pattern.azimuth_ripple_db", "Azimuth ripple", m.azimuth_ripple_db, "dB", source=method),
     ]
     return PatternResult(
-        key=content_key(kind, geometry, freq_mhz),
+        key=repr_key(kind, geometry, freq_mhz),
         antenna="",
         kind=kind,
         freq_mhz=freq_mhz,

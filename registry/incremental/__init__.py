@@ -1,0 +1,15 @@
+"""Reuse machinery behind one door: keys, the on-disk store, the cached parallel map, the collector pause.
+
+Every other package imports from `registry.incremental` only (never its modules), and nothing outside
+this package imports hashlib, pickle, multiprocessing, concurrent.futures or gc
+(tests/test_layout.py holds both).
+"""
+from registry.incremental.collector import collector_paused, collector_released
+from registry.incremental.keys import array_key, code_key, content_parts, key_of, repr_key, text_key
+from registry.incremental.parallel import cached_map, ordered_map
+from registry.incremental.sitekey import site_key
+from registry.incremental.store import DiskCache, prune, version_folder, write_text_atomically
+
+__all__ = ["DiskCache", "array_key", "cached_map", "code_key", "collector_paused", "collector_released",
+           "content_parts", "key_of", "ordered_map", "prune", "repr_key", "site_key", "text_key",
+           "version_folder", "write_text_atomically"]

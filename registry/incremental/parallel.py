@@ -2,8 +2,8 @@
 from __future__ import annotations
 
 import multiprocessing
-from collections.abc import Callable, Iterable, Iterator
-from typing import Any
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from typing import Any, Protocol
 
 from registry.core.progress import QUIET, Progress
 
@@ -41,3 +41,25 @@ def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
                 progress.advance()
     finally:
         _TASK = None
+
+
+class Cache(Protocol):
+    """Where `cached_map` keeps results: `get(key)` (None on a miss) and `put(key, value)`."""
+
+    def get(self, key: str) -> Any | None: ...
+
+    def put(self, key: str, value: Any) -> None: ...
+
+
+def cached_map(task: Callable[[Any], Any], items: Sequence[Any], keys: Sequence[str | None], cache: Cache,
+               workers: int = 1, progress: Progress = QUIET) -> list[Any]:
+    """task(item) for every item, in order: an item whose key is in `cache` is read from it, the others
+    are computed by `ordered_map` over `workers` processes and written back. A key of None (an input
+    that could not be read) is always computed and never kept."""
+    found = [cache.get(key) if key else None for key in keys]
+    missing = [n for n, hit in enumerate(found) if hit is None]
+    for n, value in zip(missing, ordered_map(lambda n: task(items[n]), missing, workers, progress)):
+        found[n] = value
+        if keys[n]:
+            cache.put(keys[n], value)
+    return found

@@ -11,7 +11,7 @@ from __future__ import annotations
 from datetime import date
 from pathlib import Path
 
-from registry.incremental.store import content_parts, key_of
+from registry.incremental.keys import content_parts, key_of
 
 
 def site_key(data_dir: Path, as_of: date, build_info: object, baseline_text: str) -> str:

@@ -9,75 +9,15 @@ did not let it write.
 """
 from __future__ import annotations
 
-import functools
-import hashlib
 import os
 import pickle
 import re
 import shutil
-import sys
 import tempfile
-from importlib import metadata
 from pathlib import Path
 from typing import Any
 
-PACKAGE_DIR = Path(__file__).resolve().parent.parent
-TEMPLATE_DIR = PACKAGE_DIR.parent / "site_templates"
-LIBRARIES = ("jinja2", "markdown", "matplotlib", "nh3", "numpy", "pyyaml", "scipy", "jsonschema")
-"""Libraries whose version can change a figure, a page or a plot."""
-
-
-def files_under(folder: Path) -> list[Path]:
-    """Regular files under `folder`, sorted, skipping anything hidden or inside a hidden folder."""
-    found = []
-    for path in folder.rglob("*"):
-        relative = path.relative_to(folder).parts
-        if any(part.startswith(".") or part == "__pycache__" for part in relative):
-            continue
-        if path.is_file():
-            found.append(path)
-    return sorted(found)
-
-
-def content_parts(folder: Path) -> list[str | bytes]:
-    """Each file under `folder` (`files_under`) as its relative path and its bytes, for `key_of`."""
-    parts: list[str | bytes] = []
-    for path in files_under(folder):
-        parts += [path.relative_to(folder).as_posix(), path.read_bytes()]
-    return parts
-
-
-def library_versions() -> list[str]:
-    versions = [sys.version]
-    for name in LIBRARIES:
-        try:
-            versions.append(f"{name} {metadata.version(name)}")
-        except metadata.PackageNotFoundError:
-            versions.append(f"{name} absent")
-    return versions
-
-
-@functools.lru_cache(maxsize=1)
-def code_key() -> str:
-    """Key of the tool itself: its modules (version included), schemas, shipped data and site templates,
-    and the versions of Python and of the libraries that shape the output. Part of every cache key, so
-    an edited rule or template, or an upgraded library, never reads an entry made by the code before."""
-    return _digest([*library_versions(), *content_parts(PACKAGE_DIR), *content_parts(TEMPLATE_DIR)])
-
-
-def _digest(parts: list[bytes | str], seed: str = "") -> str:
-    digest = hashlib.sha256(seed.encode())
-    for part in parts:
-        data = part.encode() if isinstance(part, str) else part
-        digest.update(len(data).to_bytes(8, "little"))
-        digest.update(data)
-    return digest.hexdigest()
-
-
-def key_of(*parts: bytes | str) -> str:
-    """SHA-256 (hex) of the tool (`code_key`) and the parts, each length-prefixed so no two inputs collide."""
-    return _digest(list(parts), code_key())
-
+from registry.incremental.keys import code_key
 
 def version_folder(cache_dir: Path) -> Path:
     """The folder, inside a cache folder, for entries made by this very code (`code_key`): nothing
@@ -131,3 +71,16 @@ class DiskCache:
         except BaseException:
             Path(tmp).unlink(missing_ok=True)
             raise
+
+
+def write_text_atomically(path: Path, text: str) -> None:
+    """Write a text file whole or not at all (a concurrent or interrupted build never sees half a file)."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-")
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8") as out:
+            out.write(text)
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise

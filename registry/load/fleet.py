@@ -16,8 +16,7 @@ from typing import Any
 
 from registry.load import integrity
 from registry.load import schemacheck
-from registry.incremental import parallel as workers_
-from registry.incremental.store import DiskCache, key_of
+from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src, parse_path
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
                             Fuselage, GroundPlane, Installation, IsolationRule, Locator, Location, Measured,
@@ -70,13 +69,7 @@ def parse(file: Path, kind: str, cache: DiskCache) -> Parsed:
 def parse_many(files: list[Path], kind: str, cache: DiskCache, workers: int = 1) -> list[Parsed]:
     """`parse` for each file, in order; files not in the cache are shared out over `workers` processes."""
     keys = [_file_key(kind, file) if cache.folder is not None else None for file in files]
-    found: list[Parsed | None] = [cache.get(key) if key else None for key in keys]
-    todo = [n for n, parsed in enumerate(found) if parsed is None]
-    for n, parsed in zip(todo, workers_.ordered_map(lambda n: _parse_fresh(files[n], kind), todo, workers)):
-        found[n] = parsed
-        if keys[n]:
-            cache.put(keys[n], parsed)
-    return found
+    return cached_map(lambda file: _parse_fresh(file, kind), files, keys, cache, workers)
 
 
 def _file_key(kind: str, file: Path) -> str | None:
@@ -149,12 +142,7 @@ class _Run:
         built again (a fleet has a thousand of them). The others are read in `workers` processes."""
         files = self.folder_files("aircraft")
         keys = [_file_key("aircraft-model", file) if self.models.folder is not None else None for file in files]
-        built = [self.models.get(key) if key else None for key in keys]
-        missing = [n for n, hit in enumerate(built) if hit is None]
-        for n, hit in zip(missing, workers_.ordered_map(lambda n: _read_aircraft(files[n]), missing, self.workers)):
-            built[n] = hit
-            if keys[n]:
-                self.models.put(keys[n], hit)
+        built = cached_map(_read_aircraft, files, keys, self.models, self.workers)
         models = []
         for model, problems in built:
             self.problems += problems

@@ -7,20 +7,16 @@ theme inverts the image lightness with a CSS filter, so one file serves both the
 from __future__ import annotations
 
 import functools
-import hashlib
 import io
 import json
 import math
-import os
-import tempfile
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
-from registry.incremental import parallel as workers_
-from registry.incremental.store import key_of
+from registry.incremental import array_key, cached_map, key_of, write_text_atomically
 from registry.core.results import CableResult, Curve, InstallationResult, PatternResult
 
 INK = "#2b2f36"
@@ -209,7 +205,7 @@ def vswr_key(result: InstallationResult) -> str | None:
     parts = []
     for curve, name, _, _ in curves:
         parts += [name, np.asarray(curve.x), np.asarray(curve.y)]
-    return content_key(*parts, result.service_bands_mhz, result.vswr_limit)
+    return array_key(*parts, result.service_bands_mhz, result.vswr_limit)
 
 
 def vswr_alt(result: InstallationResult, title: str) -> str:
@@ -293,16 +289,16 @@ class PlotStore:
         """`get` for each (key, draw) in `wanted`; those still to draw are drawn in `workers` processes."""
         if self.naive:
             return [draw() for _, draw in wanted]
-        found = [self.drawn.get(f"{kind}-{key}") or self._stored(kind, key) for key, _ in wanted]
-        missing = [n for n, drawn in enumerate(found) if drawn is None]
-        for n, drawn in zip(missing, workers_.ordered_map(lambda n: wanted[n][1](), missing, workers)):
-            found[n] = drawn
-            path = self._path(kind, wanted[n][0])
-            if path is not None:
-                write_atomically(path, json.dumps({"svg": drawn.svg, "alt": drawn.alt}))
+        keys = [key for key, _ in wanted]
+        found = cached_map(lambda n: wanted[n][1](), range(len(wanted)), keys, _Kind(self, kind), workers)
         for (key, _), drawn in zip(wanted, found):
             self.drawn[f"{kind}-{key}"] = drawn
         return found
+
+    def _put(self, kind: str, key: str, drawn: Drawn) -> None:
+        path = self._path(kind, key)
+        if path is not None:
+            write_text_atomically(path, json.dumps({"svg": drawn.svg, "alt": drawn.alt}))
 
     def _path(self, kind: str, key: str) -> Path | None:
         if self.cache_dir is None:
@@ -321,22 +317,14 @@ class PlotStore:
             return None  # absent or damaged: draw it again
 
 
-def content_key(*parts) -> str:
-    """A stable short hash of plot inputs: numpy arrays by their bytes, anything else by repr."""
-    digest = hashlib.sha256()
-    for part in parts:
-        if isinstance(part, np.ndarray):
-            digest.update(np.ascontiguousarray(part, dtype=float).tobytes())
-        else:
-            digest.update(repr(part).encode())
-        digest.update(b"|")
-    return digest.hexdigest()[:20]
+class _Kind:
+    """One kind of plot in a `PlotStore`, as the cache `cached_map` reads and fills."""
 
+    def __init__(self, store: PlotStore, kind: str):
+        self.store, self.kind = store, kind
 
-def write_atomically(path: Path, text: str) -> None:
-    """Write a cache file whole or not at all (a concurrent or interrupted build never sees half a file)."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-")
-    with os.fdopen(handle, "w", encoding="utf-8") as out:
-        out.write(text)
-    os.replace(tmp, path)
+    def get(self, key: str) -> Drawn | None:
+        return self.store.drawn.get(f"{self.kind}-{key}") or self.store._stored(self.kind, key)
+
+    def put(self, key: str, drawn: Drawn) -> None:
+        self.store._put(self.kind, key, drawn)

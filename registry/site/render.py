@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import csv
 import functools
-import hashlib
 import io
 import json
 import math
@@ -32,9 +31,9 @@ from registry import __version__
 from registry.site import plots
 from registry.site import drawing as sitedrawing
 from registry.site import search as sitesearch
-from registry.incremental import parallel as workers_
+from registry.incremental import ordered_map
 from registry.output.diff import Comparison, changes_page
-from registry.incremental.store import DiskCache, key_of
+from registry.incremental import DiskCache, array_key, key_of, text_key
 from registry.core.progress import QUIET, Progress
 from registry.core.model import Aircraft, Fleet, Installation
 from registry.core.results import (ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, FleetResults,
@@ -200,7 +199,7 @@ def safe_name(key: str) -> str:
     if re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9._-]{0,79}", key) and ".." not in key:
         return key
     slug = re.sub(r"[^A-Za-z0-9_-]+", "-", key).strip("-")[:48] or "key"
-    return f"{slug}-{hashlib.sha256(key.encode()).hexdigest()[:12]}"
+    return f"{slug}-{text_key(key)}"
 
 
 def anchor(text: str) -> str:
@@ -489,7 +488,7 @@ class Site:
         progress.stage("rendering aircraft", len(todo))
         # in worker processes only when their pages can be written from there; the generator first in
         # zip, so that it is run to its end and its workers are closed
-        entries = workers_.ordered_map(lambda aircraft: self.render_aircraft(aircraft, writer),
+        entries = ordered_map(lambda aircraft: self.render_aircraft(aircraft, writer),
                                        todo, workers if writer else 1, progress)
         for (entry, pieces), aircraft in zip(entries, todo):
             self.pieces[aircraft.id] = pieces
@@ -717,7 +716,7 @@ class Site:
         wanted = sorted((key, model_id) for model_id, keys in self.model_patterns.items() for key in keys
                         if key in self.results.patterns)
         drawings = self.plots.get_all("pattern", [
-            (plots.content_key(key, model_id),
+            (array_key(key, model_id),
              functools.partial(plots.pattern_plot, replace(self.results.patterns[key], antenna=model_id)))
             for key, model_id in wanted], workers)
         for (key, model_id), drawn in zip(wanted, drawings):
@@ -756,7 +755,7 @@ class Site:
             result = self.results.cables.get(cable.id)
             plot = None
             if result is not None:
-                drawn = self.plots.get("cable", plots.content_key(
+                drawn = self.plots.get("cable", array_key(
                     cable.id, result.table.x, result.table.y, result.fitted.x, result.fitted.y),
                     lambda: plots.attenuation_plot(result))
                 self.files[cable_plot_path(cable.id)] = drawn.svg

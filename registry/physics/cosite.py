@@ -191,7 +191,14 @@ def intermod_hit(a: int, b: int, f1_mhz: tuple[float, float], f2_mhz: tuple[floa
         return None
     g1 = _solve(a, v_lo - s2[1], v_hi - s2[0])
     g2 = _solve(b, v_lo - s1[1], v_hi - s1[0])
-    return IntermodHit(a, b, max(l1, g1[0]), min(h1, g1[1]), max(l2, g2[0]), min(h2, g2[1]), p_lo, p_hi)
+    f1 = _ordered(max(l1, g1[0]), min(h1, g1[1]))
+    f2 = _ordered(max(l2, g2[0]), min(h2, g2[1]))
+    return IntermodHit(a, b, f1[0], f1[1], f2[0], f2[1], p_lo, p_hi)
+
+
+def _ordered(lo: float, hi: float) -> tuple[float, float]:
+    """An interval known to be non-empty; ends crossed by rounding (a last-digit difference) meet."""
+    return (lo, hi) if lo <= hi else ((lo + hi) / 2, (lo + hi) / 2)
 
 
 def intermod_hits(f1_mhz: tuple[float, float], f2_mhz: tuple[float, float],

@@ -273,3 +273,47 @@ def test_bad_ranges_are_refused():
         cosite.intermod_hits((118.0, 137.0), (118.0, 137.0), (108.0, 118.0), orders=(1,))
     with pytest.raises(ValueError):
         cosite.channel_count(118.0, 137.0, 0.0)
+
+
+# --- the shipped service table ------------------------------------------------------------------
+
+SHIPPED = Path(__file__).parent.parent / "registry" / "data" / "services.yaml"
+COSITE_KEYS = ("tx_bands_mhz", "tx_channel_steps_khz", "tx_peak_power_dbm", "spurious_dbc",
+               "rx_bands_mhz", "protection_dbm", "suppression_line")
+
+
+def _shipped():
+    import yaml
+    return {s["id"]: s for s in yaml.safe_load(SHIPPED.read_text(encoding="utf-8"))["services"]}
+
+
+def test_shipped_table_gives_the_hand_worked_gnss_hits():
+    """The shipped vhf_com plan and gnss_l1 band give the channels worked by hand above."""
+    table = _shipped()
+    (first, last), = table["vhf_com"]["tx_bands_mhz"]
+    steps = table["vhf_com"]["tx_channel_steps_khz"]
+    victim = tuple(table["gnss_l1"]["bands_mhz"][0])
+    by_step = {s: {h.order: h for h in cosite.channel_harmonic_hits((first, last, s), victim, 20)} for s in steps}
+    assert by_step[25.0][13].channel_count == 6 and by_step[8.333][13].channel_count == 19
+    assert by_step[25.0][13].first_channel_mhz == pytest.approx(121.125)
+    assert sorted(by_step[25.0]) == sorted(by_step[8.333]) == [12, 13]
+
+
+def test_every_shipped_cosite_figure_names_its_standing():
+    """Every co-site figure has a `sources` entry that starts with its standing (the project's rule
+    that what the site shows is sourced, common practice with a reason, or unverified with a document)."""
+    standings = ("sourced: ", "common practice, no source: ", "unverified: ")
+    for service in _shipped().values():
+        for key in COSITE_KEYS:
+            if key in service:
+                text = service["sources"][key]
+                assert text.startswith(standings) and len(text) > 20, (service["id"], key)
+
+
+def test_shipped_lband_suppression_line():
+    """Field notes: DME, transponder and collision avoidance share a suppression line; VHF com does not."""
+    table = _shipped()
+    lines = {k: table[k].get("suppression_line") for k in ("dme", "transponder", "acas", "vhf_com")}
+    assert cosite.excused_by_suppression(lines["dme"], lines["transponder"])
+    assert cosite.excused_by_suppression(lines["acas"], lines["dme"])
+    assert not cosite.excused_by_suppression(lines["vhf_com"], lines["dme"])

@@ -27,7 +27,7 @@ import math
 from dataclasses import dataclass
 
 _EPS_MHZ = 1e-9
-"""Tolerance on frequency comparisons (1 Hz·10^-3): absorbs rounding in channel arithmetic."""
+"""Tolerance on frequency comparisons, MHz (1 mHz): absorbs rounding in channel arithmetic."""
 
 
 def _band(lo_mhz: float, hi_mhz: float, what: str) -> tuple[float, float]:

@@ -57,14 +57,14 @@ def demo_fleet():
     from pathlib import Path
 
     from registry.compute import antenna as cache
-    from registry.compute import aircraft as compute
+    from registry.evaluate import evaluate_fleet
     from registry.load.fleet import load_fleet
 
     fleet = load_fleet(Path(__file__).resolve().parent.parent / "fleet_data")
     for cached in (cache._pattern, cache._impedance, cache._raw_grid):
         cached.cache_clear()
     t = time.perf_counter()
-    compute.compute_fleet(fleet, datetime.date(2026, 12, 2), cache_dir=None, workers=1)
+    evaluate_fleet(fleet, datetime.date(2026, 12, 2), cache_dir=None, workers=1)
     installations = sum(len(a.installations) for a in fleet.aircraft.values())
     print(f"{f'demo fleet, every figure ({installations} inst.)':40s} {(time.perf_counter() - t) * 1e3:8.1f} ms")
 

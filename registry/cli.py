@@ -5,7 +5,8 @@ Exit codes are decided here and only here:
   1  open discrepancies of the top severity (`check`); the two builds differ (`diff`)
   2  data errors or usage errors
   3  an internal error (a bug: please report it with the output of --debug)
-Library code never calls sys.exit and never prints; it raises DataError or PublishError.
+Library code never calls sys.exit and never prints; it raises an AerialbookError (core/errors.py),
+which knows its exit code and how it prints.
 """
 from __future__ import annotations
 
@@ -16,13 +17,11 @@ import traceback
 from pathlib import Path
 
 from registry import __version__
+from registry.core.errors import EXIT_DATA, EXIT_FINDINGS, EXIT_INTERNAL, EXIT_OK, AerialbookError
 from registry.core.results import SEVERITIES
 
-EXIT_OK = 0
-EXIT_OPEN = 1
-EXIT_DIFFERENT = 1
-EXIT_DATA = 2
-EXIT_INTERNAL = 3
+EXIT_OPEN = EXIT_FINDINGS
+EXIT_DIFFERENT = EXIT_FINDINGS
 
 
 def make_parser() -> argparse.ArgumentParser:
@@ -142,7 +141,7 @@ def run(args: argparse.Namespace) -> int:
 
 
 def run_check(args: argparse.Namespace, outcome) -> int:
-    from registry.check import rules as checks
+    from registry.check import reviews
     from registry.output import report
 
     fleet = outcome.fleet
@@ -162,7 +161,7 @@ def run_check(args: argparse.Namespace, outcome) -> int:
         if args.details:
             sys.stdout.write(report.details(fleet, outcome.results, args.aircraft, args.service))
         sys.stdout.write(report.as_text(fleet, found, outcome.stale_reviews, as_of))
-    return EXIT_OPEN if checks.gate_fails(found) else EXIT_OK
+    return EXIT_OPEN if reviews.gate_fails(found) else EXIT_OK
 
 
 def run_diff(args: argparse.Namespace) -> int:
@@ -199,20 +198,12 @@ def run_diff(args: argparse.Namespace) -> int:
 
 
 def report_error(error: Exception, debug: bool) -> int:
-    from registry.core.errors import DataError
-    from registry.site.publish import PublishError
-    from registry.output.record import RecordError
-
+    """Print `error` for the user and return its exit code: the tool's own errors print themselves."""
     if debug:
         traceback.print_exception(error, file=sys.stderr)
-    if isinstance(error, DataError):
-        for problem in error.problems:
-            print(problem, file=sys.stderr)
-        print(error.summary(), file=sys.stderr)
-        return EXIT_DATA
-    if isinstance(error, (PublishError, RecordError)):
-        print(f"error: {error}", file=sys.stderr)
-        return EXIT_DATA
+    if isinstance(error, AerialbookError):
+        print(error.report(), file=sys.stderr)
+        return error.exit_code
     if isinstance(error, OSError):
         print(f"error: {error.filename or ''}: {error.strerror or error}", file=sys.stderr)
         return EXIT_DATA

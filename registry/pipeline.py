@@ -12,8 +12,8 @@ from datetime import date, datetime, timezone
 from pathlib import Path
 from typing import NamedTuple
 
-from registry.check import rules as checks
-from registry.compute import aircraft as compute
+from registry.check import reviews
+from registry.evaluate import evaluate_fleet
 from registry.output import diff
 from registry.site import plots
 from registry.site import publish
@@ -75,10 +75,10 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
         fleet = load(data_dir, cache_dir, workers)
         progress.advance()
         as_of = as_of or as_of_date(data_dir)
-        results = compute.compute_fleet(fleet, as_of, cache_dir, workers, progress,
-                                        assess=checks.aircraft_discrepancies, lazy=lazy)
-        found = checks.check_fleet(fleet, results)
-    return Outcome(fleet, as_of, results, found, checks.stale_reviews(found, fleet.reviews))
+        results = evaluate_fleet(fleet, as_of, cache_dir, workers, progress, lazy=lazy)
+        found = reviews.check_fleet((finding for aircraft_id in fleet.aircraft
+                                     for finding in results.summaries[aircraft_id].findings), fleet.reviews)
+    return Outcome(fleet, as_of, results, found, reviews.stale_reviews(found, fleet.reviews))
 
 
 class Published(NamedTuple):

@@ -9,7 +9,7 @@ from datetime import date
 
 import pytest
 
-from registry.check import rules as checks
+from registry.check import reviews as checks
 from registry.compute.element import uncovered_mhz
 from registry.core.errors import Src
 from registry.core.model import FrozenMap, Review

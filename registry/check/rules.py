@@ -1,4 +1,4 @@
-"""Check stage: rules over the computed figures → discrepancies, then the auditors' reviews applied.
+"""Check stage, first half: the rules over one aircraft's computed figures → findings (`reviews.py` does the rest).
 
 Each rule reads figures from `FleetResults` and the thresholds from the fleet's policy, and never
 raises on bad data: a figure a rule needs but cannot find becomes a `missing-data` discrepancy.
@@ -7,53 +7,19 @@ survives unrelated edits of the registry.
 """
 from __future__ import annotations
 
-from dataclasses import replace
+from typing import NamedTuple
 
-from registry.core.model import Aircraft, Fleet, Installation, Review
+from registry.compute.kinds import kind_of
+from registry.core import figure_keys as FK
+from registry.core.model import Aircraft, AntennaModel, Cable, Fleet, Installation, Service
 from registry.core.sources import where
-from registry.core.results import Discrepancy, Figure, FleetResults, InstallationResult, SEVERITIES
+from registry.core.results import Discrepancy, Figure, InstallationResult
+from registry.core.rulebook import RULE_SEVERITY
 
-DIRECTIONAL_KINDS = ("yagi_uda", "linear_array", "slotted_planar_array", "parabolic_reflector")
 IMPEDANCE_TOLERANCE_PCT = 5.0
 """Cable and antenna impedances further apart than this are a mismatch (50 vs 75 Ω is 50 %); common
 practice, no source: catalogue impedances are nominal to a few per cent."""
 
-RULE_SEVERITY = {
-    "band-coverage": "blocking",
-    "measured-vswr": "blocking",
-    "impedance-match": "blocking",
-    "cable-frequency": "blocking",
-    "ground-plane": "blocking",
-    "element-length": "concern",
-    "vswr-bandwidth": "concern",
-    "feeder-loss": "concern",
-    "isolation": "concern",
-    "antenna-suitability": "concern",
-    "measurement-age": "advisory",
-    "missing-data": "advisory",
-}
-"""Severity of each rule: `blocking` when the installation cannot do its job as recorded, `concern` when
-an engineer must judge it, `advisory` when the record needs attention."""
-
-
-def check_fleet(fleet: Fleet, results: FleetResults) -> list[Discrepancy]:
-    """Every discrepancy of the fleet, sorted by id, with the reviews applied.
-
-    The rules run over each aircraft where it is computed (`aircraft_discrepancies`, kept in its
-    summary and cached with its figures); an aircraft computed without them is checked here."""
-    found: list[Discrepancy] = []
-    for aircraft in fleet.aircraft.values():
-        summary = results.summaries.get(aircraft.id)
-        if summary is not None and summary.findings is not None:
-            found += summary.findings
-            continue
-        results.load([aircraft.id])
-        found += aircraft_discrepancies(
-            fleet, aircraft, {key: results.installations[key] for key in
-                              ((aircraft.id, position) for position in aircraft.installations)},
-            [pair for pair in results.pairs if pair.aircraft == aircraft.id])
-    found.sort(key=lambda item: item.id)
-    return apply_reviews(found, fleet.reviews)
 
 
 def aircraft_discrepancies(fleet: Fleet, aircraft: Aircraft, installations: dict[tuple[str, str], InstallationResult],
@@ -85,121 +51,169 @@ def make(rule: str, aircraft: str, position: str, value, limit, unit: str, messa
     )
 
 
+class Subject(NamedTuple):
+    """One installation as the single-installation rules see it: the model objects and its figures."""
+
+    fleet: Fleet
+    aircraft: Aircraft
+    installation: Installation
+    result: InstallationResult
+    service: Service
+    model: AntennaModel
+    cable: Cable
+
+    @property
+    def ids(self) -> tuple[str, str]:
+        return self.aircraft.id, self.installation.position
+
+    def fig(self, key: str) -> Figure | None:
+        return self.result.figure(key)
+
+
 def installation_discrepancies(fleet: Fleet, aircraft: Aircraft, installation: Installation,
                                result: InstallationResult) -> list[Discrepancy]:
-    """All single-installation rules for one installation."""
-    policy = fleet.policy
-    service = fleet.services[installation.service]
-    model = fleet.antennas[installation.antenna]
-    cable = fleet.cables[installation.feeder.cable]
-    ac, pos = aircraft.id, installation.position
+    """All single-installation rules for one installation, in `INSTALLATION_RULES` order."""
+    subject = Subject(fleet, aircraft, installation, result, fleet.services[installation.service],
+                      fleet.antennas[installation.antenna], fleet.cables[installation.feeder.cable])
     out: list[Discrepancy] = []
-    fig = result.figure
-
-    deviation = fig("length.deviation_pct")
-    if deviation is not None and abs(deviation.value) > policy.length_tolerance_pct:
-        resonant = fig("length.resonant_m")
-        out.append(make(
-            "element-length", ac, pos, deviation.value, policy.length_tolerance_pct, "%",
-            f"Element is {fig('length.installed_m').value:.3f} m, {abs(deviation.value):.1f} % "
-            f"{'longer' if deviation.value > 0 else 'shorter'} than the {resonant.value:.3f} m resonant length "
-            f"at {service.design_freq_mhz:g} MHz (tolerance ±{policy.length_tolerance_pct:g} %).",
-            deviation, resonant.source))
-
-    covered = fig("band.covered_pct")
-    if covered is not None and covered.value < 100.0 - 1e-9:
-        out.append(make(
-            "band-coverage", ac, pos, covered.value, 100.0, "%",
-            f"Antenna {model.id} is rated for {fig('band.rated_mhz').value} but {service.name} needs "
-            f"{fig('band.service_mhz').value}; {fig('band.uncovered_mhz').value} is not covered.",
-            covered, "interval comparison of rated and service bands"))
-
-    limit = policy.vswr_limit_for(service.id)
-    needed, matchable = fig("vswr.needed_pct"), fig("vswr.bode_fano_pct")
-    if needed is not None and needed.value > matchable.value:
-        out.append(make(
-            "vswr-bandwidth", ac, pos, needed.value, matchable.value, "%",
-            f"The {service.name} band is {needed.value:.1f} % wide but with its modelled Q of "
-            f"{fig('vswr.q').value:.1f} no matching network can hold VSWR {limit:g} over more than "
-            f"{matchable.value:.1f} %.", matchable))
-
-    for key, what in (("measured.vswr", "Measured VSWR"), ("sweep.max_vswr", "Measured sweep VSWR")):
-        measured = fig(key)
-        if measured is not None and isinstance(measured.value, float) and measured.value > limit:
-            out.append(make(
-                "measured-vswr", ac, pos, measured.value, limit, "",
-                f"{what} is {measured.value:.2f} against a limit of {limit:g}"
-                f"{' inside the service band' if key.startswith('sweep') else ''}.",
-                measured, "Pozar, Microwave Engineering, 4th ed., §2.3"))
-            break
-
-    total = fig("feeder.total_loss_db")
-    budget = policy.feeder_loss_budget_for(service.id)
-    if total is not None and total.value > budget:
-        out.append(make(
-            "feeder-loss", ac, pos, total.value, budget, "dB",
-            f"Feeder loss is {total.value:.2f} dB at {fig('feeder.freq_mhz').value:g} MHz "
-            f"({installation.feeder.length_m:g} m of {cable.id}), over the {budget:g} dB budget.",
-            total))
-
-    mismatch_pct = 100.0 * abs(cable.impedance_ohm - model.impedance_ohm) / model.impedance_ohm
-    if mismatch_pct > IMPEDANCE_TOLERANCE_PCT:
-        out.append(make(
-            "impedance-match", ac, pos, cable.impedance_ohm, model.impedance_ohm, "Ω",
-            f"Cable {cable.id} is {cable.impedance_ohm:g} Ω but antenna {model.id} is "
-            f"{model.impedance_ohm:g} Ω: the joint alone gives VSWR "
-            f"{max(cable.impedance_ohm, model.impedance_ohm) / min(cable.impedance_ohm, model.impedance_ohm):.2f}.",
-            Figure("", "", cable.impedance_ohm, "Ω", src=where(installation, "feeder.cable")),
-            "Pozar, Microwave Engineering, 4th ed., §2.3"))
-
-    top_mhz = max(high for _, high in service.bands_mhz)
-    if top_mhz > cable.max_freq_mhz:
-        out.append(make(
-            "cable-frequency", ac, pos, top_mhz, cable.max_freq_mhz, "MHz",
-            f"Cable {cable.id} is rated to {cable.max_freq_mhz:g} MHz but carries {service.name} up to "
-            f"{top_mhz:g} MHz.",
-            Figure("", "", top_mhz, "MHz", src=where(installation, "feeder.cable")), "cable catalogue"))
-
-    out += ground_plane_discrepancies(ac, pos, result)
-    out += suitability_discrepancies(ac, pos, installation, service, model)
-
-    age = fig("measured.age_days")
-    if age is not None and age.value > policy.measurement_max_age_days:
-        out.append(make(
-            "measurement-age", ac, pos, age.value, policy.measurement_max_age_days, "days",
-            f"Last measurement is {age.value:g} days old; the policy asks for one every "
-            f"{policy.measurement_max_age_days} days.", age, "fleet policy"))
-    out += missing_data(ac, pos, installation, service, result)
+    for rule in INSTALLATION_RULES:
+        out += rule(subject)
     return out
 
 
-def missing_data(ac: str, pos: str, installation: Installation, service, result: InstallationResult
-                 ) -> list[Discrepancy]:
+def element_length(s: Subject) -> list[Discrepancy]:
+    """The element's length against the resonant length, beyond the policy's tolerance."""
+    tolerance = s.fleet.policy.length_tolerance_pct
+    deviation = s.fig(FK.LENGTH_DEVIATION_PCT)
+    if deviation is None or abs(deviation.value) <= tolerance:
+        return []
+    resonant = s.fig(FK.LENGTH_RESONANT_M)
+    return [make(
+        "element-length", *s.ids, deviation.value, tolerance, "%",
+        f"Element is {s.fig(FK.LENGTH_INSTALLED_M).value:.3f} m, {abs(deviation.value):.1f} % "
+        f"{'longer' if deviation.value > 0 else 'shorter'} than the {resonant.value:.3f} m resonant length "
+        f"at {s.service.design_freq_mhz:g} MHz (tolerance ±{tolerance:g} %).",
+        deviation, resonant.source)]
+
+
+def band_coverage(s: Subject) -> list[Discrepancy]:
+    """The antenna's rated bands must cover every service band."""
+    covered = s.fig(FK.BAND_COVERED_PCT)
+    if covered is None or covered.value >= 100.0 - 1e-9:
+        return []
+    return [make(
+        "band-coverage", *s.ids, covered.value, 100.0, "%",
+        f"Antenna {s.model.id} is rated for {s.fig(FK.BAND_RATED_MHZ).value} but {s.service.name} needs "
+        f"{s.fig(FK.BAND_SERVICE_MHZ).value}; {s.fig(FK.BAND_UNCOVERED_MHZ).value} is not covered.",
+        covered, "interval comparison of rated and service bands")]
+
+
+def vswr_bandwidth(s: Subject) -> list[Discrepancy]:
+    """The service band wider than any matching network can hold under the VSWR limit (Bode–Fano)."""
+    needed, matchable = s.fig(FK.VSWR_NEEDED_PCT), s.fig(FK.VSWR_BODE_FANO_PCT)
+    if needed is None or needed.value <= matchable.value:
+        return []
+    limit = s.fleet.policy.vswr_limit_for(s.service.id)
+    return [make(
+        "vswr-bandwidth", *s.ids, needed.value, matchable.value, "%",
+        f"The {s.service.name} band is {needed.value:.1f} % wide but with its modelled Q of "
+        f"{s.fig(FK.VSWR_Q).value:.1f} no matching network can hold VSWR {limit:g} over more than "
+        f"{matchable.value:.1f} %.", matchable)]
+
+
+def measured_vswr(s: Subject) -> list[Discrepancy]:
+    """The measured VSWR (or the sweep's worst in band) over the policy's limit."""
+    limit = s.fleet.policy.vswr_limit_for(s.service.id)
+    for key, what in ((FK.MEASURED_VSWR, "Measured VSWR"), (FK.SWEEP_MAX_VSWR, "Measured sweep VSWR")):
+        measured = s.fig(key)
+        if measured is not None and isinstance(measured.value, float) and measured.value > limit:
+            return [make(
+                "measured-vswr", *s.ids, measured.value, limit, "",
+                f"{what} is {measured.value:.2f} against a limit of {limit:g}"
+                f"{' inside the service band' if key == FK.SWEEP_MAX_VSWR else ''}.",
+                measured, "Pozar, Microwave Engineering, 4th ed., §2.3")]
+    return []
+
+
+def feeder_loss(s: Subject) -> list[Discrepancy]:
+    """The feeder's total loss over the service's budget."""
+    total = s.fig(FK.FEEDER_TOTAL_LOSS_DB)
+    budget = s.fleet.policy.feeder_loss_budget_for(s.service.id)
+    if total is None or total.value <= budget:
+        return []
+    return [make(
+        "feeder-loss", *s.ids, total.value, budget, "dB",
+        f"Feeder loss is {total.value:.2f} dB at {s.fig(FK.FEEDER_FREQ_MHZ).value:g} MHz "
+        f"({s.installation.feeder.length_m:g} m of {s.cable.id}), over the {budget:g} dB budget.",
+        total)]
+
+
+def impedance_match(s: Subject) -> list[Discrepancy]:
+    """Cable and antenna of different nominal impedance."""
+    cable_ohm, antenna_ohm = s.cable.impedance_ohm, s.model.impedance_ohm
+    if 100.0 * abs(cable_ohm - antenna_ohm) / antenna_ohm <= IMPEDANCE_TOLERANCE_PCT:
+        return []
+    return [make(
+        "impedance-match", *s.ids, cable_ohm, antenna_ohm, "Ω",
+        f"Cable {s.cable.id} is {cable_ohm:g} Ω but antenna {s.model.id} is "
+        f"{antenna_ohm:g} Ω: the joint alone gives VSWR "
+        f"{max(cable_ohm, antenna_ohm) / min(cable_ohm, antenna_ohm):.2f}.",
+        Figure("", "", cable_ohm, "Ω", src=where(s.installation, "feeder.cable")),
+        "Pozar, Microwave Engineering, 4th ed., §2.3")]
+
+
+def cable_frequency(s: Subject) -> list[Discrepancy]:
+    """A cable carrying a service above its rated frequency."""
+    top_mhz = max(high for _, high in s.service.bands_mhz)
+    if top_mhz <= s.cable.max_freq_mhz:
+        return []
+    return [make(
+        "cable-frequency", *s.ids, top_mhz, s.cable.max_freq_mhz, "MHz",
+        f"Cable {s.cable.id} is rated to {s.cable.max_freq_mhz:g} MHz but carries {s.service.name} up to "
+        f"{top_mhz:g} MHz.",
+        Figure("", "", top_mhz, "MHz", src=where(s.installation, "feeder.cable")), "cable catalogue")]
+
+
+def measurement_age(s: Subject) -> list[Discrepancy]:
+    """The last measurement older than the policy allows."""
+    max_days = s.fleet.policy.measurement_max_age_days
+    age = s.fig(FK.MEASURED_AGE_DAYS)
+    if age is None or age.value <= max_days:
+        return []
+    return [make(
+        "measurement-age", *s.ids, age.value, max_days, "days",
+        f"Last measurement is {age.value:g} days old; the policy asks for one every "
+        f"{max_days} days.", age, "fleet policy")]
+
+
+def missing_data(s: Subject) -> list[Discrepancy]:
     """One discrepancy listing every figure a check needs but cannot find for this installation."""
+    installation, service, result = s.installation, s.service, s.result
     gaps: list[tuple[str, str]] = []
     if service.transmits and installation.measured is None:
         gaps.append(("no measured VSWR or sweep for a transmitting service, so the measured-VSWR check cannot run",
                      where(installation, "service")))
-    unreadable = result.figure("sweep.error")
+    unreadable = result.figure(FK.SWEEP_ERROR)
     if unreadable is not None:
         gaps.append((f"the measured sweep cannot be used ({unreadable.value})", unreadable.src))
-    material = result.figure("ground.material")
+    material = result.figure(FK.GROUND_MATERIAL)
     if material is not None and str(material.value).startswith("unknown"):
         gaps.append(("no skin zone of the airframe type covers this station and surface, so the ground-plane "
                      "check cannot tell metal from composite", material.src))
     if not gaps:
         return []
     message = "Missing data: " + "; ".join(text for text, _ in gaps) + "."
-    return [make("missing-data", ac, pos, len(gaps), 0, "items", message,
+    return [make("missing-data", *s.ids, len(gaps), 0, "items", message,
                  Figure("", "", None, "", src=gaps[0][1]), "completeness of the registry")]
 
 
-def ground_plane_discrepancies(ac: str, pos: str, result: InstallationResult) -> list[Discrepancy]:
+def ground_plane(s: Subject) -> list[Discrepancy]:
     """A monopole without a conductive ground plane, or with a plate smaller than the policy radius."""
-    plane, radius, required = (result.figure(k) for k in ("ground.type", "ground.radius_m", "ground.required_m"))
+    result = s.result
+    plane, radius, required = (result.figure(k) for k in (FK.GROUND_TYPE, FK.GROUND_RADIUS_M, FK.GROUND_REQUIRED_M))
     if plane is None or radius.value == "metal skin":
         return []
-    material = result.figure("ground.material").value
+    material = result.figure(FK.GROUND_MATERIAL).value
     if isinstance(radius.value, float) and radius.value >= required.value:
         return []
     if plane.value == "plate":
@@ -208,34 +222,35 @@ def ground_plane_discrepancies(ac: str, pos: str, result: InstallationResult) ->
     else:
         message = (f"Monopole stands on {material} skin with no installed ground plane "
                    f"(needs a conductive plane of {required.value:.3f} m radius).")
-    return [make("ground-plane", ac, pos, radius.value if isinstance(radius.value, float) else 0.0,
+    return [make("ground-plane", *s.ids, radius.value if isinstance(radius.value, float) else 0.0,
                  required.value, "m", message, radius, required.source)]
 
 
-def suitability_discrepancies(ac: str, pos: str, installation: Installation, service, model) -> list[Discrepancy]:
+def antenna_suitability(s: Subject) -> list[Discrepancy]:
     """Polarisation and coverage of the antenna against what the service needs."""
+    installation, service, model = s.installation, s.service, s.model
     problems = []
     wanted, has = service.polarisation, model.polarisation
     if wanted == "circular" and has not in ("rhcp", "lhcp"):
         problems.append(f"{service.name} is circularly polarised but the antenna is {has}")
     elif wanted in ("vertical", "horizontal") and has != wanted:
         problems.append(f"{service.name} needs {wanted} polarisation but the antenna is {has}")
-    if service.coverage == "omni" and model.kind in DIRECTIONAL_KINDS:
+    if service.coverage == "omni" and kind_of(model.kind).directional:
         problems.append(f"{service.name} needs all-round coverage but a {model.kind.replace('_', ' ')} is directional")
     if not problems:
         return []
-    return [make("antenna-suitability", ac, pos, model.polarisation, service.polarisation, "",
+    return [make("antenna-suitability", *s.ids, model.polarisation, service.polarisation, "",
                  "; ".join(problems) + ".", Figure("", "", None, "", src=where(installation, "antenna")),
                  "service table (polarisation, coverage)")]
 
 
 def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
     """Isolation below the policy's minimum for the pair's services."""
-    isolation = pair.figure("pair.isolation_db")
-    minimum = pair.figure("pair.min_isolation_db")
+    isolation = pair.figure(FK.PAIR_ISOLATION_DB)
+    minimum = pair.figure(FK.PAIR_MIN_ISOLATION_DB)
     if isolation is None or minimum is None or isolation.value >= minimum.value:
         return []
-    distance = pair.figure("pair.distance_m")
+    distance = pair.figure(FK.PAIR_DISTANCE_M)
     caveat = " (near field: indicative only)" if pair.near_field else ""
     return [make(
         "isolation", pair.aircraft, f"{pair.position_a}+{pair.position_b}", isolation.value, minimum.value, "dB",
@@ -243,38 +258,6 @@ def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
         f"{isolation.value:.1f} dB is under the {minimum.value:g} dB minimum{caveat}.", isolation)]
 
 
-def apply_reviews(found: list[Discrepancy], reviews) -> list[Discrepancy]:
-    """Attach each review to its discrepancy; a review whose value no longer matches reopens it."""
-    out = []
-    for item in found:
-        review: Review | None = reviews.get(item.id)
-        if review is None:
-            out.append(item)
-            continue
-        seen = review.value_seen
-        changed = seen is not None and not same_value(seen, item.value)
-        out.append(replace(item, review="reopened" if changed else review.state, reviewer=review.reviewer,
-                           review_comment=review.comment, review_reference=review.reference))
-    return out
-
-
-def stale_reviews(found: list[Discrepancy], reviews) -> list[Review]:
-    """Reviews whose discrepancy no longer exists."""
-    ids = {item.id for item in found}
-    return [review for key, review in reviews.items() if key not in ids]
-
-
-def same_value(seen, value) -> bool:
-    """A reviewer's recorded value matches the current one (numbers to 0.1 % or 0.001)."""
-    if isinstance(seen, (int, float)) and isinstance(value, (int, float)):
-        return abs(seen - value) <= max(1e-3, 1e-3 * abs(value))
-    return str(seen) == str(value)
-
-
-def is_open(item: Discrepancy) -> bool:
-    return item.review in ("open", "reopened")
-
-
-def gate_fails(found: list[Discrepancy]) -> bool:
-    """True when a discrepancy of the top severity is open: `check` then exits 1."""
-    return any(item.severity == SEVERITIES[0] and is_open(item) for item in found)
+INSTALLATION_RULES = (element_length, band_coverage, vswr_bandwidth, measured_vswr, feeder_loss, impedance_match,
+                      cable_frequency, ground_plane, antenna_suitability, measurement_age, missing_data)
+"""The single-installation rules, in the order their findings are listed (pairs follow)."""

@@ -11,9 +11,12 @@ import math
 
 import numpy as np
 
+from registry.core import figure_keys as FK
 from registry.core.model import AntennaModel
 from registry.incremental import repr_key
-from registry.physics import impedance, kinds, patterns
+from registry.compute.kinds import PATTERN_METHODS, kind_of
+from registry.physics import impedance, patterns
+from registry.physics import kinds as physics_kinds
 from registry.core.results import Curve, Figure, PatternResult
 
 MHZ = 1e6
@@ -21,51 +24,10 @@ MHZ = 1e6
 
 @functools.lru_cache(maxsize=None)
 def physics_geometry(model: AntennaModel) -> tuple[str, tuple[tuple[str, object], ...]]:
-    """The physics kind and canonical geometry of a catalogue antenna model (registry names → physics);
-    once per model, since every installation of the model asks for it."""
-    g = model.geometry
-    kind = model.kind
-    if kind == "quarter_wave_monopole":
-        return "monopole", kinds.canonical_geometry(
-            "monopole", {"height_m": g["element_length_m"], "diameter_m": g["element_diameter_m"]})
-    if kind == "half_wave_dipole":
-        return "dipole", kinds.canonical_geometry(
-            "dipole", {"length_m": g["element_length_m"], "diameter_m": g["element_diameter_m"]})
-    if kind == "folded_dipole":
-        return "folded_dipole", kinds.canonical_geometry("folded_dipole", {
-            "length_m": g["element_length_m"], "diameter_m": g["element_diameter_m"], "spacing_m": g["spacing_m"]})
-    if kind == "small_loop":
-        return "small_loop", kinds.canonical_geometry("small_loop", {"diameter_m": g["loop_diameter_m"]})
-    if kind == "yagi_uda":
-        elements = sorted(g["elements"], key=lambda element: element["position_m"])
-        driven = [i for i, element in enumerate(elements) if element["role"] == "driven"]
-        return "yagi", kinds.canonical_geometry("yagi", {
-            "element_lengths_m": [element["length_m"] for element in elements],
-            "element_positions_m": [element["position_m"] for element in elements],
-            "diameter_m": g["element_diameter_m"], "driven_index": driven[0]})
-    if kind == "linear_array":
-        params = {"n_elements": g["element_count"], "spacing_m": g["spacing_m"],
-                  "taper": g.get("taper", "uniform"),
-                  "element": "isotropic" if g.get("element", "isotropic") == "isotropic" else "half_wave_dipole"}
-        if "sidelobe_db" in g:
-            params["sidelobe_db"] = g["sidelobe_db"]
-        if "amplitudes" in g:
-            params["amplitudes"] = list(g["amplitudes"])
-        return "linear_array", kinds.canonical_geometry("linear_array", params)
-    if kind == "slotted_planar_array":
-        params = {"nx": g["columns"], "ny": g["rows"], "spacing_x_m": g["spacing_x_m"],
-                  "spacing_y_m": g["spacing_y_m"], "taper": g.get("taper", "uniform")}
-        if "sidelobe_db" in g:
-            params["sidelobe_db"] = g["sidelobe_db"]
-        return "slotted_array", kinds.canonical_geometry("slotted_array", params)
-    if kind == "parabolic_reflector":
-        return "parabolic", kinds.canonical_geometry(
-            "parabolic", {"diameter_m": g["diameter_m"], "edge_taper_db": g["edge_taper_db"]})
-    if kind == "patch":
-        return "patch", kinds.canonical_geometry("patch", {
-            "length_m": g["length_m"], "width_m": g["width_m"], "substrate_height_m": g["substrate_height_m"],
-            "eps_r": g["substrate_permittivity"]})
-    raise ValueError(f"no physics for antenna kind '{kind}'")
+    """The physics kind and canonical geometry of a catalogue antenna model (`kinds.KINDS`); once per
+    model, since every installation of the model asks for it."""
+    kind = kind_of(model.kind)
+    return kind.physics, physics_kinds.canonical_geometry(kind.physics, kind.parameters(model.geometry))
 
 
 def pattern(model: AntennaModel, freq_mhz: float) -> PatternResult:
@@ -81,13 +43,13 @@ def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
     peak = m.peak_directivity_dbi
     method = PATTERN_METHODS[kind]
     figures = [
-        Figure("pattern.directivity_dbi", "Peak directivity", peak, "dBi", "D = 4π U_max / P_rad",
+        Figure(FK.PATTERN_DIRECTIVITY_DBI, "Peak directivity", peak, "dBi", "D = 4π U_max / P_rad",
                source=f"{method}; numerical integration over the sphere"),
-        Figure("pattern.hpbw_e_deg", "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°", source=method),
-        Figure("pattern.hpbw_h_deg", "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°", source=method),
-        Figure("pattern.front_to_back_db", "Front-to-back ratio", m.front_to_back_db, "dB", source=method),
-        Figure("pattern.first_sidelobe_db", "First sidelobe level", m.first_sidelobe_db, "dB", source=method),
-        Figure("pattern.azimuth_ripple_db", "Azimuth ripple", m.azimuth_ripple_db, "dB", source=method),
+        Figure(FK.PATTERN_HPBW_E_DEG, "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°", source=method),
+        Figure(FK.PATTERN_HPBW_H_DEG, "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°", source=method),
+        Figure(FK.PATTERN_FRONT_TO_BACK_DB, "Front-to-back ratio", m.front_to_back_db, "dB", source=method),
+        Figure(FK.PATTERN_FIRST_SIDELOBE_DB, "First sidelobe level", m.first_sidelobe_db, "dB", source=method),
+        Figure(FK.PATTERN_AZIMUTH_RIPPLE_DB, "Azimuth ripple", m.azimuth_ripple_db, "dB", source=method),
     ]
     return PatternResult(
         key=repr_key(kind, geometry, freq_mhz),
@@ -125,7 +87,7 @@ def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mh
     ((Z, dZ/dω) at each of centres_mhz)).
     """
     kind, geometry = physics_geometry(model)
-    if kind not in kinds.WIRE_KINDS:
+    if kind not in physics_kinds.WIRE_KINDS:
         return None
     return _impedance(kind, geometry, freqs_mhz, float(design_mhz), centres_mhz)
 
@@ -143,16 +105,3 @@ def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_
         z3 = impedance.solve_wire_antenna(kind, geometry, [centre * MHZ - step, centre * MHZ, centre * MHZ + step]).z_in_ohm
         slopes.append((complex(z3[1]), complex((z3[2] - z3[0]) / (2 * step * 2 * np.pi))))
     return z, resonance_hz / MHZ, r_design, tuple(slopes)
-
-
-PATTERN_METHODS = {
-    "dipole": "finite-dipole formula (Balanis, Antenna Theory, 4th ed., Eq. 4-62)",
-    "monopole": "finite-dipole formula over a perfect ground plane by image theory (Balanis 4th ed., §4.7)",
-    "folded_dipole": "antenna mode of a folded dipole: the dipole pattern (Balanis 4th ed., §9.5)",
-    "small_loop": "electrically small loop, sin θ pattern (Balanis 4th ed., §5.2)",
-    "yagi": "thin-wire method-of-moments currents, mutual coupling included (Richmond's PWS Galerkin)",
-    "linear_array": "array factor times element pattern (Balanis 4th ed., ch. 6)",
-    "slotted_array": "2-D array factor times the half-wave slot pattern (Balanis 4th ed., ch. 6 and 12)",
-    "parabolic": "circular aperture, parabolic-on-pedestal illumination (Balanis 4th ed., §12.7, ch. 15)",
-    "patch": "cavity model, two radiating slots (Balanis 4th ed., §14.2)",
-}

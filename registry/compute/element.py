@@ -6,16 +6,15 @@ import math
 
 import numpy as np
 
+from registry.core import figure_keys as FK
 from registry.compute import antenna as cache
+from registry.compute.kinds import kind_of
 from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
 from registry.physics import impedance, mismatch, wave
 from registry.core.results import Curve, Figure
 from registry.core.sources import where
 
 MHZ = 1e6
-MONOPOLE_KINDS = ("quarter_wave_monopole",)
-ELEMENT_KINDS = {"quarter_wave_monopole": 0.25, "half_wave_dipole": 0.5, "folded_dipole": 0.5}
-"""Kinds whose single element is cut to a fraction of a wavelength: the fraction."""
 
 
 # --- element length -------------------------------------------------------------------------------------
@@ -23,7 +22,7 @@ ELEMENT_KINDS = {"quarter_wave_monopole": 0.25, "half_wave_dipole": 0.5, "folded
 
 def length_figures(installation: Installation, model: AntennaModel, service: Service) -> list[Figure]:
     """Installed element length against the resonant length at the service's design frequency."""
-    fraction = ELEMENT_KINDS.get(model.kind)
+    fraction = kind_of(model.kind).element_fraction
     if fraction is None or installation.coupler:
         return []
     freq_hz = service.design_freq_mhz * MHZ
@@ -45,22 +44,22 @@ def length_figures(installation: Installation, model: AntennaModel, service: Ser
     src = where(model, "geometry.element_length_m")
     name = "λ/4" if fraction == 0.25 else "λ/2"
     return [
-        Figure("length.design_freq_mhz", "Design frequency", service.design_freq_mhz, "MHz",
+        Figure(FK.LENGTH_DESIGN_FREQ_MHZ, "Design frequency", service.design_freq_mhz, "MHz",
                source=f"service table: {service.source}", src=where(service, "bands_mhz")),
-        Figure("length.wavelength_m", "Free-space wavelength", wavelength_m, "m", "λ = c / f",
+        Figure(FK.LENGTH_WAVELENGTH_M, "Free-space wavelength", wavelength_m, "m", "λ = c / f",
                (("c", "299 792 458 m/s"), ("f", f"{service.design_freq_mhz:g} MHz")), "SI definition of c"),
         Figure("length.rule95_m", f"Resonant length, 95 % rule ({name})", rule_m, "m", f"0.95 · {name}",
                (("λ", f"{wavelength_m:.4f} m"),), "common practice, no source"),
-        Figure("length.resonant_m", f"Resonant length, {reference} ({name})", resonant_m, "m",
+        Figure(FK.LENGTH_RESONANT_M, f"Resonant length, {reference} ({name})", resonant_m, "m",
                f"K(L/D) · {name}", (("L/D of the dipole or image dipole", f"{image_ratio:.1f}"),
                                     ("K", f"{factor:.4f}")),
                "K = 1 − 0.219 / (ln(2L/D) − 1.855): transmission-line model of a dipole (Balanis, Antenna "
                "Theory, 4th ed., ch. 4 and 9), constants fitted to NEC-2 resonant lengths"),
-        Figure("length.installed_m", "Installed element length", length_m, "m", src=src),
-        Figure("length.deviation_pct", "Deviation from resonant length", deviation_pct, "%",
+        Figure(FK.LENGTH_INSTALLED_M, "Installed element length", length_m, "m", src=src),
+        Figure(FK.LENGTH_DEVIATION_PCT, "Deviation from resonant length", deviation_pct, "%",
                "(ℓ − ℓ_res) / ℓ_res · 100", (("ℓ", f"{length_m:.4f} m"), ("ℓ_res", f"{resonant_m:.4f} m")),
                src=src),
-        Figure("length.deviation_mm", "Deviation from resonant length", deviation_mm, "mm", "ℓ − ℓ_res",
+        Figure(FK.LENGTH_DEVIATION_MM, "Deviation from resonant length", deviation_mm, "mm", "ℓ − ℓ_res",
                src=src),
     ]
 
@@ -100,13 +99,13 @@ def band_figures(installation: Installation, model: AntennaModel, service: Servi
     total = sum(high - low for low, high in service.bands_mhz)
     missing = sum(high - low for low, high in gaps)
     return [
-        Figure("band.service_mhz", "Service band", format_bands(service.bands_mhz), "",
+        Figure(FK.BAND_SERVICE_MHZ, "Service band", format_bands(service.bands_mhz), "",
                source=service.source, src=where(service, "bands_mhz")),
-        Figure("band.rated_mhz", "Antenna rated band", format_bands(model.bands_mhz), "",
+        Figure(FK.BAND_RATED_MHZ, "Antenna rated band", format_bands(model.bands_mhz), "",
                src=where(model, "bands_mhz")),
-        Figure("band.uncovered_mhz", "Service band not covered", format_bands(gaps), "",
+        Figure(FK.BAND_UNCOVERED_MHZ, "Service band not covered", format_bands(gaps), "",
                "service bands − rated bands", src=where(model, "bands_mhz")),
-        Figure("band.covered_pct", "Share of the service band covered", 100.0 * (total - missing) / total, "%",
+        Figure(FK.BAND_COVERED_PCT, "Share of the service band covered", 100.0 * (total - missing) / total, "%",
                src=where(model, "bands_mhz")),
     ]
 
@@ -166,22 +165,22 @@ def modelled_vswr(model: AntennaModel, service: Service, cable: Cable,
     centre, q, limit_pct, needed_pct = worst
     src = where(model, "geometry")
     figures = [
-        Figure("vswr.resonance_mhz", "Modelled series resonance", resonance_mhz, "MHz", "X_in(f) = 0",
+        Figure(FK.VSWR_RESONANCE_MHZ, "Modelled series resonance", resonance_mhz, "MHz", "X_in(f) = 0",
                source=METHOD_MOM, src=src),
-        Figure("vswr.r_design_ohm", "Element resistance at design frequency", r_design, "Ω",
+        Figure(FK.VSWR_R_DESIGN_OHM, "Element resistance at design frequency", r_design, "Ω",
                "Re Z_in(f_design)", source=METHOD_MOM, src=src),
-        Figure("vswr.max_in_band", "Modelled VSWR of the bare element, worst in band", float(vswr[band].max()), "",
+        Figure(FK.VSWR_MAX_IN_BAND, "Modelled VSWR of the bare element, worst in band", float(vswr[band].max()), "",
                "VSWR = (1 + |Γ|)/(1 − |Γ|), Γ = (Z·Z_ant/R − Z₀)/(Z·Z_ant/R + Z₀)",
                (("Z_ant", f"{model.impedance_ohm:g} Ω"), ("R", f"{r_design:.1f} Ω"),
                 ("Z₀ (cable)", f"{cable.impedance_ohm:g} Ω")),
                "Pozar, Microwave Engineering, 4th ed., §2.3; matching network not modelled", src),
-        Figure("vswr.band_under_limit_mhz", f"Band with bare-element VSWR ≤ {limit:g}",
+        Figure(FK.VSWR_BAND_UNDER_LIMIT_MHZ, f"Band with bare-element VSWR ≤ {limit:g}",
                "none" if math.isnan(band_low) else f"{band_low:.2f}–{band_high:.2f} MHz", "", src=src),
-        Figure("vswr.q", "Element Q", q, "", "Q ≈ ω₀·|Z′(ω₀)| / (2R₀)", (("f₀", f"{centre:g} MHz"),),
+        Figure(FK.VSWR_Q, "Element Q", q, "", "Q ≈ ω₀·|Z′(ω₀)| / (2R₀)", (("f₀", f"{centre:g} MHz"),),
                "Yaghjian and Best, IEEE Trans. Antennas Propag. 53(4), 2005", src),
-        Figure("vswr.needed_pct", "Fractional bandwidth the service needs", needed_pct, "%", "Δf / f₀",
+        Figure(FK.VSWR_NEEDED_PCT, "Fractional bandwidth the service needs", needed_pct, "%", "Δf / f₀",
                (("f₀", f"{centre:g} MHz"),), src=where(service, "bands_mhz")),
-        Figure("vswr.bode_fano_pct", f"Widest band matchable to VSWR {limit:g}", limit_pct, "%",
+        Figure(FK.VSWR_BODE_FANO_PCT, f"Widest band matchable to VSWR {limit:g}", limit_pct, "%",
                "π / (Q·ln(1/Γm))", (("Q", f"{q:.2f}"), ("Γm", f"{gamma_max:.3f}")),
                "Bode–Fano limit (Pozar, Microwave Engineering, 4th ed., §5.9)", src),
     ]
@@ -199,7 +198,7 @@ METHOD_MOM = ("thin-wire method of moments, piecewise-sinusoidal Galerkin (Richm
 def ground_plane_figures(installation: Installation, model: AntennaModel, service: Service,
                          material: str | None, policy: Policy) -> list[Figure]:
     """For monopoles: what the element stands on and whether it reaches the policy's radius."""
-    if model.kind not in MONOPOLE_KINDS:
+    if not kind_of(model.kind).needs_ground_plane:
         return []
     low_mhz = min(low for low, _ in service.bands_mhz)
     required_m = policy.ground_plane_min_radius_wavelengths * wave.wavelength_m(low_mhz * MHZ)
@@ -213,11 +212,11 @@ def ground_plane_figures(installation: Installation, model: AntennaModel, servic
     else:
         radius = 0.0
     return [
-        Figure("ground.material", "Skin material at the base", material or "unknown (no zone covers it)", "",
+        Figure(FK.GROUND_MATERIAL, "Skin material at the base", material or "unknown (no zone covers it)", "",
                src=where(installation, "location")),
-        Figure("ground.type", "Ground plane", plane_type, "", src=src),
-        Figure("ground.radius_m", "Ground-plane radius", radius, "m" if isinstance(radius, float) else "", src=src),
-        Figure("ground.required_m", "Required radius at the lowest service frequency", required_m, "m",
+        Figure(FK.GROUND_TYPE, "Ground plane", plane_type, "", src=src),
+        Figure(FK.GROUND_RADIUS_M, "Ground-plane radius", radius, "m" if isinstance(radius, float) else "", src=src),
+        Figure(FK.GROUND_REQUIRED_M, "Required radius at the lowest service frequency", required_m, "m",
                "k · λ(f_low)", (("k", f"{policy.ground_plane_min_radius_wavelengths:g} λ"),
                                 ("f_low", f"{low_mhz:g} MHz")), "common practice, no source (λ/4 radius)"),
     ]

@@ -2,12 +2,15 @@
 measured sweeps. Pure functions of the model objects; physics from registry.physics."""
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 import functools
 import math
 from datetime import date
 
 import numpy as np
 
+from registry.core import figure_keys as FK
 from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
 from registry.physics import feeder, mismatch, sweep
 from registry.core.results import CableResult, Curve, Figure
@@ -34,12 +37,12 @@ def cable_result(cable: Cable) -> CableResult:
     src = where(cable, "attenuation_db_per_100m" if cable.declared_unit == "db_per_100m"
                 else "attenuation_db_per_100ft")
     figures = (
-        Figure("cable.a", "Conductor term a", fit.a_db_per_100m_sqrt_hz * math.sqrt(MHZ), "dB/100 m/√MHz",
+        Figure(FK.CABLE_A, "Conductor term a", fit.a_db_per_100m_sqrt_hz * math.sqrt(MHZ), "dB/100 m/√MHz",
                "α(f) = a·√f + b·f", source=FEEDER_SOURCE, src=src),
-        Figure("cable.b", "Dielectric term b", fit.b_db_per_100m_hz * MHZ, "dB/100 m/MHz",
+        Figure(FK.CABLE_B, "Dielectric term b", fit.b_db_per_100m_hz * MHZ, "dB/100 m/MHz",
                "α(f) = a·√f + b·f", source=FEEDER_SOURCE, src=src),
-        Figure("cable.rms_residual", "Fit residual, RMS", fit.rms_residual_db_per_100m, "dB/100 m", src=src),
-        Figure("cable.max_residual", "Fit residual, largest", fit.max_residual_db_per_100m, "dB/100 m", src=src),
+        Figure(FK.CABLE_RMS_RESIDUAL, "Fit residual, RMS", fit.rms_residual_db_per_100m, "dB/100 m", src=src),
+        Figure(FK.CABLE_MAX_RESIDUAL, "Fit residual, largest", fit.max_residual_db_per_100m, "dB/100 m", src=src),
     )
     return CableResult(
         cable=cable.id,
@@ -57,8 +60,8 @@ FEEDER_SOURCE = "Pozar, Microwave Engineering, 4th ed., §2.7 (conductor √f an
 def vswr_for_mismatch(figures: list[Figure], model: AntennaModel) -> tuple[float, str]:
     """The antenna VSWR the mismatch loss is taken from: measured, else modelled, else rated."""
     by_key = {figure.key: figure for figure in figures}
-    for key, label in (("sweep.max_vswr", "measured sweep, worst in band"), ("measured.vswr", "measured"),
-                       ("vswr.max_in_band", "modelled, worst in band")):
+    for key, label in ((FK.SWEEP_MAX_VSWR, "measured sweep, worst in band"), (FK.MEASURED_VSWR, "measured"),
+                       (FK.VSWR_MAX_IN_BAND, "modelled, worst in band")):
         if key in by_key and isinstance(by_key[key].value, float):
             return by_key[key].value, label
     return model.rated_vswr, "rated (no measurement or model)"
@@ -79,28 +82,28 @@ def feeder_figures(installation: Installation, model: AntennaModel, service: Ser
     src_len = where(installation, "feeder.length_m")
     table_top = max(freq for freq, _ in cable.attenuation_db_per_100m)
     return [
-        Figure("feeder.freq_mhz", "Evaluated at (highest service frequency)", freq_mhz, "MHz",
+        Figure(FK.FEEDER_FREQ_MHZ, "Evaluated at (highest service frequency)", freq_mhz, "MHz",
                src=where(service, "bands_mhz")),
         Figure("feeder.attenuation_db_per_100m", "Cable attenuation", alpha, "dB/100 m", "α(f) = a·√f + b·f",
                (("cable", cable.id), ("table up to", f"{table_top:g} MHz")), FEEDER_SOURCE,
                where(cable, "id")),
-        Figure("feeder.cable_loss_db", "Cable loss", cable_db, "dB", "α(f) · ℓ / 100",
+        Figure(FK.FEEDER_CABLE_LOSS_DB, "Cable loss", cable_db, "dB", "α(f) · ℓ / 100",
                (("α", f"{alpha:.2f} dB/100 m"), ("ℓ", f"{run.length_m:g} m")), FEEDER_SOURCE, src_len),
-        Figure("feeder.connector_loss_db", "Connector loss", connector_db, "dB", "n · L_c",
+        Figure(FK.FEEDER_CONNECTOR_LOSS_DB, "Connector loss", connector_db, "dB", "n · L_c",
                (("n", str(run.connectors)), ("L_c", f"{policy.connector_loss_db:g} dB")), "fleet policy",
                where(installation, "feeder.connectors")),
-        Figure("feeder.adapter_loss_db", "Adapter loss", adapter_db, "dB", "n · L_a",
+        Figure(FK.FEEDER_ADAPTER_LOSS_DB, "Adapter loss", adapter_db, "dB", "n · L_a",
                (("n", str(run.adapters)), ("L_a", f"{policy.adapter_loss_db:g} dB")), "fleet policy",
                where(installation, "feeder.adapters")),
-        Figure("feeder.mismatch_loss_db", "Mismatch loss", budget.mismatch_loss_db, "dB",
+        Figure(FK.FEEDER_MISMATCH_LOSS_DB, "Mismatch loss", budget.mismatch_loss_db, "dB",
                "ML = −10·log₁₀(1 − |Γ|²), |Γ| = (VSWR − 1)/(VSWR + 1)",
                (("VSWR", f"{vswr:.2f} ({vswr_from})"),), "Pozar, Microwave Engineering, 4th ed., §2.3"),
-        Figure("feeder.return_loss_db", "Return loss at the antenna", budget.return_loss_db, "dB",
+        Figure(FK.FEEDER_RETURN_LOSS_DB, "Return loss at the antenna", budget.return_loss_db, "dB",
                "RL = −20·log₁₀|Γ|", source="Pozar, Microwave Engineering, 4th ed., §2.3"),
-        Figure("feeder.total_loss_db", "Total feeder loss", budget.total_loss_db, "dB",
+        Figure(FK.FEEDER_TOTAL_LOSS_DB, "Total feeder loss", budget.total_loss_db, "dB",
                "cable + connectors + adapters + mismatch",
                (("budget", f"{policy.feeder_loss_budget_for(service.id):g} dB"),), FEEDER_SOURCE, src_len),
-        Figure("feeder.delivered_pct", "Power reaching the antenna", 100.0 * budget.delivered_fraction, "%",
+        Figure(FK.FEEDER_DELIVERED_PCT, "Power reaching the antenna", 100.0 * budget.delivered_fraction, "%",
                "10^(−total/10) · 100", source=FEEDER_SOURCE, src=src_len),
     ]
 
@@ -109,52 +112,56 @@ def feeder_figures(installation: Installation, model: AntennaModel, service: Ser
 
 
 def measured_figures(installation: Installation, service: Service, cable: Cable, policy: Policy,
-                     as_of: date) -> tuple[list[Figure], Curve | None]:
-    """Measured VSWR, its age, and what a measured sweep shows across the service band."""
+                     as_of: date, sweeps: Mapping[str, str]) -> tuple[list[Figure], Curve | None]:
+    """Measured VSWR, its age, and what a measured sweep shows across the service band (`sweeps`: each
+    sweep file's text by path, as the load stage read it)."""
     measured = installation.measured
     if measured is None:
         return [], None
     figures = [
-        Figure("measured.date", "Last measured", measured.date.isoformat(), "", src=where(measured, "date")),
-        Figure("measured.age_days", "Age of the measurement", float((as_of - measured.date).days), "days",
+        Figure(FK.MEASURED_DATE, "Last measured", measured.date.isoformat(), "", src=where(measured, "date")),
+        Figure(FK.MEASURED_AGE_DAYS, "Age of the measurement", float((as_of - measured.date).days), "days",
                "as-of date − measurement date", (("as of", as_of.isoformat()),), src=where(measured, "date")),
     ]
     if measured.vswr is not None:
-        figures.append(Figure("measured.vswr", "Measured VSWR", float(measured.vswr), "",
+        figures.append(Figure(FK.MEASURED_VSWR, "Measured VSWR", float(measured.vswr), "",
                               src=where(measured, "vswr")))
     if measured.sweep is None:
         return figures, None
     src = where(measured, "sweep")
     try:
-        data = sweep.read_s1p(measured.sweep)
+        text = sweeps.get(str(measured.sweep))
+        if text is None:
+            raise OSError(f"cannot read {measured.sweep}")
+        data = sweep.parse_s1p(text, source=str(measured.sweep))
         worst = max((sweep.band_summary(data, low * MHZ, high * MHZ) for low, high in service.bands_mhz
                      if np.any((data.freqs_hz >= low * MHZ) & (data.freqs_hz <= high * MHZ))),
                     key=lambda summary: summary.max_vswr, default=None)
     except (OSError, ValueError) as error:
-        figures.append(Figure("sweep.error", "Measured sweep could not be used", str(error), "", src=src))
+        figures.append(Figure(FK.SWEEP_ERROR, "Measured sweep could not be used", str(error), "", src=src))
         return figures, None
     if worst is None:
-        figures.append(Figure("sweep.error", "Measured sweep could not be used",
+        figures.append(Figure(FK.SWEEP_ERROR, "Measured sweep could not be used",
                               "the sweep has no point inside the service band", "", src=src))
         return figures, None
     figures += [
-        Figure("sweep.max_vswr", "Measured sweep VSWR, worst in band", worst.max_vswr, "",
+        Figure(FK.SWEEP_MAX_VSWR, "Measured sweep VSWR, worst in band", worst.max_vswr, "",
                "VSWR = (1 + |S11|) / (1 − |S11|)", (("points in band", str(worst.n_points)),
                                                     ("at", f"{worst.freq_at_max_vswr_hz / MHZ:.3f} MHz")),
                "Pozar, Microwave Engineering, 4th ed., §2.3; Touchstone (IBIS Open Forum)", src),
-        Figure("sweep.min_return_loss_db", "Measured return loss, worst in band", worst.min_return_loss_db,
+        Figure(FK.SWEEP_MIN_RETURN_LOSS_DB, "Measured return loss, worst in band", worst.min_return_loss_db,
                "dB", "RL = −20·log₁₀|S11|", source="Pozar, Microwave Engineering, 4th ed., §2.3", src=src),
     ]
     try:
         fault = sweep.distance_to_reflection(data, cable.velocity_factor)
         figures.append(Figure(
-            "sweep.fault_distance_m", "Largest reflection along the feeder at", fault.peak_distance_m, "m",
+            FK.SWEEP_FAULT_DISTANCE_M, "Largest reflection along the feeder at", fault.peak_distance_m, "m",
             "d = v·t / 2, v = VF·c, t from the inverse FFT of S11 (Hann window)",
             (("VF", f"{cable.velocity_factor:g}"), ("resolution", f"{fault.resolution_m:.2f} m"),
              ("feeder length", f"{installation.feeder.length_m:g} m")),
             "band-pass time-domain reflectometry (inverse DFT of S11)", src))
     except ValueError as error:
-        figures.append(Figure("sweep.fault_distance_m", "Largest reflection along the feeder at",
+        figures.append(Figure(FK.SWEEP_FAULT_DISTANCE_M, "Largest reflection along the feeder at",
                               f"not available: {error}", "", src=src))
     vswr_curve = mismatch.vswr_from_gamma(np.abs(data.s11))
     return figures, Curve(data.freqs_hz / MHZ, vswr_curve, "Frequency (MHz)", "VSWR")

@@ -5,7 +5,9 @@ import math
 
 import numpy as np
 
+from registry.core import figure_keys as FK
 from registry.compute import antenna as cache
+from registry.compute.kinds import kind_of
 from registry.core.model import AntennaModel, Fleet, Installation
 from registry.physics import coupling
 from registry.core.results import Figure, PairResult
@@ -34,7 +36,7 @@ flooring the gain keeps the isolation conservative (common practice, no source).
 
 def antenna_axes(installation: Installation, model: AntennaModel):
     """(z, x) axes of the antenna; a horizontally polarised dipole lies athwartships (along BL)."""
-    if model.kind in ("half_wave_dipole", "folded_dipole") and model.polarisation == "horizontal":
+    if kind_of(model.kind).lies_flat_when_horizontal and model.polarisation == "horizontal":
         return (0, 1, 0), (-1, 0, 0)
     return SURFACE_AXES[installation.surface]
 
@@ -74,19 +76,19 @@ def pair_result(fleet: Fleet, aircraft_id: str, a: Installation, b: Installation
     src = where(second, "location")
     friis = "Friis, Proc. IRE 34 (1946); free-space loss per ITU-R P.525"
     figures = (
-        Figure("pair.distance_m", "Distance between the antennas", result.distance_m, "m",
+        Figure(FK.PAIR_DISTANCE_M, "Distance between the antennas", result.distance_m, "m",
                "|P_B − P_A| from STA/BL/WL", (("unit", unit),), src=src),
-        Figure("pair.freq_mhz", "Evaluated at", freq_mhz, "MHz", source="lower-isolation design frequency"),
-        Figure("pair.gain_a_dbi", f"Gain of {a.position} toward {b.position}", gain_a, "dBi",
+        Figure(FK.PAIR_FREQ_MHZ, "Evaluated at", freq_mhz, "MHz", source="lower-isolation design frequency"),
+        Figure(FK.PAIR_GAIN_A_DBI, f"Gain of {a.position} toward {b.position}", gain_a, "dBi",
                f"max(G(θ, φ), {GAIN_FLOOR_DBI:g} dBi)", source="the antenna's pattern; floor: common practice"),
-        Figure("pair.gain_b_dbi", f"Gain of {b.position} toward {a.position}", gain_b, "dBi",
+        Figure(FK.PAIR_GAIN_B_DBI, f"Gain of {b.position} toward {a.position}", gain_b, "dBi",
                f"max(G(θ, φ), {GAIN_FLOOR_DBI:g} dBi)", source="the antenna's pattern; floor: common practice"),
-        Figure("pair.path_loss_db", "Free-space loss", result.free_space_loss_db, "dB", "20·log₁₀(4πd/λ)",
+        Figure(FK.PAIR_PATH_LOSS_DB, "Free-space loss", result.free_space_loss_db, "dB", "20·log₁₀(4πd/λ)",
                source=friis),
-        Figure("pair.isolation_db", "Isolation", result.isolation_db, "dB", "I = 20·log₁₀(4πd/λ) − G_A − G_B",
+        Figure(FK.PAIR_ISOLATION_DB, "Isolation", result.isolation_db, "dB", "I = 20·log₁₀(4πd/λ) − G_A − G_B",
                source=friis, src=src),
-        Figure("pair.min_isolation_db", "Policy minimum", rule.isolation_db, "dB", src=f"{rule.src.path}:{rule.src.line}"),
-        Figure("pair.far_field_m", "Far field begins at", result.far_field_distance_m, "m",
+        Figure(FK.PAIR_MIN_ISOLATION_DB, "Policy minimum", rule.isolation_db, "dB", src=f"{rule.src.path}:{rule.src.line}"),
+        Figure(FK.PAIR_FAR_FIELD_M, "Far field begins at", result.far_field_distance_m, "m",
                "max(2(D_A + D_B)²/λ, λ/2π)", source="IEEE Std 149-1979 §2.3; Balanis 4th ed. ch. 2"),
     )
     return PairResult(aircraft_id, first.position, second.position, figures, result.indicative_only)
@@ -94,19 +96,4 @@ def pair_result(fleet: Fleet, aircraft_id: str, a: Installation, b: Installation
 
 def size_m(model: AntennaModel) -> float:
     """The antenna's largest dimension (m), for the near-field test."""
-    g = model.geometry
-    kind = model.kind
-    if kind in ("quarter_wave_monopole", "half_wave_dipole", "folded_dipole"):
-        return float(g["element_length_m"])
-    if kind == "small_loop":
-        return float(g["loop_diameter_m"])
-    if kind == "yagi_uda":
-        positions = [element["position_m"] for element in g["elements"]]
-        return max(max(positions) - min(positions), max(element["length_m"] for element in g["elements"]))
-    if kind == "linear_array":
-        return float(g["element_count"] * g["spacing_m"])
-    if kind == "slotted_planar_array":
-        return math.hypot(g["columns"] * g["spacing_x_m"], g["rows"] * g["spacing_y_m"])
-    if kind == "parabolic_reflector":
-        return float(g["diameter_m"])
-    return math.hypot(g["length_m"], g["width_m"])
+    return kind_of(model.kind).size_m(model.geometry)

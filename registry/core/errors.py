@@ -9,6 +9,15 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Iterable, NamedTuple
 
+EXIT_OK = 0
+"""Success (`check`: no blocking finding open; `diff`: the two builds are the same)."""
+EXIT_FINDINGS = 1
+"""`check`: a blocking finding is open; `diff`: the two builds differ."""
+EXIT_DATA = 2
+"""A data or usage error: the user can fix it."""
+EXIT_INTERNAL = 3
+"""A bug: please report it with the output of --debug."""
+
 FILE_FIELD = "(file)"
 """The field path of a problem with the file as a whole (syntax, encoding, size, empty file)."""
 
@@ -53,7 +62,18 @@ class Problem:
                 f"found {self.found}, expected {self.expected}")
 
 
-class DataError(Exception):
+class AerialbookError(Exception):
+    """The one base of every error the tool reports to its user: it knows its exit code and how it
+    prints. Library code raises it and never prints; `cli.main` catches it in one place."""
+
+    exit_code = EXIT_DATA
+
+    def report(self) -> str:
+        """The text printed on standard error."""
+        return f"error: {self}"
+
+
+class DataError(AerialbookError):
     """The registry cannot be loaded. `problems` holds every problem found, sorted by file and line."""
 
     def __init__(self, problems: Iterable[Problem]):

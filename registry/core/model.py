@@ -17,10 +17,6 @@ from typing import Any
 from registry.core.errors import Src, format_path, parse_path
 
 SURFACES = ("top", "bottom", "fin", "nose", "tail", "wing_left", "wing_right", "side_left", "side_right")
-RULES = ("element-length", "band-coverage", "vswr-bandwidth", "measured-vswr", "feeder-loss",
-         "impedance-match", "cable-frequency", "isolation", "ground-plane", "antenna-suitability",
-         "measurement-age", "missing-data")
-"""Rule names a discrepancy id ends with (see docs/registry-format.md)."""
 
 
 class FrozenMap(Mapping):
@@ -351,6 +347,10 @@ class Fleet(Sourced):
     policy: Policy
     reviews: FrozenMap
     title: str | None = None
+    sweeps: FrozenMap = FrozenMap()
+    """Each measured sweep file's text by its path, read by the load stage."""
+    input_keys: FrozenMap = FrozenMap()
+    """Each aircraft's inputs (its file, its sweeps, the shared files) as one key (`load.inputs`)."""
 
     @property
     def site_title(self) -> str:

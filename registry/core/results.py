@@ -12,16 +12,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-SEVERITIES = ("blocking", "concern", "advisory")
-"""Severity names, most severe first. `blocking` left open makes `check` exit 1."""
-
-REVIEW_STATES = ("accepted", "action-raised", "no-fault")
-"""Dispositions an auditor records in reviews.yaml."""
-
-OPEN_STATES = ("open", "reopened")
-"""Derived states: no review yet, or the value changed since the reviewer saw it."""
-
-ALL_STATES = OPEN_STATES + REVIEW_STATES
+from registry.core.rulebook import ALL_STATES, OPEN_STATES, REVIEW_STATES, SEVERITIES  # noqa: F401 (re-exported)
 
 
 class Figure(NamedTuple):
@@ -120,6 +111,15 @@ class CableResult:
     table: Curve
     fitted: Curve
     figures: tuple[Figure, ...]
+
+
+@dataclass(slots=True)
+class AircraftPart:
+    """One aircraft's full figures: its installations' and its pairs'. Patterns are shared by the whole
+    fleet and kept once apart; the summary (`AircraftSummary`) names them."""
+
+    installations: dict[tuple[str, str], InstallationResult]
+    pairs: list[PairResult]
 
 
 FigureUse = tuple[str, str, str, str, str, str]

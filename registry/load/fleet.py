@@ -14,7 +14,7 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry.load import integrity
+from registry.load import inputs, integrity
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src, parse_path
@@ -192,6 +192,9 @@ class _Run:
             self.problems += integrity.check_policy(policy, catalogue)
         if self.problems:
             raise DataError(self.problems)
+        sweeps = inputs.read_sweeps(inputs.sweep_files(aircraft))
+        keys = inputs.aircraft_keys(aircraft, inputs.shared_key(self.data_dir, self.shipped_dir), sweeps) \
+            if self.cache.folder is not None else {}
         return Fleet(
             **fleet_doc.at(),
             operator=fleet_doc.data["operator"],
@@ -204,6 +207,8 @@ class _Run:
             services=_by_id(services),
             policy=policy,
             reviews=FrozenMap((review.discrepancy, review) for review in reviews),
+            sweeps=FrozenMap(sweeps),
+            input_keys=FrozenMap(keys),
         )
 
     def services(self, shipped: _Doc | None, fleet: _Doc | None) -> list[Service] | None:

@@ -11,7 +11,8 @@ from pathlib import Path
 from typing import Iterable
 
 from registry.core.errors import Problem
-from registry.core.model import (RULES, Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
+from registry.core.rulebook import RULES
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
                             Review, Service, Sourced)
 from registry.load.schemacheck import suggest
 

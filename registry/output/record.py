@@ -19,6 +19,7 @@ from pathlib import Path
 from typing import Any, NamedTuple
 
 from registry import __version__
+from registry.core.errors import AerialbookError
 from registry.core.results import Figure
 
 FORMAT_VERSION = 1
@@ -30,7 +31,7 @@ SKIPPED_FIELDS = ("src", "locator")
 """Model fields left out of the record: where a value sits in a file is not part of what it is."""
 
 
-class RecordError(Exception):
+class RecordError(AerialbookError):
     """A record cannot be read or made: not JSON, wrong format version, not valid against the schema,
     or a git revision that cannot be exported. The command line reports it as a data or usage error."""
 

@@ -14,6 +14,8 @@ import os
 import shutil
 import tempfile
 from pathlib import Path
+
+from registry.core.errors import AerialbookError
 from typing import Iterator
 
 MARKER = ".aerialbook-site"
@@ -105,7 +107,7 @@ def same_content(path: Path | str, data: bytes, block: int = 1 << 20) -> bool:
         return False
 
 
-class PublishError(Exception):
+class PublishError(AerialbookError):
     """The target cannot be published to (not ours, locked, not writable)."""
 
 

@@ -32,7 +32,13 @@ def make_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"aerialbook {__version__}")
     parser.add_argument("--debug", action="store_true", help="show a traceback on errors")
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    add_check_and_build(commands)
+    add_serve_and_diff(commands)
+    return parser
 
+
+def add_check_and_build(commands) -> None:
+    """The `check` and `build` commands' arguments."""
     check = commands.add_parser(
         "check", help="validate the registry, compute every figure and report the discrepancies",
         description="Exit 0 when no blocking discrepancy is open, 1 when one is, 2 on data or usage errors.")
@@ -60,6 +66,9 @@ def make_parser() -> argparse.ArgumentParser:
                        help="add a page of what changed since OLD: a built site, a record file, a registry "
                             "folder, or git:REV (DATA_DIR at git revision REV)")
 
+
+def add_serve_and_diff(commands) -> None:
+    """The `serve` and `diff` commands' arguments."""
     serve = commands.add_parser(
         "serve", help="build, serve the site on this machine, and rebuild when the data changes",
         description="Serves on 127.0.0.1 only. A data error keeps the last good site and prints the problems.")
@@ -87,7 +96,6 @@ def make_parser() -> argparse.ArgumentParser:
                       help="...and by more than this, in its own unit (default: 0.001)")
     diff.add_argument("--as-of", metavar="YYYY-MM-DD",
                       help="compute registry folders and git revisions as of this date (default: NEW's as-of date)")
-    return parser
 
 
 def main(argv: list[str]) -> int:

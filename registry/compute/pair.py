@@ -1,8 +1,6 @@
 """Figures of pairs of installations on one aircraft: distance and Friis isolation."""
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from registry.core import figure_keys as FK

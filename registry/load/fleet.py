@@ -10,18 +10,14 @@ The package's service table and default policy (`registry/data/`) are read the s
 """
 from __future__ import annotations
 
-from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry.load import inputs, integrity
+from registry.load import build, inputs, integrity
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
-from registry.core.errors import FILE_FIELD, DataError, Problem, Src, parse_path
-from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap,
-                            Fuselage, GroundPlane, Installation, IsolationRule, Locator, Location, Measured,
-                            Modification, Policy, Review, Service, Wing, Zone, freeze)
-from registry.core.units import per_100ft_to_per_100m
+from registry.core.errors import FILE_FIELD, DataError, Problem, Src
+from registry.core.model import Aircraft, Fleet, FrozenMap, IsolationRule, Policy, Service
 from registry.load.yamlsource import YamlDoc, read_yaml
 
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
@@ -41,20 +37,6 @@ def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir:
     listing every problem, sorted by file and line.
     """
     return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, cache_dir, workers).load()
-
-
-class _Doc:
-    """A file that read and validated cleanly, with a factory for the `src`/`locator` of its objects."""
-
-    def __init__(self, doc: YamlDoc, file: Path):
-        self.data = doc.data
-        self.file = file
-        self.path = doc.path
-        self.srcs = {parts: placed.src for parts, placed in doc.index.items()}
-
-    def at(self, *parts: str | int) -> dict[str, Any]:
-        src = self.srcs.get(parts) or self.srcs[()]
-        return {"src": src, "locator": Locator(self.srcs, parts, src)}
 
 
 Parsed = tuple[YamlDoc | None, list[Problem]]
@@ -85,7 +67,7 @@ def _read_aircraft(file: Path) -> tuple[Aircraft | None, list[Problem]]:
     doc, problems = _parse_fresh(file, "aircraft")
     if doc is None or problems:
         return None, problems
-    return _aircraft(_Doc(doc, file))
+    return build.aircraft(build.Doc(doc, file))
 
 
 def _parse_fresh(file: Path, kind: str) -> Parsed:
@@ -107,7 +89,7 @@ class _Run:
     def problem(self, file: Path, found: str, expected: str) -> None:
         self.problems.append(Problem.at(Src(str(file), 1, 1), FILE_FIELD, found, expected))
 
-    def read(self, file: Path, kind: str, required: bool = True) -> _Doc | None:
+    def read(self, file: Path, kind: str, required: bool = True) -> build.Doc | None:
         """The file read and validated, or None (its problems recorded; a missing required file is one)."""
         if not file.is_file():
             if required:
@@ -115,9 +97,9 @@ class _Run:
             return None
         return self.accept(file, *parse(file, kind, self.cache))
 
-    def accept(self, file: Path, doc: YamlDoc | None, problems: list[Problem]) -> _Doc | None:
+    def accept(self, file: Path, doc: YamlDoc | None, problems: list[Problem]) -> build.Doc | None:
         self.problems.extend(problems)
-        return _Doc(doc, file) if doc is not None and not problems else None
+        return build.Doc(doc, file) if doc is not None and not problems else None
 
     def folder_files(self, name: str) -> list[Path]:
         """The .yaml files of a folder of the registry, sorted; a stray .yml or no file at all is a problem."""
@@ -129,7 +111,7 @@ class _Run:
             self.problem(folder, "no .yaml files", f"at least one {name}/<id>.yaml file")
         return files
 
-    def read_folder(self, name: str, kind: str) -> list[_Doc | None]:
+    def read_folder(self, name: str, kind: str) -> list[build.Doc | None]:
         files = self.folder_files(name)
         if not files:
             return [None]  # like a file that failed: references into this folder cannot be checked
@@ -165,19 +147,19 @@ class _Run:
         fleet_policy = self.read(self.data_dir / "policy.yaml", "policy", required=False)
         reviews_doc = self.read(self.data_dir / "reviews.yaml", "reviews", required=False)
 
-        airframes = [_airframe(doc) for doc in airframe_docs if doc]
-        antennas = [_antenna(antennas_doc, n, item) for n, item in enumerate(antennas_doc.data["models"])] \
+        airframes = [build.airframe(doc) for doc in airframe_docs if doc]
+        antennas = [build.antenna(antennas_doc, n, item) for n, item in enumerate(antennas_doc.data["models"])] \
             if antennas_doc else None
-        cables = [_cable(cables_doc, n, item) for n, item in enumerate(cables_doc.data["cables"])] \
+        cables = [build.cable(cables_doc, n, item) for n, item in enumerate(cables_doc.data["cables"])] \
             if cables_doc else None
         services = self.services(shipped_services, fleet_services)
         policy = self.policy(shipped_policy, fleet_policy)
-        reviews = [_review(reviews_doc, n, item) for n, item in enumerate(reviews_doc.data["reviews"])] \
+        reviews = [build.review(reviews_doc, n, item) for n, item in enumerate(reviews_doc.data["reviews"])] \
             if reviews_doc else []
 
         catalogue = integrity.Catalogue(
             # an id that differs from its file name is reported once, not again at each reference to it
-            airframes=None if None in airframe_docs else {name for item in airframes for name in _names(item)},
+            airframes=None if None in airframe_docs else {name for item in airframes for name in build.names(item)},
             antennas=None if antennas is None else {item.id for item in antennas},
             cables=None if cables is None else {item.id for item in cables},
             services=None if services is None else {item.id for item in services},
@@ -200,29 +182,29 @@ class _Run:
             operator=fleet_doc.data["operator"],
             title=fleet_doc.data.get("title"),
             data_dir=self.data_dir,
-            airframes=_by_id(airframes),
-            aircraft=_by_id(aircraft),
-            antennas=_by_id(antennas),
-            cables=_by_id(cables),
-            services=_by_id(services),
+            airframes=build.by_id(airframes),
+            aircraft=build.by_id(aircraft),
+            antennas=build.by_id(antennas),
+            cables=build.by_id(cables),
+            services=build.by_id(services),
             policy=policy,
             reviews=FrozenMap((review.discrepancy, review) for review in reviews),
             sweeps=FrozenMap(sweeps),
             input_keys=FrozenMap(keys),
         )
 
-    def services(self, shipped: _Doc | None, fleet: _Doc | None) -> list[Service] | None:
+    def services(self, shipped: build.Doc | None, fleet: build.Doc | None) -> list[Service] | None:
         """The shipped table with the fleet's entries added or replacing those of the same id."""
         if shipped is None or (fleet is None and (self.data_dir / "services.yaml").is_file()):
             return None
         table: dict[str, Service] = {}
         for doc in (shipped, fleet):
-            services = _services(doc, shipped=doc is shipped) if doc else []
+            services = build.services(doc, shipped=doc is shipped) if doc else []
             self.problems += integrity.duplicates(services, "id", "service id in this file")
             table.update((item.id, item) for item in services)
         return list(table.values())
 
-    def policy(self, shipped: _Doc | None, fleet: _Doc | None) -> Policy | None:
+    def policy(self, shipped: build.Doc | None, fleet: build.Doc | None) -> Policy | None:
         """The shipped defaults with the fleet's keys laid over them (maps merged key by key)."""
         if shipped is None or (fleet is None and (self.data_dir / "policy.yaml").is_file()):
             return None
@@ -252,7 +234,7 @@ class _Run:
         top = layers[0]
         return Policy(
             src=top.srcs[()],
-            locator=_LayeredLocator([doc.at()["locator"] for doc in layers]),
+            locator=build.LayeredLocator([doc.at()["locator"] for doc in layers]),
             length_tolerance_pct=float(merged["length_tolerance_pct"]),
             vswr_limit=float(merged["vswr_limit"]),
             vswr_limit_by_service=FrozenMap({k: float(v) for k, v in merged["vswr_limit_by_service"].items()}),
@@ -264,166 +246,3 @@ class _Run:
             min_isolation_db=tuple(rules[pair] for pair in sorted(rules)),
             sources=FrozenMap(merged.get("sources", {})),
         )
-
-
-class _LayeredLocator(Locator):
-    """Finds a policy field in the first file (fleet, then shipped) that sets it."""
-
-    def __init__(self, layers: list[Locator]):
-        super().__init__(layers[-1].index, (), layers[-1].fallback)
-        self.layers = layers
-
-    def where(self, field_path: str) -> Src:
-        parts = parse_path(field_path)
-        for layer in self.layers:
-            if parts in layer.index:
-                return layer.index[parts]
-        for layer in self.layers:
-            if parts[:1] in layer.index:
-                return layer.where(field_path)
-        return self.fallback
-
-
-def _names(item: Airframe) -> set[str]:
-    return {item.id, Path(item.src.path).stem}
-
-
-def _by_id(items: list[Any]) -> FrozenMap:
-    return FrozenMap((item.id, item) for item in items)
-
-
-def _date(text: str) -> date:
-    return date.fromisoformat(text)  # the schema has checked the format
-
-
-def _bands(pairs: list[list[float]]) -> tuple[tuple[float, float], ...]:
-    return tuple((float(low), float(high)) for low, high in pairs)
-
-
-def _airframe(doc: _Doc) -> Airframe:
-    data = doc.data
-    numbers = lambda mapping: {key: float(value) for key, value in mapping.items()}  # noqa: E731
-    return Airframe(
-        **doc.at(),
-        id=data["id"],
-        name=data["name"],
-        coord_unit=data["coord_unit"],
-        fuselage=Fuselage(**doc.at("fuselage"), **numbers(data["fuselage"])),
-        wing=Wing(**doc.at("wing"), **numbers(data["wing"])) if "wing" in data else None,
-        fin=Fin(**doc.at("fin"), **numbers(data["fin"])) if "fin" in data else None,
-        zones=tuple(Zone(**doc.at("zones", n), name=item["name"], sta_from=float(item["sta_from"]),
-                         sta_to=float(item["sta_to"]), material=item["material"],
-                         surfaces=tuple(item.get("surfaces", ())))
-                    for n, item in enumerate(data["zones"])),
-    )
-
-
-def _antenna(doc: _Doc, n: int, item: dict[str, Any]) -> AntennaModel:
-    return AntennaModel(
-        **doc.at("models", n),
-        id=item["id"],
-        description=item.get("description", ""),
-        kind=item["kind"],
-        polarisation=item["polarisation"],
-        impedance_ohm=float(item["impedance_ohm"]),
-        rated_vswr=float(item["rated_vswr"]),
-        bands_mhz=_bands(item["bands_mhz"]),
-        geometry=freeze(item["geometry"]),
-    )
-
-
-def _cable(doc: _Doc, n: int, item: dict[str, Any]) -> Cable:
-    if "attenuation_db_per_100m" in item:
-        unit, table = "db_per_100m", [(float(f), float(loss)) for f, loss in item["attenuation_db_per_100m"]]
-    else:
-        unit = "db_per_100ft"
-        table = [(float(f), per_100ft_to_per_100m(loss)) for f, loss in item["attenuation_db_per_100ft"]]
-    return Cable(
-        **doc.at("cables", n),
-        id=item["id"],
-        designation=item.get("designation", ""),
-        impedance_ohm=float(item["impedance_ohm"]),
-        velocity_factor=float(item["velocity_factor"]),
-        max_freq_mhz=float(item["max_freq_mhz"]),
-        attenuation_db_per_100m=tuple(table),
-        declared_unit=unit,
-    )
-
-
-def _services(doc: _Doc, shipped: bool) -> list[Service]:
-    services = []
-    for n, item in enumerate(doc.data["services"]):
-        bands = _bands(item["bands_mhz"])
-        services.append(Service(
-            **doc.at("services", n),
-            id=item["id"],
-            name=item["name"],
-            bands_mhz=bands,
-            design_freq_mhz=float(item.get("design_freq_mhz", (bands[0][0] + bands[0][1]) / 2)),
-            polarisation=item["polarisation"],
-            coverage=item["coverage"],
-            transmits=item["transmits"],
-            group=item["group"],
-            source=item.get("source", ""),
-            shipped=shipped,
-        ))
-    return services
-
-
-def _aircraft(doc: _Doc) -> tuple[Aircraft, list[Problem]]:
-    """An aircraft file's model, and the problems found in building it (positions used twice)."""
-    data = doc.data
-    installations = [_installation(doc, n, item) for n, item in enumerate(data["installations"])]
-    problems = integrity.duplicates(installations, "position", "position in this aircraft")
-    return Aircraft(
-        **doc.at(),
-        id=data["id"],
-        registration=data["registration"],
-        airframe=data["airframe"],
-        serial=data.get("serial"),
-        modifications=tuple(
-            Modification(**doc.at("modifications", n), ref=item["ref"], date=_date(item["date"]),
-                         summary=item["summary"])
-            for n, item in enumerate(data.get("modifications", []))),
-        installations=FrozenMap((item.position, item) for item in installations),
-    ), problems
-
-
-def _installation(doc: _Doc, n: int, item: dict[str, Any]) -> Installation:
-    at = ("installations", n)
-    feeder = item["feeder"]
-    ground_plane = item.get("ground_plane")
-    measured = item.get("measured")
-    return Installation(
-        **doc.at(*at),
-        position=item["position"],
-        service=item["service"],
-        antenna=item["antenna"],
-        location=Location(**doc.at(*at, "location"), **{k: float(v) for k, v in item["location"].items()}),
-        surface=item["surface"],
-        feeder=Feeder(**doc.at(*at, "feeder"), cable=feeder["cable"], length_m=float(feeder["length_m"]),
-                      connectors=int(feeder["connectors"]), adapters=int(feeder.get("adapters", 0))),
-        ground_plane=None if ground_plane is None else GroundPlane(
-            **doc.at(*at, "ground_plane"), type=ground_plane["type"],
-            radius_m=float(ground_plane["radius_m"]) if "radius_m" in ground_plane else None),
-        measured=None if measured is None else Measured(
-            **doc.at(*at, "measured"), date=_date(measured["date"]),
-            vswr=float(measured["vswr"]) if "vswr" in measured else None,
-            sweep=doc.file.parent / measured["sweep"] if "sweep" in measured else None),
-        coupler=item.get("coupler", False),
-        installed=_date(item["installed"]) if "installed" in item else None,
-        notes=item.get("notes", ""),
-    )
-
-
-def _review(doc: _Doc, n: int, item: dict[str, Any]) -> Review:
-    return Review(
-        **doc.at("reviews", n),
-        discrepancy=item["discrepancy"],
-        state=item["state"],
-        reviewer=item["reviewer"],
-        date=_date(item["date"]),
-        reference=item.get("reference", ""),
-        comment=item.get("comment", ""),
-        value_seen=item.get("value_seen"),
-    )

@@ -147,9 +147,16 @@ def _problems(error: ValidationError, doc: YamlDoc) -> list[Problem]:
         return [Problem.at(key_src, format_path(parts + (instance,)), f"the key '{instance}'",
                            _PATTERN_WORDS.get(schema.get("pattern", ""), "a valid key name"))]
 
-    found = describe(instance, placed.text)
+    found, expected = _found_expected(error, parts, placed.text, schema)
+    return [Problem.at(value_src, field, found, expected)]
+
+
+def _found_expected(error: ValidationError, parts: tuple, text: str | None, schema: dict) -> tuple[str, str]:
+    """What was found and what was expected, in words, for an error on one value."""
+    instance, kind = error.instance, error.validator
+    found = describe(instance, text)
     if kind == "type":
-        expected = _type_words(error.validator_value, instance, placed.text)
+        expected = _type_words(error.validator_value, instance, text)
     elif kind == "enum":
         expected = f"one of {', '.join(map(str, error.validator_value))}"
         if isinstance(instance, str):
@@ -175,7 +182,7 @@ def _problems(error: ValidationError, doc: YamlDoc) -> list[Problem]:
         found, expected = "an entry listed twice", "each entry once"
     else:
         expected = f"a value that satisfies '{kind}' ({error.message})"
-    return [Problem.at(value_src, field, found, expected)]
+    return found, expected
 
 
 def _type_words(types: str | list[str], instance: Any, text: str | None) -> str:

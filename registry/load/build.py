@@ -1,0 +1,195 @@
+"""Building the model objects from registry files that read and validated cleanly.
+
+Each builder takes a validated document (`Doc`) and returns frozen model objects carrying their source
+location, so later stages can point at the YAML line a figure came from.
+"""
+from __future__ import annotations
+
+from datetime import date
+from pathlib import Path
+from typing import Any
+
+from registry.core.errors import Problem, Src, parse_path
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, FrozenMap,
+                                 Fuselage, GroundPlane, Installation, Locator, Location, Measured,
+                                 Modification, Review, Service, Wing, Zone, freeze)
+from registry.core.units import per_100ft_to_per_100m
+from registry.load import integrity
+from registry.load.yamlsource import YamlDoc
+
+
+class Doc:
+    """A file that read and validated cleanly, with a factory for the `src`/`locator` of its objects."""
+
+    def __init__(self, doc: YamlDoc, file: Path):
+        self.data = doc.data
+        self.file = file
+        self.path = doc.path
+        self.srcs = {parts: placed.src for parts, placed in doc.index.items()}
+
+    def at(self, *parts: str | int) -> dict[str, Any]:
+        src = self.srcs.get(parts) or self.srcs[()]
+        return {"src": src, "locator": Locator(self.srcs, parts, src)}
+
+
+class LayeredLocator(Locator):
+    """Finds a policy field in the first file (fleet, then shipped) that sets it."""
+
+    def __init__(self, layers: list[Locator]):
+        super().__init__(layers[-1].index, (), layers[-1].fallback)
+        self.layers = layers
+
+    def where(self, field_path: str) -> Src:
+        parts = parse_path(field_path)
+        for layer in self.layers:
+            if parts in layer.index:
+                return layer.index[parts]
+        for layer in self.layers:
+            if parts[:1] in layer.index:
+                return layer.where(field_path)
+        return self.fallback
+
+
+def names(item: Airframe) -> set[str]:
+    return {item.id, Path(item.src.path).stem}
+
+
+def by_id(items: list[Any]) -> FrozenMap:
+    return FrozenMap((item.id, item) for item in items)
+
+
+def iso_date(text: str) -> date:
+    return date.fromisoformat(text)  # the schema has checked the format
+
+
+def band_pairs(pairs: list[list[float]]) -> tuple[tuple[float, float], ...]:
+    return tuple((float(low), float(high)) for low, high in pairs)
+
+
+def airframe(doc: Doc) -> Airframe:
+    data = doc.data
+    numbers = lambda mapping: {key: float(value) for key, value in mapping.items()}  # noqa: E731
+    return Airframe(
+        **doc.at(),
+        id=data["id"],
+        name=data["name"],
+        coord_unit=data["coord_unit"],
+        fuselage=Fuselage(**doc.at("fuselage"), **numbers(data["fuselage"])),
+        wing=Wing(**doc.at("wing"), **numbers(data["wing"])) if "wing" in data else None,
+        fin=Fin(**doc.at("fin"), **numbers(data["fin"])) if "fin" in data else None,
+        zones=tuple(Zone(**doc.at("zones", n), name=item["name"], sta_from=float(item["sta_from"]),
+                         sta_to=float(item["sta_to"]), material=item["material"],
+                         surfaces=tuple(item.get("surfaces", ())))
+                    for n, item in enumerate(data["zones"])),
+    )
+
+
+def antenna(doc: Doc, n: int, item: dict[str, Any]) -> AntennaModel:
+    return AntennaModel(
+        **doc.at("models", n),
+        id=item["id"],
+        description=item.get("description", ""),
+        kind=item["kind"],
+        polarisation=item["polarisation"],
+        impedance_ohm=float(item["impedance_ohm"]),
+        rated_vswr=float(item["rated_vswr"]),
+        bands_mhz=band_pairs(item["bands_mhz"]),
+        geometry=freeze(item["geometry"]),
+    )
+
+
+def cable(doc: Doc, n: int, item: dict[str, Any]) -> Cable:
+    if "attenuation_db_per_100m" in item:
+        unit, table = "db_per_100m", [(float(f), float(loss)) for f, loss in item["attenuation_db_per_100m"]]
+    else:
+        unit = "db_per_100ft"
+        table = [(float(f), per_100ft_to_per_100m(loss)) for f, loss in item["attenuation_db_per_100ft"]]
+    return Cable(
+        **doc.at("cables", n),
+        id=item["id"],
+        designation=item.get("designation", ""),
+        impedance_ohm=float(item["impedance_ohm"]),
+        velocity_factor=float(item["velocity_factor"]),
+        max_freq_mhz=float(item["max_freq_mhz"]),
+        attenuation_db_per_100m=tuple(table),
+        declared_unit=unit,
+    )
+
+
+def services(doc: Doc, shipped: bool) -> list[Service]:
+    services = []
+    for n, item in enumerate(doc.data["services"]):
+        bands = band_pairs(item["bands_mhz"])
+        services.append(Service(
+            **doc.at("services", n),
+            id=item["id"],
+            name=item["name"],
+            bands_mhz=bands,
+            design_freq_mhz=float(item.get("design_freq_mhz", (bands[0][0] + bands[0][1]) / 2)),
+            polarisation=item["polarisation"],
+            coverage=item["coverage"],
+            transmits=item["transmits"],
+            group=item["group"],
+            source=item.get("source", ""),
+            shipped=shipped,
+        ))
+    return services
+
+
+def aircraft(doc: Doc) -> tuple[Aircraft, list[Problem]]:
+    """An aircraft file's model, and the problems found in building it (positions used twice)."""
+    data = doc.data
+    installations = [installation(doc, n, item) for n, item in enumerate(data["installations"])]
+    problems = integrity.duplicates(installations, "position", "position in this aircraft")
+    return Aircraft(
+        **doc.at(),
+        id=data["id"],
+        registration=data["registration"],
+        airframe=data["airframe"],
+        serial=data.get("serial"),
+        modifications=tuple(
+            Modification(**doc.at("modifications", n), ref=item["ref"], date=iso_date(item["date"]),
+                         summary=item["summary"])
+            for n, item in enumerate(data.get("modifications", []))),
+        installations=FrozenMap((item.position, item) for item in installations),
+    ), problems
+
+
+def installation(doc: Doc, n: int, item: dict[str, Any]) -> Installation:
+    at = ("installations", n)
+    feeder = item["feeder"]
+    ground_plane = item.get("ground_plane")
+    measured = item.get("measured")
+    return Installation(
+        **doc.at(*at),
+        position=item["position"],
+        service=item["service"],
+        antenna=item["antenna"],
+        location=Location(**doc.at(*at, "location"), **{k: float(v) for k, v in item["location"].items()}),
+        surface=item["surface"],
+        feeder=Feeder(**doc.at(*at, "feeder"), cable=feeder["cable"], length_m=float(feeder["length_m"]),
+                      connectors=int(feeder["connectors"]), adapters=int(feeder.get("adapters", 0))),
+        ground_plane=None if ground_plane is None else GroundPlane(
+            **doc.at(*at, "ground_plane"), type=ground_plane["type"],
+            radius_m=float(ground_plane["radius_m"]) if "radius_m" in ground_plane else None),
+        measured=None if measured is None else Measured(
+            **doc.at(*at, "measured"), date=iso_date(measured["date"]),
+            vswr=float(measured["vswr"]) if "vswr" in measured else None,
+            sweep=doc.file.parent / measured["sweep"] if "sweep" in measured else None),
+        coupler=item.get("coupler", False),
+        installed=iso_date(item["installed"]) if "installed" in item else None,
+        notes=item.get("notes", ""),
+    )
+
+
+def review(doc: Doc, n: int, item: dict[str, Any]) -> Review:
+    return Review(
+        **doc.at("reviews", n),
+        discrepancy=item["discrepancy"],
+        state=item["state"],
+        reviewer=item["reviewer"],
+        date=iso_date(item["date"]),
+        reference=item.get("reference", ""),
+        comment=item.get("comment", ""),
+        value_seen=item.get("value_seen"),
+    )

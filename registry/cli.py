@@ -128,8 +128,8 @@ def run(args: argparse.Namespace) -> int:
     if args.command == "build":
         baseline = None
         if args.compare:
-            from registry.output import diff
-            baseline = diff.read_side(args.compare, run=pipeline.run, git_data_dir=data_dir,
+            from registry.output import sides as sides_
+            baseline = sides_.read_side(args.compare, run=pipeline.run, git_data_dir=data_dir,
                                       as_of=pipeline.as_of_date(data_dir))
         out = Path(args.out)
         naive = os.environ.get("AERIALBOOK_NAIVE") == "1"  # the benchmark's baseline: no reuse at all
@@ -176,11 +176,13 @@ def run_diff(args: argparse.Namespace) -> int:
     from datetime import date
 
     from registry import pipeline
-    from registry.output import diff
+    from registry.output import compare, compare_text
+    from registry.output import sides as sides_
+    from registry.output.comparison import Tolerance
 
     sides = list(args.sides)
     if args.git:
-        sides.insert(0, diff.GIT_PREFIX + args.git)
+        sides.insert(0, sides_.GIT_PREFIX + args.git)
     if not 1 <= len(sides) <= 2:
         print("error: diff: expected OLD [NEW], or --git REV [NEW]", file=sys.stderr)
         return EXIT_DATA
@@ -195,13 +197,13 @@ def run_diff(args: argparse.Namespace) -> int:
         print(f"error: diff: --as-of: found {args.as_of!r}, expected a date YYYY-MM-DD", file=sys.stderr)
         return EXIT_DATA
     old_spec, new_spec = sides
-    kinds = [diff.side_kind(spec) for spec in sides]
+    kinds = [sides_.side_kind(spec) for spec in sides]
     git_dir = Path(args.data) if args.data else Path(new_spec) if kinds[1] == "registry" else Path("fleet_data")
-    new = diff.read_side(new_spec, run=pipeline.run, git_data_dir=git_dir, as_of=as_of)
-    old = diff.read_side(old_spec, run=pipeline.run, git_data_dir=git_dir,
+    new = sides_.read_side(new_spec, run=pipeline.run, git_data_dir=git_dir, as_of=as_of)
+    old = sides_.read_side(old_spec, run=pipeline.run, git_data_dir=git_dir,
                          as_of=as_of or date.fromisoformat(new.record["as_of"]))
-    comparison = diff.compare(old.record, new.record, diff.Tolerance(args.rel_tol, args.abs_tol), old.label, new.label)
-    sys.stdout.write(diff.as_json(comparison) if args.format == "json" else diff.as_text(comparison))
+    comparison = compare.compare(old.record, new.record, Tolerance(args.rel_tol, args.abs_tol), old.label, new.label)
+    sys.stdout.write(compare_text.as_json(comparison) if args.format == "json" else compare_text.as_text(comparison))
     return EXIT_OK if comparison.same else EXIT_DIFFERENT
 
 

@@ -14,7 +14,8 @@ from typing import NamedTuple
 
 from registry.check import reviews
 from registry.evaluate import evaluate_fleet
-from registry.output import diff
+from registry.output.compare import compare
+from registry.output.sides import Side
 from registry.site import plots
 from registry.site import publish
 from registry.output import record
@@ -88,7 +89,7 @@ class Published(NamedTuple):
     written: bool
 
 
-def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cache_dir: Path | None = None,
+def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir: Path | None = None,
           workers: int | None = None, naive: bool = False, progress: Progress = QUIET) -> Published:
     """Load, compute, check and render the registry, then publish it atomically to `out_dir`.
 
@@ -109,7 +110,7 @@ def build(data_dir: Path, out_dir: Path, baseline: diff.Side | None = None, cach
         outcome = run(data_dir, as_of=as_of, cache_dir=cache_root, workers=workers, progress=progress, lazy=True)
         built = record.to_text(outcome)
         outcome.results.records.clear()  # joined into `built`: not held twice
-        comparison = (diff.compare(baseline.record, json.loads(built), old_label=baseline.label,
+        comparison = (compare(baseline.record, json.loads(built), old_label=baseline.label,
                                    new_label=f"registry {data_dir}") if baseline is not None else None)
         incremental = render.Incremental({} if naive else publish.previous_aircraft(out_dir), {},
                                          DiskCache(None if naive else cache_root, "pieces"))

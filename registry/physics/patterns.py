@@ -173,15 +173,7 @@ def pattern_for_kind(kind: str, geometry, freq_hz: float, step_deg: float = 1.0)
     for name in {e_name, h_name, "xy"}:
         th_c, ph_c = metrics.plane_directions(name, psi)
         cuts[name] = (th_c, ph_c, np.asarray(fn(th_c, ph_c), dtype=float) * np.ones_like(psi))
-    # the maximum: best of the grid and the cuts
-    candidates = [(float(grid.max()), *np.unravel_index(int(np.argmax(grid)), grid.shape), None)]
-    for name, (th_c, ph_c, p) in cuts.items():
-        i = int(np.argmax(p))
-        candidates.append((float(p[i]), th_c[i], ph_c[i], name))
-    u_max, a, b, src = max(candidates, key=lambda c: c[0])
-    th_pk, ph_pk = (float(theta[a]), float(phi[b])) if src is None else (float(a), float(b))
-    if th_pk < 1e-9 or th_pk > np.pi - 1e-9:
-        ph_pk = 0.0  # on the axis, phi is arbitrary
+    u_max, th_pk, ph_pk = _peak(grid, theta, phi, cuts)
     if not u_max > 0:
         raise ValueError(f"{kind}: the pattern is zero everywhere")
     back = float(np.asarray(fn(np.array(np.pi - th_pk), np.array(ph_pk + np.pi)), dtype=float))
@@ -220,3 +212,16 @@ def pattern_for_kind(kind: str, geometry, freq_hz: float, step_deg: float = 1.0)
         h_db=h_db,
         metrics=m,
     )
+
+
+def _peak(grid, theta, phi, cuts) -> tuple[float, float, float]:
+    """The pattern's maximum U and a direction (θ, φ in rad) of it: the best of the grid and the cuts."""
+    candidates = [(float(grid.max()), *np.unravel_index(int(np.argmax(grid)), grid.shape), None)]
+    for name, (th_c, ph_c, p) in cuts.items():
+        i = int(np.argmax(p))
+        candidates.append((float(p[i]), th_c[i], ph_c[i], name))
+    u_max, a, b, src = max(candidates, key=lambda c: c[0])
+    th_pk, ph_pk = (float(theta[a]), float(phi[b])) if src is None else (float(a), float(b))
+    if th_pk < 1e-9 or th_pk > np.pi - 1e-9:
+        ph_pk = 0.0  # on the axis, phi is arbitrary
+    return u_max, th_pk, ph_pk

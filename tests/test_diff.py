@@ -11,7 +11,10 @@ import pytest
 
 import registry.load.fleet
 from registry import pipeline
-from registry.output import diff
+from registry.output.compare import compare as compare_records
+from registry.output.compare_text import as_text
+from registry.output.comparison import Comparison, FieldChange, Tolerance
+from registry.site.changes import changes_page
 from registry.output import record
 from registry.site import render
 from registry.cli import main
@@ -55,8 +58,8 @@ def records(old: Path, new: Path) -> tuple[dict, dict]:
     return record.to_record(pipeline.run(old)), record.to_record(pipeline.run(new))
 
 
-def compare(old: Path, new: Path, **tolerance) -> diff.Comparison:
-    return diff.compare(*records(old, new), diff.Tolerance(**tolerance))
+def compare(old: Path, new: Path, **tolerance) -> Comparison:
+    return compare_records(*records(old, new), Tolerance(**tolerance))
 
 
 # ---- the same ------------------------------------------------------------------------------------------
@@ -82,7 +85,7 @@ def test_changed_cable_length_is_shown_field_by_field_and_moves_the_feeder_figur
     result = compare(old, new)
     change = result.installation("qx-fca", "DME1")
     assert change.change == "changed"
-    assert change.fields == (diff.FieldChange("feeder.length_m", 6.1, 5.0),)
+    assert change.fields == (FieldChange("feeder.length_m", 6.1, 5.0),)
     assert [item.change for item in result.installations] == ["changed"]
     moved = {item.key: item for item in result.figures_of("qx-fca", "DME1")}
     cable = moved["feeder.cable_loss_db"]
@@ -116,7 +119,7 @@ def test_added_antenna_is_listed_with_its_new_discrepancies(pair, capsys):
     path = new / "aircraft" / "qx-fcb.yaml"
     path.write_text(path.read_text(encoding="utf-8") + GNSS_ON_FCB, encoding="utf-8")
     old_record, new_record = records(old, new)
-    result = diff.compare(old_record, new_record)
+    result = compare_records(old_record, new_record)
     added = result.installation("qx-fcb", "GNSS1")
     assert added.change == "added"
     assert added.summary == "gnss_l1, FXA-L1-PATCH, STA 330 BL 0 WL 160 top, FXC-400 5 m"
@@ -137,7 +140,7 @@ def test_removed_antenna_resolves_its_discrepancies(pair, capsys):
          "    location: {sta: 20.0, bl: 0.0, wl: 100.0}\n    surface: nose\n"
          "    feeder: {cable: FXC-400, length_m: 4.0, connectors: 2}\n", "")
     old_record, new_record = records(old, new)
-    result = diff.compare(old_record, new_record)
+    result = compare_records(old_record, new_record)
     removed = result.installation("qx-fca", "GS1")
     assert removed.change == "removed" and removed.summary.startswith("ils_gs, FXA-GS-FD, STA 20 BL 0 WL 100 nose")
     on_gs1 = {key for key, entry in old_record["discrepancies"].items() if entry["position"] == "GS1"}
@@ -158,8 +161,8 @@ def test_antenna_moved_to_another_position_is_one_move_and_its_findings_follow(p
     assert [item.change for item in result.installations] == ["moved"]
     moved = result.installation("qx-fca", "VHF1-AFT")
     assert moved.old_position == "VHF1"
-    assert moved.fields == (diff.FieldChange("location.sta", 312.0, 420.0),
-                            diff.FieldChange("position", "VHF1", "VHF1-AFT"))
+    assert moved.fields == (FieldChange("location.sta", 312.0, 420.0),
+                            FieldChange("position", "VHF1", "VHF1-AFT"))
     assert result.installation("qx-fca", "VHF1") is None
     # the band-coverage finding moved with its antenna: neither new nor resolved
     assert [item for item in result.discrepancies if item.change in ("new", "resolved")] == []
@@ -209,7 +212,7 @@ def test_changed_review_is_reported(pair, capsys):
     assert result.installations == [] and result.figures == []
     [change] = result.discrepancies
     assert (change.id, change.change) == ("qx-fca/DME1/element-length", "changed")
-    assert change.aspects == (diff.FieldChange("review", "open", "action-raised (R. Example, ENG-REQ-0311)"),)
+    assert change.aspects == (FieldChange("review", "open", "action-raised (R. Example, ENG-REQ-0311)"),)
     assert result.counts()["review_changes"] == 1
     assert result.marks("qx-fca", "DME1") == ("1 finding changed",)
     assert main(["diff", str(old), str(new)]) == 1
@@ -220,14 +223,14 @@ def test_tolerance_decides_which_figures_moved(pair):
     old, new = pair
     edit(new / "aircraft" / "qx-fca.yaml", "length_m: 6.1,", "length_m: 6.1001,")
     default = compare(old, new)
-    assert default.installation("qx-fca", "DME1").fields == (diff.FieldChange("feeder.length_m", 6.1, 6.1001),)
+    assert default.installation("qx-fca", "DME1").fields == (FieldChange("feeder.length_m", 6.1, 6.1001),)
     assert default.figures == []  # a 0.002 % change moves no figure beyond 0.1 %
     exact = compare(old, new, rel=0.0, abs=0.0)
     assert "feeder.cable_loss_db" in {item.key for item in exact.figures}
 
 
 def test_tolerance_rule():
-    tolerance = diff.Tolerance(rel=1e-3, abs=1e-3)
+    tolerance = Tolerance(rel=1e-3, abs=1e-3)
     assert tolerance.same(100.0, 100.09) and not tolerance.same(100.0, 100.2)
     assert tolerance.same(0.0, 0.0009) and not tolerance.same(0.0, 0.002)
     assert tolerance.same("metal", "metal") and not tolerance.same("metal", "composite")
@@ -392,7 +395,7 @@ def test_changes_page_links_only_what_exists_in_the_new_build(pair):
     edit(new / "aircraft" / "qx-fca.yaml", "  - position: VHF1\n", "  - position: VHF1-AFT\n")
     edit(new / "aircraft" / "qx-fca.yaml", "      cable: FXC-400\n      length_m: 7.8\n",
          "      cable: FXC-142\n      length_m: 7.8\n")  # no longer a move: removed + added
-    context = diff.changes_page(compare(old, new), aircraft_href=render.aircraft_path,
+    context = changes_page(compare(old, new), aircraft_href=render.aircraft_path,
                                 installation_href=render.installation_path)
     links = {(row["position"], row["change"]): row["href"] for row in context["installations"]}
     assert links == {("VHF1", "removed"): None, ("VHF1-AFT", "added"): "aircraft/qx-fca/VHF1-AFT.html"}
@@ -437,9 +440,9 @@ def test_changed_severity_is_reported(pair):
     before = record.to_record(pipeline.run(old))
     after = json.loads(record.dumps(before))
     after["discrepancies"]["qx-fca/GS1/element-length"]["severity"] = "blocking"  # as a rule change would do
-    result = diff.compare(before, after)
+    result = compare_records(before, after)
     [change] = result.discrepancies
-    assert change.aspects == (diff.FieldChange("severity", before["discrepancies"]["qx-fca/GS1/element-length"]
+    assert change.aspects == (FieldChange("severity", before["discrepancies"]["qx-fca/GS1/element-length"]
                                                ["severity"], "blocking"),)
     assert result.counts()["severity_changes"] == 1 and not result.same
-    assert "             severity: concern → blocking\n" in diff.as_text(result)
+    assert "             severity: concern → blocking\n" in as_text(result)

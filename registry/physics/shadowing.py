@@ -69,8 +69,8 @@ def body_directions(dirs_fru: np.ndarray, bank_deg: float = 0.0, pitch_deg: floa
     return body_ned * np.array([-1.0, 1.0, -1.0])
 
 
-def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float) -> np.ndarray:
-    """Boolean (N,): the rays p + t d (t > t_min, d (N, 3) unit) enter the fuselage.
+def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:
+    """Boolean (N,): the rays p + t d (t_min < t < t_max, d (N, 3) unit) enter the fuselage.
 
     Per segment: F(t) = A t^2 + B t + C with, at the point's station extrapolated linearly,
     A = dy^2 + ((dz - c' dx)/q)^2 - (w' dx)^2, B = 2 (y dy + (z - c)(dz - c' dx)/q^2 - w w' dx),
@@ -79,6 +79,7 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     x0s, x1s, w0s, dws, c0s, dcs, qs = segment_coefficients(shape)
     tol = 1e-9 * float(np.max(shape.half_width_m)) ** 2
     big = 1e3 * (shape.sta_m[-1] - shape.sta_m[0]) + 1e3 * float(np.linalg.norm(p))
+    big = big if t_max is None else float(t_max)
     dx, dy, dz = d[:, 0], d[:, 1], d[:, 2]
     hit = np.zeros(d.shape[0], dtype=bool)
     safe_dx = np.where(np.abs(dx) > 1e-12, dx, 1.0)
@@ -101,8 +102,8 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     return hit
 
 
-def plates_block(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float) -> np.ndarray:
-    """Boolean (N,): the rays p + t d (t > t_min) cross one of the shape's faces inside its polygon.
+def plates_block(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:
+    """Boolean (N,): the rays p + t d (t_min < t < t_max) cross one of the shape's faces inside its polygon.
 
     Only rays inside the cone that holds a face's bounding sphere are tested (a pre-filter that never
     drops a hit: every point of the face lies inside that sphere).
@@ -124,7 +125,7 @@ def plates_block(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: floa
         denom = dd @ pl.normal
         safe = np.where(np.abs(denom) > 1e-12, denom, 1.0)
         t = ((origin - p) @ pl.normal) / safe
-        cand = (np.abs(denom) > 1e-12) & (t > t_min)
+        cand = (np.abs(denom) > 1e-12) & (t > t_min) & (t < (np.inf if t_max is None else t_max))
         rel = p[None, :] + t[:, None] * dd - origin
         poly = (pl.vertices_m - origin) @ np.stack([u, v], axis=1)
         hit[idx] = cand & inside_polygon(np.stack([rel @ u, rel @ v], axis=-1), poly)
@@ -216,3 +217,24 @@ def worst_blocked_sector(grid: ShadowGrid, region: np.ndarray, fraction: float =
             run = 0
     end = (best_start + best - 1) % n
     return (float(grid.az_deg[best_start]), float(grid.az_deg[end]), best * grid.step_deg)
+
+
+def segment_clear(shape: AirframeShape, point_a, point_b, scale_m: float, tolerance_m: float = 0.01) -> bool:
+    """True when the straight line between two points (airframe unit) crosses no part of the airframe.
+
+    Points on the skin are moved onto it; the line must leave A above its tangent plane and reach B
+    from above B's (the same geometric-optics test as shadow_grid, cut at the distance between them).
+    """
+    ends = []
+    for pt in (point_a, point_b):
+        hit = locate_on_skin(shape, pt, scale_m, tolerance_m)
+        ends.append((to_metres(pt, scale_m) if hit is None else hit.on_skin_m, hit))
+    (p, hit_a), (q, hit_b) = ends
+    dist = float(np.linalg.norm(q - p))
+    if dist == 0:
+        raise ValueError("the two points coincide")
+    d = ((q - p) / dist)[None, :]
+    if (hit_a is not None and d[0] @ hit_a.normal < -1e-9) or (hit_b is not None and d[0] @ hit_b.normal > 1e-9):
+        return False
+    t_min, t_max = 1e-9 * dist, dist * (1 - 1e-9)
+    return not (fuselage_blocks(shape, p, d, t_min, t_max)[0] or plates_block(shape, p, d, t_min, t_max)[0])

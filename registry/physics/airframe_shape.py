@@ -31,11 +31,12 @@ TIP_FRACTION = 0.12
 @dataclass(frozen=True)
 class Plate:
     """One planar polygon face; vertices_m (n, 3) in (STA, BL, WL) metres, counter-clockwise about
-    normal (the face's outward unit normal)."""
+    normal (the face's outward unit normal); group: the slab (or plate) the face belongs to."""
 
     name: str
     vertices_m: np.ndarray
     normal: np.ndarray
+    group: str = ""
 
 
 @dataclass(frozen=True)
@@ -100,7 +101,7 @@ def plate(name: str, vertices, scale_m: float) -> Plate:
     n = n / norm
     if np.max(np.abs((v - v[0]) @ n)) > 1e-6 * size:
         raise ValueError(f"plate '{name}' is not flat")
-    return Plate(name, v, n)
+    return Plate(name, v, n, name)
 
 
 def slab(name: str, vertices, thickness: float, scale_m: float) -> tuple[Plate, ...]:
@@ -119,7 +120,7 @@ def slab(name: str, vertices, thickness: float, scale_m: float) -> tuple[Plate, 
     for k in range(n):
         j = (k + 1) % n
         faces.append(plate(f"{name} edge {k}", [bot[k], bot[j], top[j], top[k]], 1.0))
-    return tuple(faces)
+    return tuple(Plate(f.name, f.vertices_m, f.normal, name) for f in faces)
 
 
 def to_metres(point, scale_m: float) -> np.ndarray:

@@ -22,6 +22,7 @@ which sums to 4 pi over the grid.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
@@ -69,6 +70,15 @@ def body_directions(dirs_fru: np.ndarray, bank_deg: float = 0.0, pitch_deg: floa
     return body_ned * np.array([-1.0, 1.0, -1.0])
 
 
+@lru_cache(maxsize=32)
+def _grid_body_directions(step_deg: float, bank_deg: float, pitch_deg: float) -> np.ndarray:
+    """(E * A, 3) body-axis directions of the grid for one attitude (cached, read-only)."""
+    az, el = direction_grid(step_deg)
+    d = body_directions(earth_directions(az, el), bank_deg, pitch_deg).reshape(-1, 3)
+    d.setflags(write=False)
+    return d
+
+
 def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:
     """Boolean (N,): the rays p + t d (t_min < t < t_max, d (N, 3) unit) enter the fuselage.
 
@@ -102,33 +112,43 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     return hit
 
 
+def _cone_filter(vertices_m: np.ndarray, p: np.ndarray, d: np.ndarray, idx: np.ndarray) -> np.ndarray:
+    """The indices among idx of the rays inside the cone from p holding the vertices' bounding sphere
+    (a pre-filter that never drops a hit: every point of a convex hull lies inside that sphere)."""
+    centre = vertices_m.mean(axis=0)
+    radius = float(np.max(np.linalg.norm(vertices_m - centre, axis=1))) * (1 + 1e-9)
+    to_c = centre - p
+    dist = float(np.linalg.norm(to_c))
+    if dist <= radius:
+        return idx
+    return idx[d[idx] @ (to_c / dist) >= np.sqrt(1 - (radius / dist) ** 2) - 1e-12]
+
+
 def plates_block(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:
     """Boolean (N,): the rays p + t d (t_min < t < t_max) cross one of the shape's faces inside its polygon.
 
-    Only rays inside the cone that holds a face's bounding sphere are tested (a pre-filter that never
-    drops a hit: every point of the face lies inside that sphere).
+    Rays are first filtered by the cone of each group's (slab's) bounding sphere, then of each face's.
     """
     hit = np.zeros(d.shape[0], dtype=bool)
+    groups: dict[str, list] = {}
     for pl in shape.plates:
-        centre = pl.vertices_m.mean(axis=0)
-        radius = float(np.max(np.linalg.norm(pl.vertices_m - centre, axis=1))) * (1 + 1e-9)
-        to_c = centre - p
-        dist = float(np.linalg.norm(to_c))
-        idx = np.flatnonzero(~hit)
-        if dist > radius:
-            idx = idx[d[idx] @ (to_c / dist) >= np.sqrt(1 - (radius / dist) ** 2) - 1e-12]
-        if idx.size == 0:
-            continue
-        dd = d[idx]
-        u, v = plane_basis(pl)
-        origin = pl.vertices_m[0]
-        denom = dd @ pl.normal
-        safe = np.where(np.abs(denom) > 1e-12, denom, 1.0)
-        t = ((origin - p) @ pl.normal) / safe
-        cand = (np.abs(denom) > 1e-12) & (t > t_min) & (t < (np.inf if t_max is None else t_max))
-        rel = p[None, :] + t[:, None] * dd - origin
-        poly = (pl.vertices_m - origin) @ np.stack([u, v], axis=1)
-        hit[idx] = cand & inside_polygon(np.stack([rel @ u, rel @ v], axis=-1), poly)
+        groups.setdefault(pl.group or pl.name, []).append(pl)
+    upper = np.inf if t_max is None else t_max
+    for faces in groups.values():
+        in_group = _cone_filter(np.concatenate([f.vertices_m for f in faces]), p, d, np.flatnonzero(~hit))
+        for pl in faces:
+            idx = _cone_filter(pl.vertices_m, p, d, in_group[~hit[in_group]])
+            if idx.size == 0:
+                continue
+            dd = d[idx]
+            u, v = plane_basis(pl)
+            origin = pl.vertices_m[0]
+            denom = dd @ pl.normal
+            t = ((origin - p) @ pl.normal) / np.where(np.abs(denom) > 1e-12, denom, 1.0)
+            cand = (np.abs(denom) > 1e-12) & (t > t_min) & (t < upper)
+            rel = p[None, :] + t[:, None] * dd - origin
+            poly = (pl.vertices_m - origin) @ np.stack([u, v], axis=1)
+            hit[idx] = cand & inside_polygon(np.stack([rel @ u, rel @ v], axis=-1), poly)
     return hit
 
 
@@ -140,7 +160,7 @@ def shadow_grid(shape: AirframeShape, point, scale_m: float, step_deg: float = 2
     plane is blocked; a point off the skin (e.g. a test point behind a plate) is used as given.
     """
     az, el = direction_grid(step_deg)
-    d = body_directions(earth_directions(az, el), bank_deg, pitch_deg).reshape(-1, 3)
+    d = _grid_body_directions(float(step_deg), float(bank_deg), float(pitch_deg))
     hit_skin = locate_on_skin(shape, point, scale_m, tolerance_m)
     p = to_metres(point, scale_m) if hit_skin is None else hit_skin.on_skin_m
     size = max(float(np.ptp(shape.sta_m)), 1e-3)

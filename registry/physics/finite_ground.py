@@ -19,8 +19,8 @@ The monopole uses the thin-wire reduced kernel R = sqrt(b^2 + (z - z')^2); wire 
 axis (R = sqrt(rho^2 + z^2)). Static parts 1/R are integrated in closed form: ring integrals by
 complete elliptic integrals (int dphi/sqrt(A - B cos phi) = 4 K(m)/sqrt(A + B),
 int cos phi dphi/sqrt(A - B cos phi) = 4 [(A/B) K(m) - ((A + B)/B) E(m)]/sqrt(A + B), m = 2B/(A + B);
-Gradshteyn & Ryzhik 2.571, checked numerically in the tests), line and rectangle integrals of 1/R by
-asinh. Excitation: 1 V delta gap at the base node; Z_in = 1 / I(base).
+Gradshteyn & Ryzhik 2.571, from memory, checked numerically in the tests), line and rectangle
+integrals of 1/R by asinh. Excitation: 1 V delta gap at the base node; Z_in = 1 / I(base).
 
 Far field (e^{-jkr}/r dropped): E_theta = -j w mu/(4 pi) [A_rho cos(theta) - A_z sin(theta)],
 A_z = integral I_z(z) e^{jkz cos theta} dz, A_rho = j integral I(rho) J1(k rho sin theta) d rho
@@ -76,7 +76,8 @@ def _points(mesh: Mesh, rule):
     t = a + (b - a) * u
     wt = (b - a) * w[None, :] / 2
     plate = mesh.on_plate[:, None]
-    return np.where(plate, t - mesh.height_m, 0.0), np.where(plate, 0.0, mesh.height_m - t), wt, np.broadcast_to(u, t.shape)
+    rho = np.where(plate, t - mesh.height_m, 0.0)
+    return rho, np.where(plate, 0.0, mesh.height_m - t), wt, np.broadcast_to(u, t.shape)
 
 
 def _ring_static(rho_o, rho_s):

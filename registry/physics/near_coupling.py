@@ -2,13 +2,15 @@
 
 Two monopoles of heights h1, h2 standing on a perfectly conducting plane, axes parallel, d apart, are
 by image theory two centre-fed dipoles of lengths 2 h1, 2 h2 in free space (Balanis, Antenna Theory,
-4th ed., §4.7.1, image theory). The dipoles' two-port admittance matrix comes from the thin-wire
+4th ed., ch. 4, image theory; section from memory). The dipoles' two-port admittance matrix comes
+from the thin-wire
 Galerkin solver in wire.py (one 1 V delta gap per port, the other port shorted): Y = [[I11, I12],
 [I21, I22]], Z_dipole = Y^-1. Each monopole sees half its dipole's voltage for the same current, so
 Z_monopole = Z_dipole / 2 (self and mutual terms alike).
 
 Coupling with both ports on z0 (50 ohm) lines: S = (Z - z0 U)(Z + z0 U)^-1 (Pozar, Microwave
-Engineering, 4th ed., §4.4, impedance-to-scattering conversion); coupling_db = 20 log10 |S21| (<= 0).
+Engineering, 4th ed., ch. 4, impedance-to-scattering conversion; section from memory);
+coupling_db = 20 log10 |S21| (<= 0).
 It is the power delivered to the second port's matched load over the power available from the first
 port's source. Valid whatever the spacing, as long as the plane is large (see finite_ground for the
 plate's own effect) and the wires thin (radius << height).

@@ -68,7 +68,8 @@ def _surface_path(shape, a: PairAntenna, b: PairAntenna, scale_m, freq_hz) -> Pa
         return PairCoupling(res.coupling_db, "moment method over the skin",
                             f"two monopoles on the fuselage {res.paths_m[0]:.2f} m apart over a practically flat path")
     return PairCoupling(res.coupling_db, "creeping wave round the fuselage",
-                        f"two monopoles on the fuselage, {np.degrees(angle):.0f} deg round it, path {res.paths_m[0]:.2f} m")
+                        f"two monopoles on the fuselage, {np.degrees(angle):.0f} deg round it, "
+                        f"path {res.paths_m[0]:.2f} m")
 
 
 def _line_of_sight(a: PairAntenna, b: PairAntenna, distance_m: float, freq_hz: float) -> PairCoupling:

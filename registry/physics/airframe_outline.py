@@ -1,0 +1,99 @@
+"""An AirframeShape from the coarse outline the airframe files hold today (airframe.schema.json).
+
+Fields read (all in the airframe's coord_unit, which scale_m converts to metres):
+  fuselage: nose_sta, tail_sta, width, height, centreline_wl
+  wing (optional): root_le_sta, root_chord, span, sweep_deg
+  fin (optional): root_le_sta, root_chord, height, sweep_deg
+The outline does not give the nose and tail-cone shapes, the wing's waterline, taper and thickness, the
+fin's taper and thickness, nor any tailplane. What is assumed instead is returned in the shape's
+`assumptions`, word for word, so a page can print it beside every figure that uses the shape; the
+values are common practice for transport aircraft, no source, and each is an argument to override.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from registry.physics.airframe_shape import AirframeShape, TIP_FRACTION, fuselage, slab
+
+
+def _get(obj, name: str) -> float:
+    """A field of a mapping or of an object with attributes (the loaded model's dataclasses)."""
+    value = obj[name] if isinstance(obj, dict) else getattr(obj, name)
+    return float(value)
+
+
+def outline_sections(nose_sta, tail_sta, width, height, centreline_wl, nose_length, tail_length, n_cap=6):
+    """Section arrays (sta, centre_wl, half_width, half_height) of an outline fuselage (airframe unit).
+
+    Nose: half-width w(s) = W sqrt(1 - (1 - s/L_n)^2) over the nose length L_n (an ellipsoidal fore
+    body), floored at TIP_FRACTION W. Parallel body at the full ellipse. Tail cone over L_t: half-width
+    falls linearly to TIP_FRACTION W while the crown line stays level (centre WL rises, the belly sweeps
+    up). Aspect height/width is the same everywhere, so the frustums are exact.
+    """
+    half_w, aspect = width / 2, height / width
+    s = np.linspace(0.0, 1.0, n_cap + 1)
+    nose_x = nose_sta + nose_length * s
+    nose_w = half_w * np.maximum(np.sqrt(1 - (1 - s) ** 2), TIP_FRACTION)
+    tail_x = tail_sta - tail_length + tail_length * s
+    tail_w = half_w * (1 - (1 - TIP_FRACTION) * s)
+    x = np.concatenate([nose_x, tail_x])
+    w = np.concatenate([nose_w, tail_w])
+    crown = centreline_wl + height / 2
+    c = np.where(x > tail_sta - tail_length, crown - aspect * w, centreline_wl)
+    return x, c, w, aspect * w
+
+
+def _wing_faces(wing, fus_half_width, wl, taper, thickness_ratio, scale_m):
+    le, chord, span, sweep = (_get(wing, k) for k in ("root_le_sta", "root_chord", "span", "sweep_deg"))
+    semi = span / 2 - fus_half_width
+    tip_le = le + semi * math.tan(math.radians(sweep))
+    faces = []
+    for side, sign in (("right", 1.0), ("left", -1.0)):
+        verts = [(le, sign * fus_half_width, wl), (tip_le, sign * span / 2, wl),
+                 (tip_le + taper * chord, sign * span / 2, wl), (le + chord, sign * fus_half_width, wl)]
+        faces += slab(f"wing_{side}", verts, thickness_ratio * chord, scale_m)
+    return faces
+
+
+def _fin_faces(fin, crown_wl, taper, thickness_ratio, scale_m):
+    le, chord, height, sweep = (_get(fin, k) for k in ("root_le_sta", "root_chord", "height", "sweep_deg"))
+    tip_le = le + height * math.tan(math.radians(sweep))
+    verts = [(le, 0.0, crown_wl), (le + chord, 0.0, crown_wl), (tip_le + taper * chord, 0.0, crown_wl + height),
+             (tip_le, 0.0, crown_wl + height)]
+    return slab("fin", verts, thickness_ratio * chord, scale_m)
+
+
+def shape_from_outline(fus, scale_m: float, wing=None, fin=None, *, nose_diameters: float = 1.5,
+                       tail_diameters: float = 3.0, wing_wl=None, wing_taper: float = 0.35,
+                       fin_taper: float = 0.6, thickness_ratio: float = 0.12) -> AirframeShape:
+    """AirframeShape (metres) from an outline; `from_outline` is True and `assumptions` lists the guesses.
+
+    fus, wing, fin: mappings or objects with the schema's fields (airframe unit). nose_diameters and
+    tail_diameters: nose and tail-cone lengths in fuselage widths; wing_wl: wing plane WL (default the
+    fuselage centreline, a mid wing); wing_taper, fin_taper: tip chord / root chord; thickness_ratio:
+    thickness / root chord of wing and fin slabs. No tailplane: the outline has none.
+    """
+    nose, tail = _get(fus, "nose_sta"), _get(fus, "tail_sta")
+    width, height, cl = _get(fus, "width"), _get(fus, "height"), _get(fus, "centreline_wl")
+    if not tail > nose:
+        raise ValueError("fuselage tail_sta must be greater than nose_sta")
+    nose_len = min(nose_diameters * width, 0.3 * (tail - nose))
+    tail_len = min(tail_diameters * width, 0.4 * (tail - nose))
+    x, c, w, h = outline_sections(nose, tail, width, height, cl, nose_len, tail_len)
+    notes = [f"fuselage derived from an outline (length, width, height): nose over {nose_len:g}, tail cone over "
+             f"{tail_len:g} (airframe unit), elliptical sections of constant aspect, crown line level over the "
+             "tail cone (assumed, common practice, no source)",
+             "no tailplane: the outline has none"]
+    faces = []
+    if wing is not None:
+        wl = cl if wing_wl is None else float(wing_wl)
+        faces += _wing_faces(wing, width / 2, wl, wing_taper, thickness_ratio, scale_m)
+        notes.append(f"wing plane at WL {wl:g}, no dihedral, tip chord {wing_taper:g} x root, thickness "
+                     f"{thickness_ratio:g} x root chord (assumed)")
+    if fin is not None:
+        faces += _fin_faces(fin, cl + height / 2, fin_taper, thickness_ratio, scale_m)
+        notes.append(f"fin tip chord {fin_taper:g} x root, thickness {thickness_ratio:g} x root chord, root on the "
+                     "crown line (assumed)")
+    return fuselage(x, c, w, h, scale_m, plates=faces, from_outline=True, assumptions=notes)

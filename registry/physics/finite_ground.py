@@ -34,7 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.special import ellipe, ellipk, j1
 
-from registry.units import C_M_PER_S, EPS0, MU0
+from registry.core.units import C_M_PER_S, EPS0, MU0
 
 _GO = np.polynomial.legendre.leggauss(6)  # observation rule (even order: no midpoint)
 _GS = np.polynomial.legendre.leggauss(5)  # source rule: its points never meet the observation rule's

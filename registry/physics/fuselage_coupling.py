@@ -43,7 +43,7 @@ import numpy as np
 
 from registry.physics.airframe_shape import AirframeShape, fuselage_at, to_metres
 from registry.physics.near_coupling import monopole_pair
-from registry.units import C_M_PER_S
+from registry.core.units import C_M_PER_S
 
 
 def _surface_series(x: float, phi) -> np.ndarray:

@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING, Any
 from markupsafe import Markup
 
 from registry.core.model import Cable, Service
-from registry.site import drawing as sitedrawing
+from registry.site.band_chart import band_chart
 from registry.site import plots
 from registry.site.context import SiteData
 from registry.site.format import bands_text, exact, fmt, geometry_text, words
@@ -113,5 +113,5 @@ def services_page(data: SiteData, pieces: Pieces) -> Output:
                      "design": fmt(service.design_freq_mhz, "MHz"), "uses": sum(count for count, _ in found),
                      "models": [(m, antenna_path(m)) for m in model_ids],
                      "links": Markup(", ".join(links for _, links in found))})
-    chart = sitedrawing.band_chart(groups)
+    chart = band_chart(groups)
     return page("services.html", "services.html", "services", "Services and bands", [], chart=chart, services=rows)

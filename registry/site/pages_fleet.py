@@ -9,6 +9,7 @@ from registry.core.model import Aircraft
 from registry.core.results import ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy
 from registry.site import search as sitesearch
 from registry.site.context import SiteData
+from registry.site.format import NONE_TEXT
 from registry.site.export import discrepancies_csv, discrepancies_json
 from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, severity_rank
 from registry.site.pages import File, Output, page
@@ -25,7 +26,7 @@ def aircraft_row(data: SiteData, aircraft: Aircraft, items: list[Discrepancy]) -
     airframe = data.fleet.airframes.get(aircraft.airframe)
     return {
         "registration": aircraft.registration, "href": aircraft_path(aircraft.id), "id": aircraft.id,
-        "airframe": airframe.name if airframe else aircraft.airframe, "serial": aircraft.serial or "—",
+        "airframe": airframe.name if airframe else aircraft.airframe, "serial": aircraft.serial or NONE_TEXT,
         "installations": len(aircraft.installations),
         "open": [open_counts[s] for s in SEVERITIES],
         "reviewed": sum(1 for d in items if d.review not in OPEN_STATES),

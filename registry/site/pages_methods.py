@@ -6,7 +6,7 @@ from typing import Any
 
 from registry.core.results import figure_uses
 from registry.site.context import SiteData
-from registry.site.format import fmt
+from registry.site.format import NONE_TEXT, fmt
 from registry.site.labels import FIGURE_GROUPS
 from registry.site.pages import Output, page
 from registry.site.paths import anchor
@@ -78,9 +78,10 @@ def policy_rows(data: SiteData) -> list[dict[str, str]]:
     for key in POLICY_KEYS:
         value = getattr(policy, key)
         if key == "min_isolation_db":
-            text = "; ".join(f"{' + '.join(rule.services)}: {fmt(rule.isolation_db)} dB" for rule in value) or "—"
+            text = "; ".join(f"{' + '.join(rule.services)}: {fmt(rule.isolation_db)} dB"
+                             for rule in value) or NONE_TEXT
         elif hasattr(value, "items"):
-            text = ", ".join(f"{k}: {fmt(v)}" for k, v in value.items()) or "—"
+            text = ", ".join(f"{k}: {fmt(v)}" for k, v in value.items()) or NONE_TEXT
         else:
             text = fmt(value)
         where = policy.where(key)

@@ -10,7 +10,7 @@ from typing import Any, Iterable
 from registry.core.model import Aircraft, Installation
 from registry.core.results import ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, PatternResult
 from registry.site.context import SiteData
-from registry.site.format import exact, fmt, words
+from registry.site.format import NONE_TEXT, exact, fmt, words
 from registry.site.labels import FIGURE_GROUPS
 from registry.site.paths import (aircraft_path, anchor, antenna_path, cable_path, installation_path,
                                  pattern_plot_path)
@@ -63,7 +63,7 @@ def installation_row(data: SiteData, aircraft: Aircraft, installation: Installat
         "location": installation.location, "surface": words(installation.surface),
         "cable": installation.feeder.cable, "cable_href": cable_path(installation.feeder.cable),
         "length": exact(installation.feeder.length_m, "m"),
-        "measured_vswr": exact(measured.vswr) if measured and measured.vswr is not None else "—",
+        "measured_vswr": exact(measured.vswr) if measured and measured.vswr is not None else NONE_TEXT,
         "measured_date": measured.date.isoformat() if measured else "",
         "status": data.status_of(aircraft.id, installation.position),
         "changed": bool(data.marks(aircraft.id, installation.position)),

@@ -14,13 +14,16 @@ import numpy as np
 import pytest
 
 from registry.site import render
+from registry.site.format import fmt, notes_html
+from registry.site.info import BuildInfo, build_info
+from registry.site.paths import safe_name
 from registry.core.errors import Src
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap, Fuselage,
                             Installation, Location, Measured, Modification, Policy, Service, Wing, Zone)
 from registry.core.results import (CableResult, Curve, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
                               PatternResult)
 
-BUILD = render.BuildInfo(revision="abc1234", time="2026-01-15 10:00:00 UTC", version="0.1.0")
+BUILD = BuildInfo(revision="abc1234", time="2026-01-15 10:00:00 UTC", version="0.1.0")
 HOSTILE = '<script>alert("x")</script>'
 
 
@@ -151,7 +154,7 @@ def test_every_page_kind_is_rendered():
                  "audit.html", "methods.html", "search.html", "static/site.css", "static/site.js",
                  "static/search-index.js", "audit/discrepancies.csv", "audit/discrepancies.json",
                  "plots/cable/QX-C400.svg",
-                 f"plots/pattern/{render.safe_name('QXA-118@127.5')}.svg"):
+                 f"plots/pattern/{safe_name('QXA-118@127.5')}.svg"):
         assert path in files, path
     vswr = re.search(r'src="\.\./\.\./(plots/vswr/[0-9a-f]+\.svg)"', files["aircraft/qx-tqa/VHF1.html"])
     assert vswr and vswr.group(1) in files  # VSWR plots are named by their content
@@ -246,7 +249,7 @@ def test_notes_keep_ordinary_markdown():
 
 
 def test_relative_links_in_notes_are_dropped_but_text_kept():
-    html = render.notes_html("see [sweep](sweeps/a.s1p)")
+    html = notes_html("see [sweep](sweeps/a.s1p)")
     assert "href" not in html and "sweep" in html
 
 
@@ -294,14 +297,14 @@ def test_methods_page_groups_formulas_and_carries_cautions():
     (float("inf"), "", "∞"), (12345.6, "", "12346"),
 ])
 def test_fmt(value, unit, expected):
-    assert render.fmt(value, unit) == expected
+    assert fmt(value, unit) == expected
 
 
 def test_safe_name_keeps_tame_keys_and_digests_others():
-    assert render.safe_name("QXA-118_127.5") == "QXA-118_127.5"
-    odd = render.safe_name("QXA 118/../127.5 MHz")
+    assert safe_name("QXA-118_127.5") == "QXA-118_127.5"
+    odd = safe_name("QXA 118/../127.5 MHz")
     assert "/" not in odd and " " not in odd and ".." not in odd
-    assert odd != render.safe_name("QXA 118/../127.6 MHz")
+    assert odd != safe_name("QXA 118/../127.6 MHz")
 
 
 def git(cwd: Path, *args: str) -> None:
@@ -314,10 +317,10 @@ def test_build_info_outside_git_uses_newest_file_time(tmp_path):
     data.mkdir()
     (data / "fleet.yaml").write_text("operator: x\n")
     os.utime(data / "fleet.yaml", (1_700_000_000, 1_700_000_000))
-    info = render.build_info(data, environ={})
+    info = build_info(data, environ={})
     assert info.revision == "not in version control"
     assert info.time == "2023-11-14 22:13:20 UTC"
-    assert render.build_info(data, environ={"SOURCE_DATE_EPOCH": "86400"}).time == "1970-01-02 00:00:00 UTC"
+    assert build_info(data, environ={"SOURCE_DATE_EPOCH": "86400"}).time == "1970-01-02 00:00:00 UTC"
 
 
 def test_build_info_in_git_uses_commit_and_marks_changes(tmp_path):
@@ -330,8 +333,8 @@ def test_build_info_in_git_uses_commit_and_marks_changes(tmp_path):
     subprocess.run(["git", "-C", str(tmp_path / "repo"), "-c", "user.name=t", "-c", "user.email=t@t.invalid",
                     "commit", "-q", "-m", "data"], check=True, capture_output=True,
                    env={"GIT_AUTHOR_DATE": env_date, "GIT_COMMITTER_DATE": env_date, "PATH": "/usr/bin:/bin"})
-    info = render.build_info(data, environ={})
+    info = build_info(data, environ={})
     assert re.fullmatch(r"[0-9a-f]{7,}", info.revision)
     assert info.time == "2024-02-03 04:05:06 UTC"
     (data / "fleet.yaml").write_text("operator: y\n")
-    assert render.build_info(data, environ={}).revision == info.revision + "+modified"
+    assert build_info(data, environ={}).revision == info.revision + "+modified"

@@ -1,0 +1,130 @@
+"""What every page reads: the fleet, its results and discrepancies, the build, the comparison, and the
+lookups and formatters the pages share. Made once per build and not changed while pages are made."""
+from __future__ import annotations
+
+from collections import defaultdict
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any, Mapping
+
+import jinja2
+from markupsafe import Markup
+
+from registry.output.diff import Comparison
+from registry.core.model import Fleet
+from registry.core.results import OPEN_STATES, Discrepancy, Figure, FleetResults
+from registry.site.format import fmt
+from registry.site.info import BuildInfo
+from registry.site.labels import severity_rank
+from registry.site.paths import anchor
+
+PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent.parent) + "/"
+"""Shipped files (registry/data/...) are shown relative to the package's folder, never as absolute paths."""
+
+
+class FigureCells:
+    """A figure's cells in a figure table, rendered once per distinct figure in this process."""
+
+    LIMIT = 50_000
+    """Bounded: a fleet's figures recur, but not all of them."""
+
+    def __init__(self, env: jinja2.Environment):
+        self.macros = env.get_template("partials/figures.html").module
+        self.seen: dict[Figure, Markup] = {}
+
+    def __call__(self, figure: Figure) -> Markup:
+        plain = figure._replace(src="")
+        try:
+            cells = self.seen.get(plain)
+        except TypeError:  # a value that cannot be hashed: rendered, not remembered
+            plain, cells = None, None
+        if cells is None:
+            if len(self.seen) > self.LIMIT:
+                self.seen.clear()
+            cells = Markup(self.macros.figure_cells({
+                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value),
+                "unit": figure.unit, "formula": figure.formula,
+                "inputs": tuple((name, value) for name, value in figure.inputs), "source": figure.source}))
+            if plain is not None:
+                self.seen[plain] = cells
+        return cells
+
+
+@dataclass(frozen=True)
+class SiteData:
+    """The read-only context of the page functions."""
+
+    fleet: Fleet
+    results: FleetResults
+    discrepancies: tuple[Discrepancy, ...]   # most severe first, then by id
+    build: BuildInfo
+    comparison: Comparison | None
+    by_position: Mapping[tuple[str, str], list[Discrepancy]]
+    reviews_of: Mapping[str, list]          # by aircraft id, in the reviews' (sorted) order
+    model_patterns: Mapping[str, set[str]]  # antenna model id -> pattern keys of its installations
+    pattern_alts: Mapping[str, str]         # pattern plot path -> alt text
+    src_prefixes: tuple[str, ...]
+    figure_cells: FigureCells
+
+    def src_text(self, text: str) -> str:
+        """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
+        text = str(text)
+        for prefix in self.src_prefixes:
+            if text.startswith(prefix):
+                return text[len(prefix):]
+        return text
+
+    def model_src(self, obj: Any) -> str:
+        return self.src_text(f"{obj.src.path}:{obj.src.line}")
+
+    def status_of(self, aircraft_id: str, position: str) -> str:
+        """The most severe open finding at an installation, or "clear"."""
+        open_items = [d for d in self.by_position.get((aircraft_id, position), []) if d.review in OPEN_STATES]
+        return min((d.severity for d in open_items), key=severity_rank, default="clear")
+
+    def marks(self, aircraft_id: str, position: str | None = None) -> tuple[str, ...]:
+        """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
+        return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
+
+    def figure_view(self, figure: Figure) -> tuple[Markup, str]:
+        """A figure's row in a figure table: its cells up to the registry line, and its registry line."""
+        return self.figure_cells(figure), self.src_text(figure.src) if figure.src else ""
+
+
+def pattern_of(results: FleetResults, aircraft_id: str, position: str) -> str | None:
+    """Content key of an installation's pattern, from its aircraft's summary or its full figures."""
+    summary = results.summaries.get(aircraft_id)
+    if summary is not None:
+        return summary.pattern_of.get(position)
+    result = results.installations.get((aircraft_id, position))
+    return result.pattern_key if result is not None else None
+
+
+def patterns_by_model(fleet: Fleet, results: FleetResults) -> dict[str, set[str]]:
+    """The pattern keys of each antenna model's installations."""
+    found: dict[str, set[str]] = defaultdict(set)
+    for aircraft, installation in fleet.installations():
+        pattern_key = pattern_of(results, aircraft.id, installation.position)
+        if pattern_key:
+            found[installation.antenna].add(pattern_key)
+    return found
+
+
+def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo,
+              comparison: Comparison | None, env: jinja2.Environment, model_patterns: dict[str, set[str]],
+              pattern_alts: dict[str, str]) -> SiteData:
+    """The pages' context, with the lookups made once."""
+    reviews_of: dict[str, list] = defaultdict(list)
+    for name, review in fleet.reviews.items():
+        reviews_of[name.split("/", 1)[0]].append(review)
+    ordered = tuple(sorted(discrepancies, key=lambda d: (severity_rank(d.severity), d.id)))
+    by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
+    for item in ordered:
+        for position in item.position.split("+"):
+            by_position[(item.aircraft, position)].append(item)
+    data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
+    return SiteData(fleet=fleet, results=results, discrepancies=ordered, build=build, comparison=comparison,
+                    by_position=by_position, reviews_of=reviews_of, model_patterns=model_patterns,
+                    pattern_alts=pattern_alts, figure_cells=FigureCells(env),
+                    src_prefixes=(data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/",
+                                  PACKAGE_PREFIX))

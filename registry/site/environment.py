@@ -1,0 +1,49 @@
+"""The Jinja environment the pages are rendered with, the navigation, and the shipped static files."""
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Iterator
+
+import jinja2
+
+from registry.site.format import exact, fmt
+from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, STATUS_LABELS
+
+TEMPLATE_DIR = Path(__file__).resolve().parent.parent.parent / "site_templates"
+STATIC_DIR = TEMPLATE_DIR / "static"
+
+NAV_ITEMS = (
+    ("fleet", "Fleet", "index.html"),
+    ("services", "Services", "services.html"),
+    ("antennas", "Antennas", "antennas.html"),
+    ("cables", "Cables", "cables.html"),
+    ("audit", "Audit", "audit.html"),
+    ("methods", "Methods & cautions", "methods.html"),
+    ("search", "Search", "search.html"),
+)
+CHANGES_NAV = ("changes", "Changes", "changes.html")
+"""Shown in the navigation only when the build was compared with an earlier one."""
+
+
+def environment() -> jinja2.Environment:
+    """Autoescaping on, undefined variables fail loudly."""
+    env = jinja2.Environment(
+        loader=jinja2.FileSystemLoader(TEMPLATE_DIR),
+        autoescape=True,
+        undefined=jinja2.StrictUndefined,
+        keep_trailing_newline=True,
+        trim_blocks=True,
+        lstrip_blocks=True,
+    )
+    env.filters["fmt"] = fmt
+    env.filters["exact"] = exact
+    env.globals.update(severity_labels=SEVERITY_LABELS, status_labels=STATUS_LABELS, state_labels=STATE_LABELS,
+                       nav_items=NAV_ITEMS)
+    return env
+
+
+def static_files() -> Iterator[tuple[str, bytes]]:
+    """The shipped stylesheet, scripts and images: (site path, bytes), in path order."""
+    for path in sorted(STATIC_DIR.rglob("*")):
+        if path.is_file():
+            yield f"static/{path.relative_to(STATIC_DIR).as_posix()}", path.read_bytes()

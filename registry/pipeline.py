@@ -6,9 +6,8 @@ from __future__ import annotations
 
 import json
 import os
-import subprocess
 from dataclasses import dataclass
-from datetime import date, datetime, timezone
+from datetime import date
 from pathlib import Path
 from typing import NamedTuple
 
@@ -20,8 +19,10 @@ from registry.site import plots
 from registry.site import publish
 from registry.output import record
 from registry.site import render
+from registry.site.info import build_info
 from registry.incremental import DiskCache, collector_paused, collector_released, prune, site_key, version_folder
 from registry.load.fleet import load_fleet
+from registry.load.git import as_of_date
 from registry.core.model import Fleet, Review
 from registry.core.progress import QUIET, Progress
 from registry.core.results import Discrepancy, FleetResults
@@ -41,24 +42,6 @@ class Outcome:
 def load(data_dir: Path, cache_dir: Path | None = None, workers: int = 1) -> Fleet:
     """Load and validate the registry; raises DataError with every problem found."""
     return load_fleet(data_dir, cache_dir=cache_dir, workers=workers)
-
-
-def as_of_date(data_dir: Path) -> date:
-    """The date the registry speaks for: SOURCE_DATE_EPOCH, else the data's last commit, else today.
-
-    Measurement ages are counted to it, so the same revision of the data gives the same report.
-    """
-    epoch = os.environ.get("SOURCE_DATE_EPOCH")
-    if epoch and epoch.strip().isdigit():
-        return datetime.fromtimestamp(int(epoch), tz=timezone.utc).date()
-    try:
-        stamp = subprocess.run(["git", "log", "-1", "--format=%ct", "--", "."], cwd=data_dir,
-                               capture_output=True, text=True, timeout=20).stdout.strip()
-    except (OSError, subprocess.SubprocessError):
-        stamp = ""
-    if stamp.isdigit():
-        return datetime.fromtimestamp(int(stamp), tz=timezone.utc).date()
-    return datetime.now(tz=timezone.utc).date()
 
 
 def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None,
@@ -100,7 +83,7 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
     delete); `workers` processes share the work (default: one per core). `naive` (the benchmark's
     baseline) keeps nothing and draws every plot for every installation."""
     as_of = as_of_date(data_dir)
-    info = render.build_info(data_dir)
+    info = build_info(data_dir)
     key = "" if naive else site_key(data_dir, as_of, info, record.dumps(baseline.record)
                                             if baseline is not None else "")
     if key and publish.up_to_date(out_dir, key):

@@ -16,6 +16,7 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
+from registry.load.git import git as run_git
 from registry.output import record as build_record
 from registry.output.record import RecordError
 
@@ -110,10 +111,11 @@ def side_kind(spec: str) -> str:
 
 
 def git(cwd: Path, *args: str) -> subprocess.CompletedProcess:
-    try:
-        return subprocess.run(["git", "-C", str(cwd), *args], capture_output=True, check=False, timeout=120)
-    except (OSError, subprocess.TimeoutExpired) as error:
-        raise RecordError(f"git {' '.join(args)}: cannot run git ({error})") from None
+    """`load.git.git`, with git that cannot run at all a RecordError."""
+    done = run_git(cwd, *args)
+    if done is None:
+        raise RecordError(f"git {' '.join(args)}: cannot run git")
+    return done
 
 
 def git_side(rev: str, data_dir: Path, run: Callable[..., Any], as_of: date | None) -> Side:

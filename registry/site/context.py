@@ -10,7 +10,7 @@ from typing import Any, Mapping
 import jinja2
 from markupsafe import Markup
 
-from registry.output.diff import Comparison
+from registry.output.comparison import Comparison
 from registry.core.model import Fleet
 from registry.core.results import OPEN_STATES, Discrepancy, Figure, FleetResults
 from registry.site.format import fmt

@@ -2,12 +2,12 @@
 from __future__ import annotations
 
 import os
-import subprocess
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
 
 from registry import __version__
+from registry.load.git import git_text
 
 
 @dataclass(frozen=True)
@@ -17,15 +17,6 @@ class BuildInfo:
     revision: str
     time: str
     version: str
-
-
-def _git(data_dir: Path, *args: str) -> str | None:
-    try:
-        done = subprocess.run(["git", "-C", str(data_dir), *args], capture_output=True, text=True, check=False,
-                              timeout=30)
-    except (OSError, subprocess.TimeoutExpired):
-        return None
-    return done.stdout.strip() if done.returncode == 0 else None
 
 
 def _utc(epoch: float) -> str:
@@ -43,11 +34,11 @@ def build_info(data_dir: Path, environ: dict[str, str] | None = None) -> BuildIn
     data_dir = Path(data_dir).resolve()
     revision = "not in version control"
     commit_time: str | None = None
-    if _git(data_dir, "rev-parse", "--is-inside-work-tree") == "true":
-        last = _git(data_dir, "log", "-1", "--format=%h %ct", "--", ".")
+    if git_text(data_dir, "rev-parse", "--is-inside-work-tree") == "true":
+        last = git_text(data_dir, "log", "-1", "--format=%h %ct", "--", ".")
         if last:
             short, commit_time = last.split()
-            dirty = _git(data_dir, "status", "--porcelain", "--untracked-files=all", "--", ".")
+            dirty = git_text(data_dir, "status", "--porcelain", "--untracked-files=all", "--", ".")
             revision = short + ("+modified" if dirty else "")
         else:
             revision = "not committed yet"

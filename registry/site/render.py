@@ -19,7 +19,8 @@ from registry.site import plots
 from registry.site import plot_files
 from registry.site import search as sitesearch
 from registry.incremental import ordered_map
-from registry.output.diff import Comparison, changes_page
+from registry.output.comparison import Comparison
+from registry.site.changes import changes_page
 from registry.incremental import DiskCache, key_of
 from registry.core.progress import QUIET, Progress
 from registry.core.model import Aircraft, Fleet
@@ -27,7 +28,7 @@ from registry.core.results import Discrepancy, FleetResults
 from registry.site.context import SiteData, patterns_by_model, site_data
 from registry.site.environment import CHANGES_NAV, NAV_ITEMS, environment, static_files
 from registry.site.format import plain_text
-from registry.site.info import BuildInfo, build_info  # noqa: F401  (the build reads them from here)
+from registry.site.info import BuildInfo
 from registry.site.pages import Output, Renderer, page
 from registry.site.pages_aircraft import aircraft_outputs, output_paths
 from registry.site.pages_catalogue import antenna_pages, cable_pages, services_page

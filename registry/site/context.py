@@ -2,10 +2,11 @@
 lookups and formatters the pages share. Made once per build and not changed while pages are made."""
 from __future__ import annotations
 
+
 from collections import defaultdict
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any, Mapping
+from typing import Any, Mapping, NamedTuple
 
 import jinja2
 from markupsafe import Markup
@@ -128,3 +129,16 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
                     pattern_alts=pattern_alts, figure_cells=FigureCells(env),
                     src_prefixes=(data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/",
                                   PACKAGE_PREFIX))
+
+
+class AircraftPieces(NamedTuple):
+    """What one aircraft adds to the fleet-wide pages, made when its own pages are rendered and kept with
+    them, so that an aircraft whose pages are reused adds its share without being rendered again.
+
+    `uses` maps "antenna/<id>" and "cable/<id>" to (installations, rows of the "where used" table);
+    `service_links` maps a service id to (installations, links on the services page); `search` holds
+    the search-index entries of the aircraft and its installations."""
+
+    uses: dict[str, tuple[int, str]]
+    service_links: dict[str, tuple[int, str]]
+    search: tuple[dict[str, str], ...]

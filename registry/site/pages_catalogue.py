@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 from collections.abc import Mapping
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from markupsafe import Markup
 
@@ -12,14 +12,13 @@ from registry.site.band_chart import band_chart
 from registry.site import plots
 from registry.site.context import SiteData
 from registry.site.format import bands_text, exact, fmt, geometry_text, words
+from registry.site.context import AircraftPieces
 from registry.site.pages import File, Output, page
 from registry.site.paths import antenna_path, cable_path, cable_plot_path, service_anchor
 from registry.site.views import pattern_view
 
-if TYPE_CHECKING:
-    from registry.site.render import AircraftPieces
 
-Pieces = Mapping[str, "AircraftPieces"]
+Pieces = Mapping[str, AircraftPieces]
 """Each aircraft's share of the fleet-wide pages, by aircraft id."""
 
 

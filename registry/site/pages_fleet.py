@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from collections import Counter
 from collections.abc import Mapping
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from registry.core.model import Aircraft
 from registry.core.results import ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy
@@ -12,12 +12,11 @@ from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT
 from registry.site.export import discrepancies_csv, discrepancies_json
 from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, severity_rank
+from registry.site.context import AircraftPieces
 from registry.site.pages import File, Output, page
 from registry.site.paths import SEARCH_PATHS, aircraft_path
 from registry.site.views import discrepancy_view, severity_matrix
 
-if TYPE_CHECKING:
-    from registry.site.render import AircraftPieces
 
 
 def aircraft_row(data: SiteData, aircraft: Aircraft, items: list[Discrepancy]) -> dict[str, Any]:
@@ -70,7 +69,7 @@ def audit_pages(data: SiteData) -> list[Output]:
             File("audit/discrepancies.json", discrepancies_json(views, data.build))]
 
 
-def search_pages(data: SiteData, pieces: Mapping[str, "AircraftPieces"]) -> list[Output]:
+def search_pages(data: SiteData, pieces: Mapping[str, AircraftPieces]) -> list[Output]:
     """The search page and its index: the catalogue's entries and each aircraft's."""
     entries = sitesearch.catalogue_entries(data.fleet, SEARCH_PATHS)
     for aircraft_id in data.fleet.aircraft:

@@ -11,7 +11,7 @@ from __future__ import annotations
 from collections import defaultdict
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, Iterable, NamedTuple
+from typing import Any, Iterable
 
 import jinja2
 
@@ -25,7 +25,7 @@ from registry.incremental import DiskCache, key_of
 from registry.core.progress import QUIET, Progress
 from registry.core.model import Aircraft, Fleet
 from registry.core.results import Discrepancy, FleetResults
-from registry.site.context import SiteData, patterns_by_model, site_data
+from registry.site.context import AircraftPieces, SiteData, patterns_by_model, site_data
 from registry.site.environment import CHANGES_NAV, NAV_ITEMS, environment, static_files
 from registry.site.format import plain_text
 from registry.site.info import BuildInfo
@@ -52,19 +52,6 @@ class Incremental:
     current: dict[str, dict[str, Any]]
     pieces: DiskCache = field(default_factory=lambda: DiskCache(None, "pieces"))
     """Each aircraft's `AircraftPieces` by page key, kept across builds with its pages."""
-
-
-class AircraftPieces(NamedTuple):
-    """What one aircraft adds to the fleet-wide pages, made when its own pages are rendered and kept with
-    them, so that an aircraft whose pages are reused adds its share without being rendered again.
-
-    `uses` maps "antenna/<id>" and "cable/<id>" to (installations, rows of the "where used" table);
-    `service_links` maps a service id to (installations, links on the services page); `search` holds
-    the search-index entries of the aircraft and its installations."""
-
-    uses: dict[str, tuple[int, str]]
-    service_links: dict[str, tuple[int, str]]
-    search: tuple[dict[str, str], ...]
 
 
 def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Discrepancy],

@@ -30,7 +30,7 @@ def test_uncovered_band_covers_every_service_band():
 
 def discrepancy(value=3.4):
     return Discrepancy(id="qx-aaa/VHF1/feeder-loss", rule="feeder-loss", severity="concern", aircraft="qx-aaa",
-                       position="VHF1", value=value, limit=3.0, unit="dB", message="m", method="", source="")
+                       position="VHF1", value=value, limit=3.0, unit="dB", message="m", method="", src="")
 
 
 def review(value_seen, state="accepted"):

@@ -57,7 +57,7 @@ def test_transmitter_without_a_measurement_is_missing_data(tmp_path):
     found = findings(tmp_path, "aircraft/qx-tca.yaml", measured, "")
     item = found["qx-tca/VHF1/missing-data"]
     assert "no measured VSWR or sweep" in item.message and item.severity == "advisory"
-    assert item.source.endswith("qx-tca.yaml:16")  # the service line of that installation
+    assert item.src.endswith("qx-tca.yaml:16")  # the service line of that installation
 
 
 def test_band_too_wide_for_any_matching_network(tmp_path):

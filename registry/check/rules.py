@@ -47,7 +47,7 @@ def make(rule: str, aircraft: str, position: str, value, limit, unit: str, messa
         unit=unit,
         message=message,
         method=method or (figure.source if figure else ""),
-        source=figure.src if figure else "",
+        src=figure.src if figure else "",
     )
 
 

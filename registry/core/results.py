@@ -200,7 +200,8 @@ class Discrepancy:
     unit: str
     message: str
     method: str
-    source: str
+    src: str
+    """`file:line` of the registry value the finding rests on (a figure's `source` is its method's citation)."""
     review: str = "open"
     reviewer: str = ""
     review_comment: str = ""

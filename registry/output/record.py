@@ -164,7 +164,7 @@ def to_text(outcome) -> str:
     discrepancies = {}
     for item in outcome.discrepancies:
         entry = plain(item, data_dir, FIGURE_DIGITS)
-        entry["source"] = relative_src(item.source, data_dir)
+        entry["source"] = relative_src(item.src, data_dir)
         discrepancies[item.id] = entry
     text = _object({
         "format_version": _json(FORMAT_VERSION),

@@ -12,6 +12,14 @@ from registry.core.results import ALL_STATES, SEVERITIES, Discrepancy, Figure, F
 
 FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",
           "source", "review", "reviewer", "review_reference", "review_comment")
+"""The columns of `check --format csv/json`; "source" is the finding's registry line (`Discrepancy.src`)."""
+
+
+def exported(item: Discrepancy) -> dict:
+    """A finding as the `check` exports name its fields."""
+    row = asdict(item)
+    row["source"] = row.pop("src")
+    return {name: row[name] for name in FIELDS}
 
 
 def matches(craft, services, aircraft: list[str] | None, service: list[str] | None) -> bool:
@@ -35,7 +43,7 @@ def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = 
 def as_json(found: list[Discrepancy], stale: list, as_of: str) -> str:
     return json.dumps({
         "as_of": as_of,
-        "discrepancies": [{name: getattr(item, name) for name in FIELDS} for item in found],
+        "discrepancies": [exported(item) for item in found],
         "stale_reviews": [{"discrepancy": review.discrepancy, "state": review.state,
                            "source": f"{review.src.path}:{review.src.line}"} for review in stale],
     }, indent=2, ensure_ascii=False) + "\n"
@@ -46,8 +54,7 @@ def as_csv(found: list[Discrepancy]) -> str:
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(FIELDS)
     for item in found:
-        row = asdict(item)
-        writer.writerow(["" if row[name] is None else row[name] for name in FIELDS])
+        writer.writerow(["" if value is None else value for value in exported(item).values()])
     return buffer.getvalue()
 
 
@@ -74,7 +81,7 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> 
                 review += f" by {item.reviewer}" + (f", {item.review_reference}" if item.review_reference else "")
             lines.append(f"  [{item.severity}] {item.id}  ({review})")
             lines.append(f"      {item.message}")
-            lines.append(f"      value {value}, limit {item.limit}; {item.source}")
+            lines.append(f"      value {value}, limit {item.limit}; {item.src}")
         lines.append("")
     for review in stale:
         lines.append(f"stale review: {review.src.path}:{review.src.line}: {review.discrepancy} "

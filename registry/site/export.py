@@ -27,7 +27,7 @@ def export_row(view: dict[str, Any]) -> dict[str, Any]:
     return {"id": view["id"], "severity": view["severity"], "aircraft": view["aircraft"],
             "registration": view["registration"], "position": view["position"], "services": " ".join(view["services"]),
             "rule": view["rule"], "value": export_value(view["value_raw"]), "limit": export_value(view["limit_raw"]),
-            "unit": view["unit"], "message": view["message"], "method": view["method"], "source": view["source"],
+            "unit": view["unit"], "message": view["message"], "method": view["method"], "source": view["src"],
             "review": view["review"], "reviewer": view["reviewer"], "review_reference": view["review_reference"],
             "review_comment": view["review_comment"]}
 

@@ -33,7 +33,7 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
         "href": installation_path(item.aircraft, first) if first else None,
         "value": fmt(item.value, item.unit), "limit": fmt(item.limit, item.unit),
         "value_raw": item.value, "limit_raw": item.limit, "unit": item.unit,
-        "message": item.message, "method": item.method, "source": data.src_text(item.source),
+        "message": item.message, "method": item.method, "src": data.src_text(item.src),
         "review": item.review, "reviewer": item.reviewer, "review_comment": item.review_comment,
         "review_reference": item.review_reference, "is_open": item.review in OPEN_STATES,
     }

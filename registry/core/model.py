@@ -9,7 +9,7 @@ airframe type's `coord_unit`. No physics here.
 from __future__ import annotations
 
 from collections.abc import Iterator, Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 from datetime import date
 from pathlib import Path
 from typing import Any
@@ -305,6 +305,10 @@ class Policy(Sourced):
         """The isolation rule for a pair of services (in either order), or None."""
         pair = tuple(sorted((service_a, service_b)))
         return next((rule for rule in self.min_isolation_db if tuple(sorted(rule.services)) == pair), None)
+
+
+POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name not in ("sources", "src", "locator"))
+"""The thresholds a policy file sets, in the order the methods page lists them: Policy's own fields."""
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)

@@ -17,13 +17,10 @@ from registry.load import build, inputs, integrity
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
-from registry.core.model import Aircraft, Fleet, FrozenMap, IsolationRule, Policy, Service
+from registry.core.model import POLICY_KEYS, Aircraft, Fleet, FrozenMap, IsolationRule, Policy, Service
 from registry.load.yamlsource import YamlDoc, read_yaml
 
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
-POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "feeder_loss_budget_db",
-               "connector_loss_db", "adapter_loss_db", "measurement_max_age_days",
-               "ground_plane_min_radius_wavelengths", "min_isolation_db")
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
 
 

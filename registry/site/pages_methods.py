@@ -1,6 +1,8 @@
 """The methods page: every figure's formula and source as used across the fleet, the checks, the policy."""
 from __future__ import annotations
 
+from registry.core.model import POLICY_KEYS
+
 from collections import Counter, defaultdict
 from typing import Any
 
@@ -11,9 +13,6 @@ from registry.site.labels import FIGURE_GROUPS
 from registry.site.pages import Output, page
 from registry.site.paths import anchor
 
-POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "feeder_loss_budget_db",
-               "connector_loss_db", "adapter_loss_db", "measurement_max_age_days",
-               "ground_plane_min_radius_wavelengths", "min_isolation_db")
 
 
 def figure_tally(data: SiteData) -> Counter:

@@ -11,12 +11,15 @@ the same as-of date give the same bytes.
 from __future__ import annotations
 
 import dataclasses
+import functools
 import json
 import math
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from datetime import date
 from pathlib import Path
 from typing import Any, NamedTuple
+
+import fastjsonschema
 
 from registry import __version__
 from registry.core.errors import AerialbookError
@@ -233,6 +236,15 @@ def schema() -> dict[str, Any]:
     return json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
 
 
+@functools.lru_cache(maxsize=1)
+def _fast_validator() -> Callable[[Any], Any]:
+    """The record schema compiled to Python (fastjsonschema): a 1,000-aircraft record is checked in
+    seconds where the reference validator takes minutes. The schema uses only keywords draft 7 shares
+    with 2020-12, so it is compiled as draft 7; a record it refuses is checked again by jsonschema,
+    whose messages name every problem."""
+    return fastjsonschema.compile({**schema(), "$schema": "http://json-schema.org/draft-07/schema#"})
+
+
 def validate(record: Any, where: str) -> dict[str, Any]:
     """`record` if it is a record this version can read; RecordError naming `where` and the first problem."""
     import jsonschema
@@ -243,6 +255,11 @@ def validate(record: Any, where: str) -> dict[str, Any]:
     if version != FORMAT_VERSION:
         raise RecordError(f"{where}: format_version: found {version!r}, expected {FORMAT_VERSION} "
                           f"(this aerialbook reads build records of format version {FORMAT_VERSION})")
+    try:
+        _fast_validator()(record)
+        return record
+    except fastjsonschema.JsonSchemaException:
+        pass  # worded below by the reference validator, which lists every problem
     validator = jsonschema.Draft202012Validator(schema())
     problems = sorted(validator.iter_errors(record), key=lambda error: list(map(str, error.absolute_path)))
     if problems:

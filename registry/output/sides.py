@@ -71,17 +71,21 @@ def read_record(path: Path) -> dict[str, Any]:
                           f"record ({MAX_RECORD_DEPTH} levels at most)") from None
 
 
-def record_depth(value: Any) -> int:
-    """Levels of nesting of JSON data: 0 for a scalar, 1 for a flat object or list (walked without recursion)."""
-    deepest, stack = 0, [(value, 0)]
-    while stack:
-        item, depth = stack.pop()
-        deepest = max(deepest, depth)
-        if isinstance(item, Mapping):
-            stack += [(child, depth + 1) for child in item.values()]
-        elif isinstance(item, list):
-            stack += [(child, depth + 1) for child in item]
-    return deepest
+def record_depth(value: Any, stop_after: int = MAX_RECORD_DEPTH) -> int:
+    """Levels of nesting of JSON data: 0 for a scalar, 1 for a flat object or list. Walked level by level
+    without recursion, and no further than `stop_after` + 1 levels."""
+    depth, level = 0, [value]
+    while depth <= stop_after:
+        children: list[Any] = []
+        for item in level:
+            if isinstance(item, dict):
+                children.extend(item.values())
+            elif isinstance(item, (list, tuple)):
+                children.extend(item)
+        if not children and not any(isinstance(item, (dict, list, tuple)) for item in level):
+            return depth
+        depth, level = depth + 1, children
+    return depth
 
 
 def check_depth(record: Mapping[str, Any], where: str) -> None:

@@ -207,6 +207,21 @@ def _locked(path: Path) -> int:
         os.close(handle)
 
 
+def held_by_another(out_dir: Path) -> bool:
+    """True when a build holds the lock of `out_dir` right now (the lock file is neither made nor removed)."""
+    try:
+        handle = os.open(lock_path(out_dir), os.O_RDWR | os.O_NOFOLLOW | getattr(os, "O_CLOEXEC", 0))
+    except OSError:
+        return False
+    try:
+        fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except BlockingIOError:
+        return True
+    finally:
+        os.close(handle)  # closing lets go of a lock taken here
+    return False
+
+
 def clean_leftovers(out_dir: Path) -> None:
     """Remove the staging folders and old sites a killed build left beside `out_dir` (`.NAME.build-*`,
     `.NAME.old-*`, as `staging_dir` and `swap_in` name them). Called under the lock: no live build of

@@ -27,6 +27,7 @@ import functools
 import inspect
 import json
 import math
+import sys
 import types
 import typing
 from itertools import repeat
@@ -37,10 +38,14 @@ from typing import Any, NamedTuple
 
 import numpy as np
 
+from registry.core.errors import Src
 from registry.core.model import Aircraft, FrozenMap, Installation
 
 FIELD_HINTS: dict[type, dict[str, Any]] = {Aircraft: {"installations": Mapping[str, Installation]}}
 """Field hints narrower than the class's own (a FrozenMap's values are not in its hint)."""
+INTERNED: dict[type, str] = {Src: "path"}
+"""Text fields read back as one shared string (sys.intern): an aircraft's model holds a position, and
+so its file's path, for every value in the file; held as one string each, as the model built them."""
 
 DTYPES = {"<f8": np.float64, "<i8": np.int64, "<c16": np.complex128, "|b1": np.bool_}
 MAX_DIMENSIONS = 4
@@ -51,11 +56,17 @@ class BadEntry(ValueError):
 
 
 class Record(NamedTuple):
+    """An allowed record type: its tag, fields, how to make one, and the check of each field: `classes`
+    holds, per field, the classes an isinstance check needs (object for a field that needs more), and
+    `deep` the (position, check) of the fields that need more."""
+
     cls: type
     tag: str
     fields: tuple[str, ...]
-    checks: tuple[Callable[[Any], bool], ...]
+    classes: tuple[Any, ...]
+    deep: tuple[tuple[int, Callable[[Any], bool]], ...]
     make: Callable[[list], Any]
+    interned: int | None = None
 
 
 class Schema(NamedTuple):
@@ -151,10 +162,12 @@ def _record(cls: type, records: dict[type, Record]) -> None:
         make = lambda values: cls(*values)  # noqa: E731
     else:
         raise TypeError(f"cache entries cannot hold a {cls.__qualname__}")
-    records[cls] = Record(cls, cls.__qualname__, fields, (), make)  # placed first: hints may lead back here
+    records[cls] = Record(cls, cls.__qualname__, fields, (), (), make)  # first: hints may lead back here
     hints.update(FIELD_HINTS.get(cls, {}))
-    checks = tuple(_checker(hints.get(name, Any), records) for name in fields)
-    records[cls] = records[cls]._replace(checks=checks)
+    classes = tuple(_classes(hints.get(name, Any), records) for name in fields)
+    deep = tuple((n, _checker(hints.get(name, Any), records)) for n, name in enumerate(fields) if classes[n] is None)
+    records[cls] = records[cls]._replace(classes=tuple(object if found is None else found for found in classes),
+                                         deep=deep, interned=fields.index(INTERNED[cls]) if cls in INTERNED else None)
 
 
 # --- writing ----------------------------------------------------------------------------------------------
@@ -249,6 +262,9 @@ class _Decoder:
 
     def tagged(self, item: list) -> Any:
         tag = item[0]
+        record = self.records.get(tag) if type(tag) is str else None
+        if record is not None:  # the commonest case first
+            return self.record(record, item)
         if tag == "t":
             return tuple([self.tagged(x) if type(x) is list else x for x in item[1:]])
         if tag == "l":
@@ -260,9 +276,6 @@ class _Decoder:
             if found is None:
                 raise BadEntry("a reference to no earlier dict")
             return found
-        record = self.records.get(tag) if type(tag) is str else None
-        if record is not None:
-            return self.record(record, item)
         return self.other(tag, item)
 
     def mapping(self, item: list, tag: str) -> Any:
@@ -271,7 +284,9 @@ class _Decoder:
         if tag == "d":
             slot = len(self.shared)
             self.shared.append(None)
-        pairs = {self.decode(item[n]): self.decode(item[n + 1]) for n in range(1, len(item), 2)}
+        tagged = self.tagged
+        pairs = {(tagged(key) if type(key) is list else key): (tagged(value) if type(value) is list else value)
+                 for key, value in zip(item[1::2], item[2::2])}
         if tag == "m":
             return FrozenMap(pairs)
         self.shared[slot] = pairs
@@ -281,13 +296,20 @@ class _Decoder:
         values = [self.tagged(x) if type(x) is list else x for x in item[1:]]
         if len(values) != len(record.fields):
             raise BadEntry(f"{record.tag} with {len(values)} fields, expected {len(record.fields)}")
-        for name, check, value in zip(record.fields, record.checks, values):
+        if not all(map(isinstance, values, record.classes)):
+            name, value = next((name, value) for name, value, classes in zip(record.fields, values, record.classes)
+                               if not isinstance(value, classes))
+            raise BadEntry(f"{record.tag}.{name}: found a {type(value).__qualname__}")
+        for position, check in record.deep:
+            value = values[position]
             if type(value) is dict:
                 if (id(check), id(value)) in self.checked:
                     continue
                 self.checked.add((id(check), id(value)))
             if not check(value):
-                raise BadEntry(f"{record.tag}.{name}: found a {type(value).__qualname__}")
+                raise BadEntry(f"{record.tag}.{record.fields[position]}: found a {type(value).__qualname__}")
+        if record.interned is not None and type(values[record.interned]) is str:
+            values[record.interned] = sys.intern(values[record.interned])
         return record.make(values)
 
     def other(self, tag: Any, item: list) -> Any:

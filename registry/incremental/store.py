@@ -33,9 +33,10 @@ from registry.incremental.keys import code_key
 
 MAGIC = b"aerialbook-cache 1 "
 SUFFIX = ".entry"
-MAX_ENTRY_BYTES = 64 * 1024 * 1024
-"""The largest entry read back (64 MiB; an aircraft of 40 installations takes well under 1 MiB):
-a larger file is refused before it is read."""
+MAX_ENTRY_BYTES = 16 * 1024 * 1024
+"""The largest entry read back: 16 MiB, a hundred times what an aircraft of 30 installations takes
+(about 150 kB). A larger file is refused before it is read; parsed, the largest entry allowed holds a
+few hundred MB at the very most (JSON's smallest values, `[]`, cost about 60 bytes each in Python)."""
 
 
 def version_folder(cache_dir: Path) -> Path:

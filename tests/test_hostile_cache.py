@@ -279,3 +279,19 @@ def test_only_a_plain_drawing_passes_the_plot_check(change):
     svg = drawn_plot()
     assert plain_svg(svg)  # matplotlib's own output, with its #id references and clip paths
     assert not plain_svg(change(svg))
+
+
+def test_a_table_of_positions_reads_back_and_a_bad_row_is_refused():
+    from registry.core.errors import Src
+
+    kind = dict[tuple[str | int, ...], Src]
+    index = {("installations", n, "feeder"): Src("fleet_data/aircraft/qx-tca.yaml", 10 + n, 5) for n in range(9)}
+    payload = codec.dumps(index, kind)
+    assert payload.startswith(b'["R","Src",')  # nine values of one flat record type: written as a table
+    back = codec.loads(payload, kind)
+    assert back == index and all(type(value) is Src for value in back.values())
+    assert len({id(value.path) for value in back.values()}) == 1  # one path string, as the model held it
+    for bad in (payload.replace(b",10,5]", b',"10",5]', 1), payload.replace(b",10,5]", b",10]", 1),
+                payload.replace(b'["R","Src"', b'["R","Locator"', 1), payload[:-1] + b',["t","x"]]'):
+        with pytest.raises(codec.BadEntry):
+            codec.loads(bad, kind)

@@ -9,6 +9,8 @@ Encoding (every value that is not a JSON scalar is a list whose first item is a 
     str, int, float (NaN and infinities as JSON's NaN/Infinity), bool, None   as themselves
     ["t", item, ...] tuple       ["l", item, ...] list        ["d", k, v, k, v, ...] dict
     ["r", n] the n-th dict met so far again (a dict shared by many records is written once)
+    ["R", "Src", key, [field, ...], ...] a dict whose values are all of one record type with scalar
+         fields (a file's index of positions): each value's fields without a tag
     ["m", k, v, ...] FrozenMap   ["D", "2025-02-11"] date     ["p", "text"] Path
     ["a", "<f8", [shape], "base64 of the little-endian bytes"] numpy array (float64, int64,
          complex128 or bool)      ["n", "<f8", value] numpy scalar
@@ -47,6 +49,9 @@ INTERNED: dict[type, str] = {Src: "path"}
 """Text fields read back as one shared string (sys.intern): an aircraft's model holds a position, and
 so its file's path, for every value in the file; held as one string each, as the model built them."""
 
+SCALARS = {str, int, float, bool, type(None)}
+TABLE_ROWS = 8
+"""A dict of at least this many values of one flat record type is written as a table (["R", ...])."""
 DTYPES = {"<f8": np.float64, "<i8": np.int64, "<c16": np.complex128, "|b1": np.bool_}
 MAX_DIMENSIONS = 4
 
@@ -67,6 +72,8 @@ class Record(NamedTuple):
     deep: tuple[tuple[int, Callable[[Any], bool]], ...]
     make: Callable[[list], Any]
     interned: int | None = None
+    flat: bool = False
+    """Every field is a JSON scalar (str, int, float, bool, None): nothing inside to decode."""
 
 
 class Schema(NamedTuple):
@@ -167,7 +174,8 @@ def _record(cls: type, records: dict[type, Record]) -> None:
     classes = tuple(_classes(hints.get(name, Any), records) for name in fields)
     deep = tuple((n, _checker(hints.get(name, Any), records)) for n, name in enumerate(fields) if classes[n] is None)
     records[cls] = records[cls]._replace(classes=tuple(object if found is None else found for found in classes),
-                                         deep=deep, interned=fields.index(INTERNED[cls]) if cls in INTERNED else None)
+                                         deep=deep, interned=fields.index(INTERNED[cls]) if cls in INTERNED else None,
+                                         flat=all(found is not None and set(found) <= SCALARS for found in classes))
 
 
 # --- writing ----------------------------------------------------------------------------------------------
@@ -205,6 +213,14 @@ class _Encoder:
         if id(value) in self.shared:
             return ["r", self.shared[id(value)]]
         self.shared[id(value)] = len(self.shared)
+        kinds = {type(item) for item in value.values()}
+        record = self.records.get(next(iter(kinds))) if len(kinds) == 1 else None
+        if record is not None and record.flat and len(value) >= TABLE_ROWS:
+            out = ["R", record.tag]  # one record type with scalar fields: its fields only, no tag each
+            for key, item in value.items():
+                out += [self.encode(key), list(item) if isinstance(item, tuple) else
+                        [getattr(item, name) for name in record.fields]]
+            return out
         out = ["d"]
         for key, item in value.items():
             out += [self.encode(key), self.encode(item)]
@@ -271,6 +287,8 @@ class _Decoder:
             return [self.tagged(x) if type(x) is list else x for x in item[1:]]
         if tag == "d" or tag == "m":
             return self.mapping(item, tag)
+        if tag == "R":
+            return self.table(item)
         if tag == "r":
             found = self.shared[item[1]] if type(item[1]) is int and 0 <= item[1] < len(self.shared) else None
             if found is None:
@@ -292,8 +310,27 @@ class _Decoder:
         self.shared[slot] = pairs
         return pairs
 
+    def table(self, item: list) -> dict:
+        """A dict written as ["R", record tag, key, [fields], ...]: its values all one flat record type."""
+        record = self.records.get(item[1]) if type(item[1]) is str else None
+        if record is None or not record.flat or len(item) % 2:
+            raise BadEntry("a table of no flat record type")
+        slot = len(self.shared)
+        self.shared.append(None)
+        size, classes, make, interned, tagged = len(record.fields), record.classes, record.make, record.interned, self.tagged
+        strings: dict[str, str] = {}
+        pairs = {}
+        for key, fields in zip(item[2::2], item[3::2]):
+            if type(fields) is not list or len(fields) != size or not all(map(isinstance, fields, classes)):
+                raise BadEntry(f"a row of {record.tag} that does not fit it")
+            if interned is not None:
+                fields[interned] = strings.setdefault(fields[interned], fields[interned])
+            pairs[tagged(key) if type(key) is list else key] = make(fields)
+        self.shared[slot] = pairs
+        return pairs
+
     def record(self, record: Record, item: list) -> Any:
-        values = [self.tagged(x) if type(x) is list else x for x in item[1:]]
+        values = item[1:] if record.flat else [self.tagged(x) if type(x) is list else x for x in item[1:]]
         if len(values) != len(record.fields):
             raise BadEntry(f"{record.tag} with {len(values)} fields, expected {len(record.fields)}")
         if not all(map(isinstance, values, record.classes)):

@@ -6,7 +6,8 @@ Exit codes are decided here and only here:
   2  data errors or usage errors
   3  an internal error (a bug: please report it with the output of --debug)
 Library code never calls sys.exit and never prints; it raises an AerialbookError (core/errors.py),
-which knows its exit code and how it prints.
+which knows its exit code and how it prints. Whatever reaches the terminal from here is cleared of
+control characters and escape sequences (`output.safe_text`): registry text is written by many hands.
 """
 from __future__ import annotations
 
@@ -19,6 +20,7 @@ from pathlib import Path
 from registry import __version__
 from registry.core.errors import EXIT_DATA, EXIT_FINDINGS, EXIT_INTERNAL, EXIT_OK, AerialbookError
 from registry.core.results import SEVERITIES
+from registry.output.safe_text import json_for_terminal, terminal_text
 
 EXIT_OPEN = EXIT_FINDINGS
 EXIT_DIFFERENT = EXIT_FINDINGS
@@ -139,11 +141,12 @@ def run(args: argparse.Namespace) -> int:
         out_dir, written = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive,
                                           progress=Progress(sys.stderr))
         if written:
-            print(f"site written to {out_dir}: open {out_dir / 'index.html'}")
+            print(terminal_text(f"site written to {out_dir}: open {out_dir / 'index.html'}"))
         else:
-            print(f"site in {out_dir} is up to date (same data, tool and options): open {out_dir / 'index.html'}")
+            print(terminal_text(f"site in {out_dir} is up to date (same data, tool and options): "
+                                f"open {out_dir / 'index.html'}"))
         if baseline is not None:
-            print(f"changes since {baseline.label}: open {out_dir / 'changes.html'}")
+            print(terminal_text(f"changes since {baseline.label}: open {out_dir / 'changes.html'}"))
         return EXIT_OK
     raise AssertionError(f"unhandled command {args.command}")
 
@@ -157,7 +160,7 @@ def run_check(args: argparse.Namespace, outcome) -> int:
                and name not in {craft.registration for craft in fleet.aircraft.values()}]
     unknown += [name for name in args.service or () if name not in fleet.services]
     if unknown:
-        print(f"error: no aircraft or service named {', '.join(unknown)}", file=sys.stderr)
+        print(terminal_text(f"error: no aircraft or service named {', '.join(unknown)}"), file=sys.stderr)
         return EXIT_DATA
     found = report.select(outcome.discrepancies, fleet, args.aircraft, args.service, args.severity)
     as_of = outcome.as_of.isoformat()
@@ -203,7 +206,8 @@ def run_diff(args: argparse.Namespace) -> int:
     old = sides_.read_side(old_spec, run=pipeline.run, git_data_dir=git_dir,
                          as_of=as_of or date.fromisoformat(new.record["as_of"]))
     comparison = compare.compare(old.record, new.record, Tolerance(args.rel_tol, args.abs_tol), old.label, new.label)
-    sys.stdout.write(compare_text.as_json(comparison) if args.format == "json" else compare_text.as_text(comparison))
+    sys.stdout.write(json_for_terminal(compare_text.as_json(comparison)) if args.format == "json"
+                     else terminal_text(compare_text.as_text(comparison)))
     return EXIT_OK if comparison.same else EXIT_DIFFERENT
 
 
@@ -212,12 +216,12 @@ def report_error(error: Exception, debug: bool) -> int:
     if debug:
         traceback.print_exception(error, file=sys.stderr)
     if isinstance(error, AerialbookError):
-        print(error.report(), file=sys.stderr)
+        print(terminal_text(error.report()), file=sys.stderr)
         return error.exit_code
     if isinstance(error, OSError):
-        print(f"error: {error.filename or ''}: {error.strerror or error}", file=sys.stderr)
+        print(terminal_text(f"error: {error.filename or ''}: {error.strerror or error}"), file=sys.stderr)
         return EXIT_DATA
     if not debug:
-        print(f"internal error: {type(error).__name__}: {error} (run with --debug for the traceback)",
+        print(terminal_text(f"internal error: {type(error).__name__}: {error} (run with --debug for the traceback)"),
               file=sys.stderr)
     return EXIT_INTERNAL

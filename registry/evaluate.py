@@ -36,7 +36,9 @@ class Stores:
 
     @classmethod
     def at(cls, cache_dir: Path | None) -> Stores:
-        return cls(DiskCache(cache_dir, "aircraft"), DiskCache(cache_dir, "summaries"), DiskCache(cache_dir, "patterns"))
+        return cls(DiskCache(cache_dir, "aircraft", AircraftPart),
+                   DiskCache(cache_dir, "summaries", AircraftSummary, also=(record.ShareText,)),
+                   DiskCache(cache_dir, "patterns", PatternResult))
 
 
 def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[AircraftPart, AircraftSummary,

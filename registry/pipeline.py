@@ -96,7 +96,8 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
         comparison = (compare(baseline.record, json.loads(built), old_label=baseline.label,
                                    new_label=f"registry {data_dir}") if baseline is not None else None)
         incremental = render.Incremental({} if naive else publish.previous_aircraft(out_dir), {},
-                                         DiskCache(None if naive else cache_root, "pieces"))
+                                         DiskCache(None if naive else cache_root, "pieces",
+                                                   render.AircraftPieces))
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()
 

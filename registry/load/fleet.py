@@ -78,8 +78,8 @@ class _Run:
     def __init__(self, data_dir: Path, shipped_dir: Path, cache_dir: Path | None, workers: int = 1):
         self.data_dir = data_dir
         self.shipped_dir = shipped_dir
-        self.cache = DiskCache(cache_dir, "files")
-        self.models = DiskCache(cache_dir, "models")
+        self.cache = DiskCache(cache_dir, "files", Parsed)
+        self.models = DiskCache(cache_dir, "models", tuple[Aircraft | None, list[Problem]])
         self.workers = workers
         self.problems: list[Problem] = []
 

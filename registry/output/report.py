@@ -9,6 +9,7 @@ from dataclasses import asdict
 
 from registry.core.model import Fleet
 from registry.core.results import ALL_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
+from registry.output.safe_text import json_for_terminal, spreadsheet_cell, terminal_line
 
 FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",
           "source", "review", "reviewer", "review_reference", "review_comment")
@@ -41,20 +42,23 @@ def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = 
 
 
 def as_json(found: list[Discrepancy], stale: list, as_of: str) -> str:
-    return json.dumps({
+    """The report as JSON; control characters that JSON leaves as they are come out as \\u escapes."""
+    return json_for_terminal(json.dumps({
         "as_of": as_of,
         "discrepancies": [exported(item) for item in found],
         "stale_reviews": [{"discrepancy": review.discrepancy, "state": review.state,
                            "source": f"{review.src.path}:{review.src.line}"} for review in stale],
-    }, indent=2, ensure_ascii=False) + "\n"
+    }, indent=2, ensure_ascii=False)) + "\n"
 
 
 def as_csv(found: list[Discrepancy]) -> str:
+    """The report as CSV, each text cell neutralised for spreadsheets (`safe_text.spreadsheet_cell`).
+    Lines end in CR LF (RFC 4180, section 2), so a cell holding a carriage return is quoted too."""
     buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
+    writer = csv.writer(buffer, lineterminator="\r\n")
     writer.writerow(FIELDS)
     for item in found:
-        writer.writerow(["" if value is None else value for value in exported(item).values()])
+        writer.writerow(["" if value is None else spreadsheet_cell(value) for value in exported(item).values()])
     return buffer.getvalue()
 
 
@@ -68,7 +72,8 @@ def counts_line(found: list[Discrepancy]) -> str:
 
 
 def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> str:
-    """Grouped by aircraft, each with its counts; then stale reviews; then the fleet's totals."""
+    """Grouped by aircraft, each with its counts; then stale reviews; then the fleet's totals. Every line
+    is cleared of control characters and escape sequences (`safe_text.terminal_line`)."""
     lines = [f"{fleet.operator}: {len(fleet.aircraft)} aircraft, "
              f"{sum(len(a.installations) for a in fleet.aircraft.values())} installations, as of {as_of}", ""]
     for craft in fleet.aircraft.values():
@@ -89,7 +94,7 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> 
     if stale:
         lines.append("")
     lines.append(f"fleet: {counts_line(found)}")
-    return "\n".join(lines) + "\n"
+    return "\n".join(terminal_line(line) for line in lines) + "\n"
 
 
 def format_value(figure: Figure) -> str:
@@ -129,4 +134,4 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
         for figure in pair.figures:
             lines.append(f"  {figure.label:<52} {format_value(figure)}")
         lines.append("")
-    return "\n".join(lines)
+    return "\n".join(terminal_line(line) for line in lines)

@@ -7,6 +7,7 @@ import json
 import math
 from typing import Any
 
+from registry.output.safe_text import spreadsheet_cell
 from registry.site.info import BuildInfo
 
 CSV_FIELDS = ("id", "severity", "aircraft", "registration", "position", "services", "rule", "value", "limit", "unit",
@@ -33,12 +34,15 @@ def export_row(view: dict[str, Any]) -> dict[str, Any]:
 
 
 def discrepancies_csv(views: list[dict[str, Any]]) -> str:
+    """Every discrepancy as CSV; text cells neutralised for spreadsheets (`safe_text.spreadsheet_cell`:
+    OWASP's guidance on CSV injection), numbers written as numbers."""
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=CSV_FIELDS, lineterminator="\r\n")
     writer.writeheader()
     for view in views:
         row = export_row(view)
-        writer.writerow({k: ("" if v is None else repr(v) if isinstance(v, float) else v) for k, v in row.items()})
+        writer.writerow({k: ("" if v is None else repr(v) if isinstance(v, float) else spreadsheet_cell(v))
+                         for k, v in row.items()})
     return buffer.getvalue()
 
 

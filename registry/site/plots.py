@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import functools
 import io
-import json
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -16,7 +15,8 @@ from pathlib import Path
 
 import numpy as np
 
-from registry.incremental import array_key, cached_map, key_of, write_text_atomically
+from registry.incremental import DiskCache, array_key, cached_map, key_of
+from registry.site.plot_check import plain_svg
 from registry.core.results import CableResult, Curve, InstallationResult, PatternResult
 
 INK = "#2b2f36"
@@ -271,12 +271,15 @@ def attenuation_plot(cable: CableResult) -> Drawn:
 class PlotStore:
     """Plots by content key: drawn at most once per build, and kept on disk across builds.
 
-    `cache_dir` (optional) holds one JSON file (SVG and alt text) per key; the key includes the tool's
-    code (`diskcache.key_of`), so new plotting code never reuses an old drawing. The folder is safe to delete at any time.
+    `cache_dir` (optional) keeps each drawing (SVG and alt text) as a checked cache entry under `plots/`
+    (`incremental.DiskCache`), keyed by the tool's code and the kind and key, so new plotting code never
+    reuses an old drawing. A drawing read back is published only if it is a plain SVG
+    (`plot_check.plain_svg`); anything else is drawn again. The folder is safe to delete at any time.
     """
 
     def __init__(self, cache_dir: Path | None = None, naive: bool = False):
-        self.cache_dir = Path(cache_dir) / "plots" if cache_dir is not None and not naive else None
+        self.disk = DiskCache(None if naive else cache_dir, "plots", Drawn)
+        self.cache_dir = self.disk.folder
         self.drawn: dict[str, Drawn] = {}
         self.naive = naive
         """Draw every plot every time it is asked for (the benchmark's baseline), keeping nothing."""
@@ -296,25 +299,18 @@ class PlotStore:
         return found
 
     def _put(self, kind: str, key: str, drawn: Drawn) -> None:
-        path = self._path(kind, key)
-        if path is not None:
-            write_text_atomically(path, json.dumps({"svg": drawn.svg, "alt": drawn.alt}))
-
-    def _path(self, kind: str, key: str) -> Path | None:
-        if self.cache_dir is None:
-            return None
-        stamp = key_of(kind, key)[:24]  # the tool's code is in the key: new plotting code draws again
-        return self.cache_dir / f"{stamp}.json"
+        self.disk.put(key_of(kind, key), drawn)
 
     def _stored(self, kind: str, key: str) -> Drawn | None:
-        path = self._path(kind, key)
-        if path is None:
+        """A drawing kept by an earlier build, if it is there, undamaged and a plain SVG."""
+        if self.disk.folder is None:
             return None
-        try:
-            stored = json.loads(path.read_text(encoding="utf-8"))
-            return Drawn(stored["svg"], stored["alt"])
-        except (OSError, ValueError, KeyError, TypeError):
-            return None  # absent or damaged: draw it again
+        entry_key = key_of(kind, key)
+        drawn = self.disk.get(entry_key)
+        if drawn is not None and not plain_svg(drawn.svg):
+            self.disk.discard(entry_key)
+            return None
+        return drawn
 
 
 class _Kind:

@@ -1,9 +1,15 @@
 """Atomic publishing of a built site.
 
-The site is written into a temporary folder beside the target and swapped in only when the build
-succeeded, so a failed or interrupted build leaves the previous site exactly as it was. A lock file
-beside the target keeps two builds into one target from interleaving. A folder that does not carry
-our marker file is never replaced, so a mistyped `-o` cannot wipe out unrelated files.
+The site is written into a temporary folder beside the target (`.NAME.build-*`) and swapped in only when
+the build succeeded, so a failed or interrupted build leaves the previous site exactly as it was. A lock
+file beside the target (`.NAME.lock`) keeps two builds into one target from interleaving; the build
+holding it removes it when it ends, and under it removes what a killed build left beside the target
+(its staging folder, the previous site it was about to delete: `clean_leftovers`).
+
+A folder is replaced only if it is empty or is a site this tool wrote: its marker file lists every file
+of the site with its size, and every file in the folder must be one of them (`is_site`). A marker file
+copied into another folder therefore does not make that folder a site, and a file the user put into a
+site is never deleted: the build is refused instead.
 """
 from __future__ import annotations
 
@@ -11,23 +17,29 @@ import contextlib
 import fcntl
 import json
 import os
+import re
 import shutil
+import stat
 import tempfile
 from pathlib import Path
-
-from registry.core.errors import AerialbookError
 from typing import Iterator
 
+from registry.core.errors import AerialbookError
+from registry.incremental import read_regular_file
+
 MARKER = ".aerialbook-site"
-MARKER_NOTE = "Written by aerialbook; this folder is replaced whole by each build."
+MARKER_NOTE = ("Written by aerialbook; this folder is replaced whole by each build, as long as it holds "
+               "only the files listed here.")
+MAX_MARKER_BYTES = 64 * 1024 * 1024
 
 
 def read_manifest(out_dir: Path) -> dict:
     """What the previous build recorded in its marker file (which aircraft pages it holds under which
     key); empty when there is no previous site or the marker is not ours or unreadable."""
+    data = read_regular_file(Path(out_dir) / MARKER, MAX_MARKER_BYTES)
     try:
-        manifest = json.loads((out_dir / MARKER).read_text(encoding="utf-8"))
-    except (OSError, ValueError):
+        manifest = json.loads(data) if data is not None else {}
+    except (ValueError, RecursionError):
         return {}
     return manifest if isinstance(manifest, dict) else {}
 
@@ -35,10 +47,15 @@ def read_manifest(out_dir: Path) -> dict:
 def previous_aircraft(out_dir: Path) -> dict[str, dict]:
     """Each aircraft's entry (page key and files) as the previous build recorded it, for the aircraft
     whose files are all still in the site."""
-    previous = read_manifest(out_dir).get("aircraft", {})
+    manifest = read_manifest(out_dir)
+    previous, listed = manifest.get("aircraft", {}), manifest.get("files")
+    if not isinstance(previous, dict) or not isinstance(listed, dict):
+        return {}
     folder = str(out_dir)
     return {aircraft_id: entry for aircraft_id, entry in previous.items() if isinstance(entry, dict)
-            and all(os.path.isfile(os.path.join(folder, path)) for path in entry.get("files", ()))}
+            and isinstance(entry.get("files", ()), (list, tuple))
+            and all(isinstance(path, str) and path in listed and os.path.isfile(os.path.join(folder, path))
+                    for path in entry.get("files", ()))}
 
 
 def up_to_date(out_dir: Path, site_key: str) -> bool:
@@ -47,16 +64,47 @@ def up_to_date(out_dir: Path, site_key: str) -> bool:
     manifest = read_manifest(out_dir)
     files = manifest.get("files")
     folder = str(out_dir)
-    return (bool(site_key) and manifest.get("site_key") == site_key and isinstance(files, list)
-            and all(isinstance(name, str) and os.path.isfile(os.path.join(folder, name)) for name in files))
+    return (bool(site_key) and manifest.get("site_key") == site_key and isinstance(files, dict)
+            and all(_size(os.path.join(folder, name)) == size for name, size in files.items()))
+
+
+def _size(path: str) -> int | None:
+    """The size of the regular file at `path` (not following a link), or None."""
+    try:
+        info = os.lstat(path)
+    except (OSError, ValueError):
+        return None
+    return info.st_size if stat.S_ISREG(info.st_mode) else None
 
 
 def write_manifest(stage: Path, manifest: dict) -> None:
-    """The marker file, holding `manifest` and the list of every file the stage holds."""
-    root = str(stage).rstrip(os.sep) + os.sep
-    files = sorted((os.path.join(folder, name)[len(root):]).replace(os.sep, "/")
-                   for folder, _, names in os.walk(root) for name in names if name != MARKER)
+    """The marker file, holding `manifest` and every file the stage holds with its size (`is_site`)."""
+    files = dict(site_files(stage))
     (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE, **manifest, "files": files}, sort_keys=True) + "\n")
+
+
+def site_files(folder: Path) -> Iterator[tuple[str, int | None]]:
+    """Each file under `folder` but the marker (relative path with "/") and its size; None for anything
+    that is not a regular file (a link, a pipe) or a link to a folder."""
+    root = str(folder).rstrip(os.sep) + os.sep
+    for parent, folders, names in os.walk(root):
+        for name in names + [name for name in folders if os.path.islink(os.path.join(parent, name))]:
+            path = os.path.join(parent, name)
+            relative = path[len(root):].replace(os.sep, "/")
+            if relative != MARKER:
+                yield relative, _size(path)
+
+
+def is_site(out_dir: Path) -> bool:
+    """True when `out_dir` holds only what its marker lists: every file, with the size it was published
+    with. Files may have gone missing (a build puts them back); no file may have been added or changed."""
+    listed = read_manifest(out_dir).get("files")
+    if isinstance(listed, list):  # the marker of earlier releases: names only
+        listed = {name: None for name in listed if isinstance(name, str)}
+    if not isinstance(listed, dict):
+        return False
+    return all(relative in listed and size is not None and listed[relative] in (size, None)
+               for relative, size in site_files(out_dir))
 
 
 def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse: bytes) -> None:
@@ -111,31 +159,93 @@ class PublishError(AerialbookError):
     """The target cannot be published to (not ours, locked, not writable)."""
 
 
+class SiteLocked(PublishError):
+    """Another build is writing the same site: try again when it ends."""
+
+
+def lock_path(out_dir: Path) -> Path:
+    return out_dir.parent / f".{out_dir.name}.lock"
+
+
 @contextlib.contextmanager
 def target_lock(out_dir: Path) -> Iterator[None]:
-    """Hold an exclusive lock on `<parent>/.<name>.lock` while building into `out_dir`."""
+    """Hold an exclusive lock on `<parent>/.<name>.lock` while building into `out_dir`; SiteLocked when
+    another build holds it. The holder removes the file before it lets go, so no lock file outlives a
+    build that ended, and one left by a killed build is taken over and removed by the next."""
     out_dir.parent.mkdir(parents=True, exist_ok=True)
-    lock_path = out_dir.parent / f".{out_dir.name}.lock"
-    with open(lock_path, "w") as handle:
+    path = lock_path(out_dir)
+    handle = _locked(path)
+    try:
+        yield
+    finally:
+        with contextlib.suppress(OSError):
+            os.unlink(path)  # while still holding it: a build waiting on this file tries again (`_locked`)
+        fcntl.flock(handle, fcntl.LOCK_UN)
+        os.close(handle)
+
+
+def _locked(path: Path) -> int:
+    """An open descriptor of the lock file at `path`, exclusively locked, which is still the file at
+    `path` (one removed by the build that held it before is let go and the new one taken)."""
+    while True:
+        handle = os.open(path, os.O_RDWR | os.O_CREAT | os.O_NOFOLLOW | getattr(os, "O_CLOEXEC", 0), 0o644)
         try:
             fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
         except BlockingIOError:
-            raise PublishError(f"{out_dir}: another build is writing this site; try again when it ends") from None
+            os.close(handle)
+            raise SiteLocked(f"{path.parent / path.name[1:-5]}: another build is writing this site; "
+                             "try again when it ends") from None
+        except BaseException:
+            os.close(handle)
+            raise
         try:
-            yield
-        finally:
-            fcntl.flock(handle, fcntl.LOCK_UN)
+            same = os.fstat(handle).st_ino == os.lstat(path).st_ino
+        except OSError:
+            same = False
+        if same:
+            return handle
+        os.close(handle)
+
+
+def held_by_another(out_dir: Path) -> bool:
+    """True when a build holds the lock of `out_dir` right now (the lock file is neither made nor removed)."""
+    try:
+        handle = os.open(lock_path(out_dir), os.O_RDWR | os.O_NOFOLLOW | getattr(os, "O_CLOEXEC", 0))
+    except OSError:
+        return False
+    try:
+        fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except BlockingIOError:
+        return True
+    finally:
+        os.close(handle)  # closing lets go of a lock taken here
+    return False
+
+
+def clean_leftovers(out_dir: Path) -> None:
+    """Remove the staging folders and old sites a killed build left beside `out_dir` (`.NAME.build-*`,
+    `.NAME.old-*`, as `staging_dir` and `swap_in` name them). Called under the lock: no live build of
+    this target can own them. Links and files of those names are left alone."""
+    pattern = re.compile(rf"\.{re.escape(out_dir.name)}\.(build|old)-[a-z0-9_]{{8}}")
+    try:
+        entries = list(os.scandir(out_dir.parent))
+    except OSError:
+        return
+    for entry in entries:
+        if pattern.fullmatch(entry.name) and entry.is_dir(follow_symlinks=False):
+            shutil.rmtree(entry.path, ignore_errors=True)
 
 
 def check_target(out_dir: Path) -> None:
-    """Refuse a target that exists, is not empty and was not written by us."""
-    if not out_dir.exists():
+    """Refuse a target that exists, is not empty and is not a site written by us (`is_site`)."""
+    if not out_dir.exists() and not out_dir.is_symlink():
         return
-    if not out_dir.is_dir():
+    if out_dir.is_symlink() or not out_dir.is_dir():
         raise PublishError(f"{out_dir}: exists and is not a folder, expected a folder for the site")
-    if any(out_dir.iterdir()) and not (out_dir / MARKER).exists():
+    if any(out_dir.iterdir()) and not is_site(out_dir):
         raise PublishError(
-            f"{out_dir}: folder holds files not written by this tool, expected an empty folder or an earlier site"
+            f"{out_dir}: folder holds files not written by this tool (or changed since), expected an empty "
+            "folder or an earlier site"
         )
 
 
@@ -144,13 +254,14 @@ def staging_dir(out_dir: Path) -> Iterator[Path]:
     """Yield a fresh temporary folder beside `out_dir`; on success swap it in, on failure remove it."""
     out_dir = out_dir.resolve()
     with target_lock(out_dir):
+        clean_leftovers(out_dir)
         check_target(out_dir)
         stage = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.build-", dir=out_dir.parent))
         _MADE.clear()
         try:
             yield stage
             if not (stage / MARKER).exists():
-                (stage / MARKER).write_text(json.dumps({"note": MARKER_NOTE}) + "\n")
+                write_manifest(stage, {})
             os.chmod(stage, 0o755)
             swap_in(stage, out_dir)
         except BaseException:

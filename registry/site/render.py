@@ -50,7 +50,7 @@ class Incremental:
 
     previous: dict[str, dict[str, Any]]
     current: dict[str, dict[str, Any]]
-    pieces: DiskCache = field(default_factory=lambda: DiskCache(None, "pieces"))
+    pieces: DiskCache = field(default_factory=lambda: DiskCache(None, "pieces", AircraftPieces))
     """Each aircraft's `AircraftPieces` by page key, kept across builds with its pages."""
 
 

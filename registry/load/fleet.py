@@ -13,7 +13,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
-from registry.load import build, inputs, integrity
+from registry.load import build, extent, inputs, integrity
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
@@ -169,6 +169,8 @@ class _Run:
         self.problems += integrity.check_cables(cables or [])
         self.problems += integrity.check_services(services or [])
         self.problems += integrity.check_aircraft(aircraft, catalogue, self.data_dir)
+        self.problems += extent.check_locations(aircraft, {name: item for item in airframes
+                                                          for name in build.names(item)})
         self.problems += integrity.check_reviews(reviews)
         if policy is not None:
             self.problems += integrity.check_policy(policy, catalogue)

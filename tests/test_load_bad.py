@@ -73,6 +73,16 @@ EXPECTED = {
         # fx-20: nose 0, tail 780, fin tip 640 + 120 + 190 tan 35° = 893.04; margin 78 (10 % of 780)
         'aircraft/qx-fcb.yaml:9:16: error: installations[0].location.sta: found 3120, expected a station (STA) within the airframe fx-20, from -78 to 971.039 in (its outline with a margin of 10% of its length)',
     ],
+    "many_mistakes": [
+        # one aircraft file, six kinds of mistakes, all in ONE run: a reference to another file, the schema,
+        # a duplicate key, an unknown catalogue id, an implausible number, a missing sweep file
+        "aircraft/qx-fcb.yaml:5:1: error: airframe: found 'fx-21', expected the id of a file in airframes/ (did you mean 'fx-20'?)",
+        'aircraft/qx-fcb.yaml:6:9: error: serial: found 2018, expected text (put it in quotes)',
+        "aircraft/qx-fcb.yaml:16:7: error: installations[0].feeder.length_m: found a second 'length_m' key (the first is on line 15), expected each key once",
+        "aircraft/qx-fcb.yaml:20:5: error: installations[1].antenna: found 'FXA-120-BLB', expected an antenna model id from antennas.yaml (did you mean 'FXA-120-BLD'?)",
+        'aircraft/qx-fcb.yaml:29:40: error: installations[2].feeder.length_m: found 1.0e+6, expected a length between 0.01 and 300 metres',
+        'aircraft/qx-fcb.yaml:36:34: error: installations[3].measured.sweep: found no file at aircraft/sweeps/qx-fcb-dme1.s1p, expected the sweep file this installation names',
+    ],
     "missing_required": [
         'fleet.yaml:2:1: error: operator: found nothing, expected a value (the key is required)',
     ],

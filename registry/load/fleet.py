@@ -13,11 +13,12 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
-from registry.load import build, extent, inputs, integrity
+from registry.load import build, extent, inputs, integrity, partial
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
-from registry.core.model import Aircraft, Fleet, FrozenMap, IsolationRule, Policy, Service
+from registry.core.model import Aircraft, Fleet, FrozenMap, Installation, IsolationRule, Policy, Service
+from registry.load.partial import AircraftRead
 from registry.load.yamlsource import YamlDoc, read_yaml
 
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
@@ -62,18 +63,22 @@ def _file_key(kind: str, file: Path) -> str | None:
         return None
 
 
-def _read_aircraft(file: Path) -> tuple[Aircraft | None, list[Problem]]:
-    """An aircraft file read, checked against its schema and built into its model; with its problems."""
+def _read_aircraft(file: Path) -> AircraftRead:
+    """An aircraft file read, checked against its schema and built into its model; with its problems
+    (and, when it has some, what could be built of it: `partial.read_on`)."""
     doc, problems = _parse_fresh(file, "aircraft")
-    if doc is None or problems:
-        return None, problems
-    return build.aircraft(build.Doc(doc, file))
+    if doc is None:
+        return AircraftRead(None, problems)
+    if problems:
+        return partial.read_on(build.Doc(doc, file), problems)
+    return AircraftRead(*build.aircraft(build.Doc(doc, file)))
 
 
 def _parse_fresh(file: Path, kind: str) -> Parsed:
     doc, problems = read_yaml(file, str(file))
     if doc is not None:
-        problems = schemacheck.check(doc, kind)
+        reported = {problem.field for problem in problems}  # a value the reader refused is not judged again
+        problems = problems + [problem for problem in schemacheck.check(doc, kind) if problem.field not in reported]
     return doc, problems
 
 
@@ -85,6 +90,8 @@ class _Run:
         self.models = DiskCache(cache_dir, "models")
         self.workers = workers
         self.problems: list[Problem] = []
+        self.partial: list[Aircraft] = []  # built from files with problems, for checking only
+        self.loose: list[Installation] = []
 
     def problem(self, file: Path, found: str, expected: str) -> None:
         self.problems.append(Problem.at(Src(str(file), 1, 1), FILE_FIELD, found, expected))
@@ -126,10 +133,12 @@ class _Run:
         keys = [_file_key("aircraft-model", file) if self.models.folder is not None else None for file in files]
         built = cached_map(_read_aircraft, files, keys, self.models, self.workers)
         models = []
-        for model, problems in built:
-            self.problems += problems
-            if model is not None:
-                models.append(model)
+        for read in built:
+            self.problems += read.problems
+            if read.model is not None:
+                models.append(read.model)
+            self.partial += [read.partial] if read.partial is not None else []
+            self.loose += read.loose
         return models
 
     def load(self) -> Fleet:
@@ -168,9 +177,12 @@ class _Run:
         self.problems += integrity.check_antennas(antennas or [])
         self.problems += integrity.check_cables(cables or [])
         self.problems += integrity.check_services(services or [])
-        self.problems += integrity.check_aircraft(aircraft, catalogue, self.data_dir)
-        self.problems += extent.check_locations(aircraft, {name: item for item in airframes
-                                                          for name in build.names(item)})
+        checked = aircraft + self.partial
+        self.problems += integrity.check_aircraft(checked, catalogue, self.data_dir)
+        for installation in self.loose:
+            self.problems += integrity.check_installation(installation, catalogue, self.data_dir)
+        self.problems += extent.check_locations(checked, {name: item for item in airframes
+                                                         for name in build.names(item)})
         self.problems += integrity.check_reviews(reviews)
         if policy is not None:
             self.problems += integrity.check_policy(policy, catalogue)

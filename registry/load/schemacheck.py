@@ -38,6 +38,7 @@ _UNIT_SUFFIXES = (
 )
 _UNIT_NOUNS = {"metres": "a length", "MHz": "a frequency", "ohms": "an impedance", "degrees": "an angle",
                "in the airframe's coord_unit": "a coordinate"}
+_WHOLE_FILE = {"str": "a file of plain text, not a YAML mapping", "list": "a list, not a mapping"}
 _NUMBER_WITH_UNIT = re.compile(r"\s*[-+]?(\d+\.?\d*|\.\d+)\s*[A-Za-z%]")
 _EXPONENT_WITHOUT_DOT = re.compile(r"[-+]?\d+[eE][-+]?\d+")
 
@@ -162,7 +163,8 @@ def _problems(error: ValidationError, doc: YamlDoc) -> list[Problem]:
 def _found_expected(error: ValidationError, parts: tuple, text: str | None, schema: dict) -> tuple[str, str]:
     """What was found and what was expected, in words, for an error on one value."""
     instance, kind = error.instance, error.validator
-    found = describe(instance, text)
+    # a whole file that is not a mapping is likely not registry YAML at all: say what it is, never what it says
+    found = describe(instance, text) if parts else _WHOLE_FILE.get(type(instance).__name__, "a single value")
     if kind == "type":
         expected = _type_words(error.validator_value, instance, text)
     elif kind == "enum":

@@ -56,6 +56,11 @@ EXPECTED = {
         # longer than any wire antenna an aircraft carries)
         'antennas.yaml:11:25: error: models[0].geometry.element_length_m: found 56.0e+3, expected a length between 0.001 and 60 metres',
     ],
+    "element_longer_than_its_band": [
+        # λ = c / f = 299792458 / 137e6 = 2.188 m; 5.6 m is 2.56 λ (the slip of 0.56); a quarter-wave
+        # element is 0.25 λ (Balanis, Antenna Theory, 4th ed., §4.7)
+        'antennas.yaml:11:7: error: models[0].geometry.element_length_m: found 5.6 m, 2.56 wavelengths at 137 MHz (the top of its bands), expected an element of at most 2 wavelengths there, 4.38 metres',
+    ],
     "empty_file": [
         'fleet.yaml:1:1: error: (file): found an empty file, expected a YAML mapping of keys and values',
     ],

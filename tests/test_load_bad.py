@@ -57,8 +57,8 @@ EXPECTED = {
         'antennas.yaml:11:25: error: models[0].geometry.element_length_m: found 56.0e+3, expected a length between 0.001 and 60 metres',
     ],
     "element_longer_than_its_band": [
-        # λ = c / f = 299792458 / 137e6 = 2.188 m; 5.6 m is 2.56 λ (the slip of 0.56); a quarter-wave
-        # element is 0.25 λ (Balanis, Antenna Theory, 4th ed., §4.7)
+        # λ = c / f = 299792458 / 137e6 = 2.188 m; 5.6 m is 2.56 λ (the slip of 0.56; a quarter-wave
+        # element is 0.25 λ by its name)
         'antennas.yaml:11:7: error: models[0].geometry.element_length_m: found 5.6 m, 2.56 wavelengths at 137 MHz (the top of its bands), expected an element of at most 2 wavelengths there, 4.38 metres',
     ],
     "empty_file": [
@@ -107,7 +107,7 @@ EXPECTED = {
         "policy.yaml:3:25: error: feeder_loss_budget_db.vhf_con: found 'vhf_con', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",
     ],
     "policy_limit_implausible": [
-        'policy.yaml:2:13: error: vswr_limit: found 1.0e+308, expected a number between 1 and 100 (VSWR, the ratio n:1)',
+        'policy.yaml:2:13: error: vswr_limit: found 1.0e+308, expected a number between 1.01 and 100 (VSWR, the ratio n:1)',
     ],
     "review_unknown_rule": [
         "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data (did you mean 'feeder-loss'?)",

@@ -22,7 +22,7 @@ from registry import cli
 from registry.compute import feeder as feeder_figures
 from registry.core import figure_keys as FK
 from registry.core.errors import DataError
-from registry.load import sweepcheck
+from registry.load import inputs, sweepcheck
 from registry.load.fleet import load_fleet
 
 FIXTURES = Path(__file__).parent / "fixtures"
@@ -93,6 +93,21 @@ def test_a_device_or_fifo_in_a_registry_folder_is_not_read(tmp_path):
     data = registry(tmp_path)
     (data / "aircraft" / "qx-fcz.yaml").symlink_to("/dev/zero")
     assert problems(data)[0].startswith("aircraft/qx-fcz.yaml:1:1: error: (file): found a link to a file outside")
+
+
+def test_a_stray_link_in_the_registry_is_not_read_for_the_cache_key(tmp_path):
+    # a link to a device (/dev/zero, /dev/urandom) would never end: a stray link is left unread
+    data = registry(tmp_path)
+    outside = tmp_path / "outside.yaml"
+    outside.write_text("a: 1\n", encoding="utf-8")
+    (data / "notes.yaml").symlink_to(outside)
+    (data / "zeros.yaml").symlink_to("/dev/zero")
+    before = inputs.shared_key(data, SHIPPED)
+    outside.write_text("a: 2\n", encoding="utf-8")
+    assert inputs.shared_key(data, SHIPPED) == before
+    (data / "fleet.yaml").write_text((data / "fleet.yaml").read_text(encoding="utf-8") + "# edited\n",
+                                     encoding="utf-8")
+    assert inputs.shared_key(data, SHIPPED) != before
 
 
 # --- every problem in one run -------------------------------------------------------------------------

@@ -210,6 +210,17 @@ def test_all_problems_of_a_run_come_together_sorted(tmp_path):
     assert summary == "3 problems in 3 files"
 
 
+def test_a_syntax_error_stops_only_its_own_file(tmp_path):
+    # fleet.yaml cannot be read at all; the aircraft file's duplicate key and the cable's range are still
+    # reported in the same run
+    data = make_registry(tmp_path)
+    for flaw in ("syntax_error", "duplicate_key", "velocity_factor_above_one"):
+        shutil.copytree(FIXTURES / "bad" / flaw, data, dirs_exist_ok=True)
+    lines, summary = problems(data)
+    assert lines == sorted(EXPECTED["syntax_error"] + EXPECTED["duplicate_key"] + EXPECTED["velocity_factor_above_one"])
+    assert summary == "3 problems in 3 files"
+
+
 def test_references_into_a_broken_catalogue_are_not_reported_again(tmp_path):
     # cables.yaml fails its schema, so the cable ids are unknown: the unknown cable in qx-fcb is not
     # reported on top (it would be a guess), only the catalogue's own problem.

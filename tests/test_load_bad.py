@@ -64,6 +64,10 @@ EXPECTED = {
     "empty_file": [
         'fleet.yaml:1:1: error: (file): found an empty file, expected a YAML mapping of keys and values',
     ],
+    "folded_wires_touch": [
+        # two wires whose centres are one diameter apart touch: no folded dipole (and no wire model) is left
+        "antennas.yaml:28:67: error: models[2].geometry.spacing_m: found 0.008 m, not beyond the element diameter 0.008 m, expected a spacing between the two wires' centres greater than their diameter",
+    ],
     "frequency_out_of_range": [
         'cables.yaml:7:19: error: cables[0].max_freq_mhz: found 500000, expected a frequency between 0.001 and 300000 MHz',
     ],

@@ -108,6 +108,10 @@ def check_antennas(models: list[AntennaModel]) -> list[Problem]:
             if len(set(positions)) != len(positions):
                 problems.append(problem(model, "geometry.elements", "two elements at the same position_m",
                                         "each element at its own position along the boom"))
+        if model.kind == "folded_dipole" and not geometry["spacing_m"] > geometry["element_diameter_m"]:
+            problems.append(problem(model, "geometry.spacing_m", f"{geometry['spacing_m']:g} m, not beyond the "
+                                    f"element diameter {geometry['element_diameter_m']:g} m",
+                                    "a spacing between the two wires' centres greater than their diameter"))
         amplitudes = geometry.get("amplitudes")
         if model.kind == "linear_array" and amplitudes is not None and len(amplitudes) != geometry["element_count"]:
             problems.append(problem(model, "geometry.amplitudes",

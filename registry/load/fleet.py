@@ -14,7 +14,7 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry.load import build, extent, git, inputs, integrity, partial
+from registry.load import build, extent, git, inputs, integrity, partial, plausible
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
@@ -223,6 +223,7 @@ class _Run:
         )
         self.problems += integrity.check_airframes(airframes)
         self.problems += integrity.check_antennas(antennas or [])
+        self.problems += plausible.check_antennas(antennas or [])
         self.problems += integrity.check_cables(cables or [])
         self.problems += integrity.check_services(services or [])
         checked = aircraft + self.partial

@@ -13,7 +13,6 @@ from typing import Iterable
 
 from registry.core.errors import Problem
 from registry.core.rulebook import RULES
-from registry.core.units import C_M_PER_S
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
                             Review, Service, Sourced)
 from registry.load import sweepcheck
@@ -97,7 +96,6 @@ def check_antennas(models: list[AntennaModel]) -> list[Problem]:
     problems = duplicates(models, "id", "antenna model id")
     for model in models:
         problems += bands(model)
-        problems += element_lengths(model)
         geometry = model.geometry
         if model.kind == "yagi_uda":
             roles = [element["role"] for element in geometry["elements"]]
@@ -121,26 +119,6 @@ def check_antennas(models: list[AntennaModel]) -> list[Problem]:
             problems.append(problem(model, "geometry.sidelobe_db", f"sidelobe_db with taper '{geometry['taper']}'",
                                     "sidelobe_db only with taper chebyshev"))
     return problems
-
-
-MAX_ELEMENT_WAVELENGTHS = 2.0
-"""The longest wire element, in wavelengths at the top of its antenna's bands. Quarter- and half-wave
-elements are 0.25 and 0.5; beyond 2 the wire model's 20 segments would each exceed a tenth of a wavelength
-(`physics.impedance.MAX_SEGMENT_WAVELENGTHS`), and such a length is a slip (9.75 for 0.975)."""
-
-
-def element_lengths(model: AntennaModel) -> list[Problem]:
-    """Wire elements no longer than `MAX_ELEMENT_WAVELENGTHS` at the highest frequency of their bands."""
-    top_mhz = max(high for _, high in model.bands_mhz)
-    longest_m = MAX_ELEMENT_WAVELENGTHS * C_M_PER_S / (top_mhz * 1e6)
-    geometry = model.geometry
-    lengths = [("geometry.element_length_m", geometry.get("element_length_m"))]
-    lengths += [(f"geometry.elements[{n}].length_m", element.get("length_m"))
-                for n, element in enumerate(geometry.get("elements", ()))]
-    return [problem(model, field, f"{length:g} m, {length / longest_m * MAX_ELEMENT_WAVELENGTHS:.3g} wavelengths "
-                                  f"at {top_mhz:g} MHz (the top of its bands)",
-                    f"an element of at most {MAX_ELEMENT_WAVELENGTHS:g} wavelengths there, {longest_m:.3g} metres")
-            for field, length in lengths if isinstance(length, (int, float)) and length > longest_m]
 
 
 def check_cables(cables: list[Cable]) -> list[Problem]:

@@ -11,7 +11,7 @@ from __future__ import annotations
 import json
 import re
 import shutil
-from datetime import date
+from datetime import date, datetime, timezone
 from pathlib import Path
 
 import pytest
@@ -128,23 +128,33 @@ def test_installations_of_an_aircraft_without_an_id_are_still_checked(tmp_path):
 # --- reviews from the future --------------------------------------------------------------------------
 
 
-def test_a_review_dated_after_the_as_of_date_is_an_error(tmp_path):
-    data = registry(tmp_path)
-    assert problems(data, as_of=date(2026, 1, 15)) == [
-        "reviews.yaml:13:5: error: reviews[1].date: found 2026-01-16, after the registry's as-of date 2026-01-15, "
-        "expected a date on or before 2026-01-15 (a review cannot be dated in the future)"]
-    assert load_fleet(data, SHIPPED, as_of=date(2026, 1, 16)).reviews
-
-
-def test_the_as_of_date_comes_from_the_registry_by_default(tmp_path, monkeypatch):
-    # no git here: the data's date is today; SOURCE_DATE_EPOCH may pin measurement ages to a later day
-    data = registry(tmp_path)
+def future(data: Path) -> None:
     reviews = data / "reviews.yaml"
     reviews.write_text(reviews.read_text(encoding="utf-8").replace("2026-01-16", "2999-01-16"), encoding="utf-8")
+
+
+def test_a_review_dated_in_the_future_is_an_error(tmp_path, monkeypatch):
+    # no git here: the registry's as-of date is today (or SOURCE_DATE_EPOCH)
+    data = registry(tmp_path)
+    future(data)
     monkeypatch.delenv("SOURCE_DATE_EPOCH", raising=False)
-    assert problems(data)[0].startswith("reviews.yaml:13:5: error: reviews[1].date: found 2999-01-16, after")
-    monkeypatch.setenv("SOURCE_DATE_EPOCH", "32503680000")  # 3000-01-01
+    today = datetime.now(tz=timezone.utc).date().isoformat()
+    assert problems(data) == [
+        f"reviews.yaml:13:5: error: reviews[1].date: found 2999-01-16, after {today}, expected a date on or "
+        f"before {today} (the registry's as-of date, or today when that is later: a review cannot be dated "
+        "in the future)"]
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1772323200")  # 2026-03-01: an as-of date in the past ...
+    assert problems(data)[0].startswith(f"reviews.yaml:13:5: error: reviews[1].date: found 2999-01-16, after {today}")
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "32503680000")  # ... or, 3000-01-01, one beyond the review
     assert load_fleet(data, SHIPPED).reviews
+
+
+def test_the_loader_takes_the_as_of_date(tmp_path):
+    data = registry(tmp_path)
+    future(data)
+    assert problems(data, as_of=date(2999, 1, 15))[0].startswith(
+        "reviews.yaml:13:5: error: reviews[1].date: found 2999-01-16, after 2999-01-15, expected")
+    assert load_fleet(data, SHIPPED, as_of=date(2999, 1, 16)).reviews
 
 
 # --- sweeps: size and values --------------------------------------------------------------------------

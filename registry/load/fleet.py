@@ -37,7 +37,8 @@ def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir:
     `shipped_dir` holds the package's `services.yaml` and `policy.yaml` (default: `registry/data/`).
     `cache_dir` (optional) keeps each file's parsed and schema-checked form, keyed by its bytes, so an
     unchanged file is not parsed again; the others are parsed in `workers` processes. A review may not be
-    dated after `as_of` (default: `git.review_limit`, the registry's as-of date). Raises DataError
+    dated after `as_of` (default: the registry's as-of date, `git.as_of_date`) or today, whichever is
+    later (`git.review_limit`). Raises DataError
     listing every problem, sorted by file and line.
     """
     return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, cache_dir, workers, as_of).load()
@@ -234,7 +235,8 @@ class _Run:
                                                          for name in build.names(item)})
         self.problems += integrity.check_reviews(reviews)
         if reviews:
-            self.problems += integrity.future_reviews(reviews, self.as_of or git.review_limit(self.data_dir))
+            limit = git.review_limit(self.as_of or git.as_of_date(self.data_dir))
+            self.problems += integrity.future_reviews(reviews, limit)
         if policy is not None:
             self.problems += integrity.check_policy(policy, catalogue)
 

@@ -35,19 +35,14 @@ def as_of_date(data_dir: Path) -> date:
     epoch = os.environ.get("SOURCE_DATE_EPOCH")
     if epoch and epoch.strip().isdigit():
         return datetime.fromtimestamp(int(epoch), tz=timezone.utc).date()
-    return data_date(data_dir)
-
-
-def data_date(data_dir: Path) -> date:
-    """The day the data was last committed, else today: what `as_of_date` is when no SOURCE_DATE_EPOCH
-    sets it."""
     stamp = git_text(data_dir, "log", "-1", "--format=%ct", "--", ".", timeout=20) or ""
     if stamp.isdigit():
         return datetime.fromtimestamp(int(stamp), tz=timezone.utc).date()
     return datetime.now(tz=timezone.utc).date()
 
 
-def review_limit(data_dir: Path) -> date:
-    """The last day a review may be dated: the as-of date, or the day the data was last committed when
-    SOURCE_DATE_EPOCH sets an earlier as-of date (measurement ages pinned for a test or a rebuild)."""
-    return max(as_of_date(data_dir), data_date(data_dir))
+def review_limit(as_of: date) -> date:
+    """The last day a review may be dated: the registry's as-of date, or today when that is later (a
+    SOURCE_DATE_EPOCH or a history that pins the as-of date in the past does not make today's review
+    one from the future)."""
+    return max(as_of, datetime.now(tz=timezone.utc).date())

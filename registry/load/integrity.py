@@ -199,9 +199,10 @@ def check_reviews(reviews: list[Review]) -> list[Problem]:
 
 
 def future_reviews(reviews: list[Review], limit: date) -> list[Problem]:
-    """Reviews dated after `limit` (the registry's as-of date): a disposition cannot come before its day."""
-    return [problem(review, "date", f"{review.date.isoformat()}, after the registry's as-of date {limit.isoformat()}",
-                    f"a date on or before {limit.isoformat()} (a review cannot be dated in the future)")
+    """Reviews dated after `limit` (`git.review_limit`): a disposition cannot come before its day."""
+    return [problem(review, "date", f"{review.date.isoformat()}, after {limit.isoformat()}",
+                    f"a date on or before {limit.isoformat()} (the registry's as-of date, or today when that is "
+                    "later: a review cannot be dated in the future)")
             for review in reviews if review.date > limit]
 
 

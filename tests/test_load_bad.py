@@ -27,6 +27,11 @@ EXPECTED = {
     "alias_bomb": [
         'fleet.yaml:4:7: error: (file): found aliases (*name) that copy more than 10000 values, expected a document that does not multiply itself through aliases',
     ],
+    "array_too_wide": [
+        # 255 gaps of 2 m = 510 m; λ at 9500 MHz = 0.0316 m: 16 160 wavelengths (a pattern sampled that
+        # finely would take the machine's memory)
+        "antennas.yaml:57:5: error: models[5].geometry: found an antenna 510 m across, 1.616e+04 wavelengths at 9500 MHz (the top of its bands), expected at most 200 wavelengths across there (6.31 metres)",
+    ],
     "attenuation_not_increasing": [
         'cables.yaml:11:10: error: cables[0].attenuation_db_per_100m[2][0]: found 400 MHz after 1000 MHz, expected frequencies increasing down the table',
     ],
@@ -51,11 +56,25 @@ EXPECTED = {
     "duplicate_registration": [
         "aircraft/qx-fcb.yaml:3:1: error: registration: found 'QX-FCA' again (first on aircraft/qx-fca.yaml:3:1), expected each registration mark once, ignoring upper and lower case",
     ],
+    "element_length_implausible": [
+        # a slip of the exponent: plausible ranges carry the unit (common practice, no source: 60 m is
+        # longer than any wire antenna an aircraft carries)
+        'antennas.yaml:11:25: error: models[0].geometry.element_length_m: found 56.0e+3, expected a length between 0.001 and 60 metres',
+    ],
+    "element_longer_than_its_band": [
+        # λ = c / f = 299792458 / 137e6 = 2.188 m; 5.6 m is 2.56 λ (the slip of 0.56; a quarter-wave
+        # element is 0.25 λ by its name)
+        'antennas.yaml:11:7: error: models[0].geometry.element_length_m: found 5.6 m, 2.56 wavelengths at 137 MHz (the top of its bands), expected an element of at most 2 wavelengths there, 4.38 metres',
+    ],
     "empty_file": [
         'fleet.yaml:1:1: error: (file): found an empty file, expected a YAML mapping of keys and values',
     ],
+    "folded_wires_touch": [
+        # two wires whose centres are one diameter apart touch: no folded dipole (and no wire model) is left
+        "antennas.yaml:28:67: error: models[2].geometry.spacing_m: found 0.008 m, not beyond the element diameter 0.008 m, expected a spacing between the two wires' centres greater than their diameter",
+    ],
     "frequency_out_of_range": [
-        'cables.yaml:7:19: error: cables[0].max_freq_mhz: found 500000, expected a frequency from 0.001 to 300000 MHz',
+        'cables.yaml:7:19: error: cables[0].max_freq_mhz: found 500000, expected a frequency between 0.001 and 300000 MHz',
     ],
     "geometry_unknown_key": [
         'antennas.yaml:28:5: error: models[2].geometry.spacing_m: found nothing, expected a value (the key is required)',
@@ -64,11 +83,25 @@ EXPECTED = {
     "id_not_file_name": [
         "airframes/fx-20.yaml:2:1: error: id: found 'fx-21' in the file fx-20.yaml, expected the id to equal the file name ('fx-20')",
     ],
+    "location_outside_airframe": [
+        # fx-20: nose 0, tail 780, fin tip 640 + 120 + 190 tan 35° = 893.04; margin 78 (10 % of 780)
+        'aircraft/qx-fcb.yaml:9:16: error: installations[0].location.sta: found 3120, expected a station (STA) within the airframe fx-20, from -78 to 971.039 in (its outline with a margin of 10% of its length)',
+    ],
+    "many_mistakes": [
+        # one aircraft file, six kinds of mistakes, all in ONE run: a reference to another file, the schema,
+        # a duplicate key, an unknown catalogue id, an implausible number, a missing sweep file
+        "aircraft/qx-fcb.yaml:5:1: error: airframe: found 'fx-21', expected the id of a file in airframes/ (did you mean 'fx-20'?)",
+        'aircraft/qx-fcb.yaml:6:9: error: serial: found 2018, expected text (put it in quotes)',
+        "aircraft/qx-fcb.yaml:16:7: error: installations[0].feeder.length_m: found a second 'length_m' key (the first is on line 15), expected each key once",
+        "aircraft/qx-fcb.yaml:20:5: error: installations[1].antenna: found 'FXA-120-BLB', expected an antenna model id from antennas.yaml (did you mean 'FXA-120-BLD'?)",
+        'aircraft/qx-fcb.yaml:29:40: error: installations[2].feeder.length_m: found 1.0e+6, expected a length between 0.01 and 300 metres',
+        'aircraft/qx-fcb.yaml:36:34: error: installations[3].measured.sweep: found no file at aircraft/sweeps/qx-fcb-dme1.s1p, expected the sweep file this installation names',
+    ],
     "missing_required": [
         'fleet.yaml:2:1: error: operator: found nothing, expected a value (the key is required)',
     ],
     "negative_length": [
-        'aircraft/qx-fcb.yaml:13:17: error: installations[0].feeder.length_m: found -3.5, expected a positive number of metres',
+        'aircraft/qx-fcb.yaml:13:17: error: installations[0].feeder.length_m: found -3.5, expected a length between 0.01 and 300 metres',
     ],
     "non_utf8": [
         'aircraft/qx-fcb.yaml:4:11: error: (file): found the byte 0xB0, which is not UTF-8, expected UTF-8 text (save the file with UTF-8 encoding)',
@@ -81,6 +114,9 @@ EXPECTED = {
     ],
     "policy_unknown_service": [
         "policy.yaml:3:25: error: feeder_loss_budget_db.vhf_con: found 'vhf_con', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",
+    ],
+    "policy_limit_implausible": [
+        'policy.yaml:2:13: error: vswr_limit: found 1.0e+308, expected a number between 1.01 and 100 (VSWR, the ratio n:1)',
     ],
     "review_unknown_rule": [
         "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data (did you mean 'feeder-loss'?)",
@@ -116,7 +152,7 @@ EXPECTED = {
         "aircraft/qx-fcb.yaml:7:5: error: installations[0].service: found 'vhf_comm', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",
     ],
     "velocity_factor_above_one": [
-        'cables.yaml:6:22: error: cables[0].velocity_factor: found 1.3, expected a number greater than 0 and at most 1',
+        'cables.yaml:6:22: error: cables[0].velocity_factor: found 1.3, expected a number between 0.1 and 1',
     ],
     "wrong_type": [
         "aircraft/qx-fcb.yaml:13:17: error: installations[0].feeder.length_m: found 'twelve', expected a number",
@@ -125,7 +161,7 @@ EXPECTED = {
         'antennas.yaml:46:7: error: models[4].geometry.elements: found 2 driven elements, expected exactly one driven element',
     ],
     "zero_length": [
-        'aircraft/qx-fcb.yaml:13:17: error: installations[0].feeder.length_m: found 0, expected a positive number of metres',
+        'aircraft/qx-fcb.yaml:13:17: error: installations[0].feeder.length_m: found 0, expected a length between 0.01 and 300 metres',
     ],
     "zones_overlap": [
         "airframes/fx-20.yaml:37:5: error: zones[3].sta_from: found stations overlapping the zone 'fin and tail cone' (line 31), expected zones for the same surfaces that do not overlap",
@@ -180,6 +216,17 @@ def test_all_problems_of_a_run_come_together_sorted(tmp_path):
     lines, summary = problems(data)
     expected = EXPECTED["unknown_service"] + EXPECTED["frequency_out_of_range"] + EXPECTED["missing_required"]
     assert lines == sorted(expected)
+    assert summary == "3 problems in 3 files"
+
+
+def test_a_syntax_error_stops_only_its_own_file(tmp_path):
+    # fleet.yaml cannot be read at all; the aircraft file's duplicate key and the cable's range are still
+    # reported in the same run
+    data = make_registry(tmp_path)
+    for flaw in ("syntax_error", "duplicate_key", "velocity_factor_above_one"):
+        shutil.copytree(FIXTURES / "bad" / flaw, data, dirs_exist_ok=True)
+    lines, summary = problems(data)
+    assert lines == sorted(EXPECTED["syntax_error"] + EXPECTED["duplicate_key"] + EXPECTED["velocity_factor_above_one"])
     assert summary == "3 problems in 3 files"
 
 

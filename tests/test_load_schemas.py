@@ -66,7 +66,7 @@ def test_expected_wording_for_number_ranges():
     assert number_words({"type": "number", "exclusiveMinimum": 0}, ("feeder", "length_m")) == \
         "a positive number of metres"
     assert number_words({"type": "number", "minimum": 0.001, "maximum": 300000}, ("bands_mhz", 0, 1)) == \
-        "a frequency from 0.001 to 300000 MHz"
+        "a frequency between 0.001 and 300000 MHz"
     assert number_words({"type": "integer", "minimum": 2}, ("geometry", "element_count")) == \
         "a whole number of at least 2"
     assert unit_of(("cables", 0, "attenuation_db_per_100ft", 1, 1)) == "dB per 100 ft"

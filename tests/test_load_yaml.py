@@ -15,9 +15,11 @@ def read(tmp_path: Path, text: str | bytes):
     return read_yaml(path, "doc.yaml")
 
 
-def messages(tmp_path: Path, text: str | bytes) -> list[str]:
+def messages(tmp_path: Path, text: str | bytes, read_on: bool = False) -> list[str]:
+    """The problems of a document; `read_on`: a problem in one value, after which the rest of the file is
+    kept (and validated by the loader), else a problem that stops the file."""
     doc, problems = read(tmp_path, text)
-    assert doc is None
+    assert (doc is not None) is read_on
     return [str(problem) for problem in problems]
 
 
@@ -49,14 +51,19 @@ def test_merge_keys_with_explicit_keys_winning(tmp_path):
 
 
 def test_merge_key_needs_a_mapping(tmp_path):
-    assert messages(tmp_path, "thing:\n  <<: 5\n  y: 3\n") == [
+    assert messages(tmp_path, "thing:\n  <<: 5\n  y: 3\n", read_on=True) == [
         "doc.yaml:2:3: error: thing.<<: found a merge key (<<) with a value that is not a mapping, "
         "expected an alias of a mapping, e.g. <<: *common"]
 
 
 def test_duplicate_keys_are_errors_even_in_flow_mappings(tmp_path):
-    assert messages(tmp_path, "a: {x: 1, x: 2}\n") == [
+    assert messages(tmp_path, "a: {x: 1, x: 2}\n", read_on=True) == [
         "doc.yaml:1:11: error: a.x: found a second 'x' key (the first is on line 1), expected each key once"]
+
+
+def test_a_duplicate_key_keeps_the_first_and_reads_on(tmp_path):
+    doc, problems = read(tmp_path, "a: {x: 1, x: 2}\nb: 3\n")
+    assert doc.data == {"a": {"x": 1}, "b": 3} and len(problems) == 1
 
 
 def test_alias_that_contains_itself(tmp_path):
@@ -94,14 +101,14 @@ def test_nesting_depth_is_limited(tmp_path):
 
 
 def test_tags_are_refused(tmp_path):
-    assert messages(tmp_path, "a: !!python/object:os.system x\n") == [
+    assert messages(tmp_path, "a: !!python/object:os.system x\n", read_on=True) == [
         "doc.yaml:1:4: error: a: found the tag !!python/object:os.system, expected plain YAML without tags"]
-    assert messages(tmp_path, "a: !!int abc\n") == [
+    assert messages(tmp_path, "a: !!int abc\n", read_on=True) == [
         "doc.yaml:1:4: error: a: found 'abc' marked !!int, expected a value that can be read as !!int"]
 
 
 def test_non_finite_numbers_are_refused(tmp_path):
-    assert messages(tmp_path, "a: .nan\nb: -.inf\n") == [
+    assert messages(tmp_path, "a: .nan\nb: -.inf\n", read_on=True) == [
         "doc.yaml:1:4: error: a: found .nan, expected a finite number",
         "doc.yaml:2:4: error: b: found -.inf, expected a finite number"]
 

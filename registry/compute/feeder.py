@@ -36,14 +36,14 @@ def cable_result(cable: Cable) -> CableResult:
     fit_mhz = np.geomspace(table_mhz.min(), max(table_mhz.max(), cable.max_freq_mhz), 60)
     src = where(cable, "attenuation_db_per_100m" if cable.declared_unit == "db_per_100m"
                 else "attenuation_db_per_100ft")
-    figures = (
+    figures = tuple(finite([
         Figure(FK.CABLE_A, "Conductor term a", fit.a_db_per_100m_sqrt_hz * math.sqrt(MHZ), "dB/100 m/√MHz",
                "α(f) = a·√f + b·f", source=FEEDER_SOURCE, src=src),
         Figure(FK.CABLE_B, "Dielectric term b", fit.b_db_per_100m_hz * MHZ, "dB/100 m/MHz",
                "α(f) = a·√f + b·f", source=FEEDER_SOURCE, src=src),
         Figure(FK.CABLE_RMS_RESIDUAL, "Fit residual, RMS", fit.rms_residual_db_per_100m, "dB/100 m", src=src),
         Figure(FK.CABLE_MAX_RESIDUAL, "Fit residual, largest", fit.max_residual_db_per_100m, "dB/100 m", src=src),
-    )
+    ]))
     return CableResult(
         cable=cable.id,
         table=Curve(table_mhz, np.array([loss for _, loss in cable.attenuation_db_per_100m]),
@@ -62,7 +62,7 @@ def vswr_for_mismatch(figures: list[Figure], model: AntennaModel) -> tuple[float
     by_key = {figure.key: figure for figure in figures}
     for key, label in ((FK.SWEEP_MAX_VSWR, "measured sweep, worst in band"), (FK.MEASURED_VSWR, "measured"),
                        (FK.VSWR_MAX_IN_BAND, "modelled, worst in band")):
-        if key in by_key and isinstance(by_key[key].value, float):
+        if key in by_key and isinstance(by_key[key].value, float) and math.isfinite(by_key[key].value):
             return by_key[key].value, label
     return model.rated_vswr, "rated (no measurement or model)"
 
@@ -70,6 +70,12 @@ def vswr_for_mismatch(figures: list[Figure], model: AntennaModel) -> tuple[float
 def feeder_figures(installation: Installation, model: AntennaModel, service: Service, cable: Cable,
                    policy: Policy, figures_so_far: list[Figure]) -> list[Figure]:
     """Feeder loss at the highest frequency of the service: cable, connectors, adapters, mismatch."""
+    with np.errstate(all="ignore"):  # a value that is not finite is said so on its figure (`finite`)
+        return finite(_feeder_figures(installation, model, service, cable, policy, figures_so_far))
+
+
+def _feeder_figures(installation: Installation, model: AntennaModel, service: Service, cable: Cable,
+                    policy: Policy, figures_so_far: list[Figure]) -> list[Figure]:
     run = installation.feeder
     freq_mhz = max(high for _, high in service.bands_mhz)
     fit = attenuation_fit(cable.attenuation_db_per_100m)
@@ -108,6 +114,21 @@ def feeder_figures(installation: Installation, model: AntennaModel, service: Ser
     ]
 
 
+_NOT_FINITE = {
+    FK.FEEDER_RETURN_LOSS_DB: "a perfect match (VSWR 1.0) reflects nothing, so the return loss has no finite value",
+    FK.SWEEP_MAX_VSWR: "the sweep reflects everything (|S11| of 1 or more) in the band: no finite VSWR",
+}
+
+
+def finite(figures: list[Figure]) -> list[Figure]:
+    """The figures with every number that is not finite (inf, NaN) replaced by words saying why: no such
+    number reaches a page, the record or the terminal."""
+    return [figure._replace(value="not available: " + _NOT_FINITE.get(
+        figure.key, "the inputs give no finite value (check the numbers this figure is made from)"))
+            if isinstance(figure.value, float) and not math.isfinite(figure.value) else figure
+            for figure in figures]
+
+
 # --- measurements ---------------------------------------------------------------------------------------
 
 
@@ -115,6 +136,13 @@ def measured_figures(installation: Installation, service: Service, cable: Cable,
                      as_of: date, sweeps: Mapping[str, str]) -> tuple[list[Figure], Curve | None]:
     """Measured VSWR, its age, and what a measured sweep shows across the service band (`sweeps`: each
     sweep file's text by path, as the load stage read it)."""
+    with np.errstate(all="ignore"):  # a value that is not finite is said so on its figure (`finite`)
+        figures, curve = _measured_figures(installation, service, cable, as_of, sweeps)
+    return finite(figures), curve
+
+
+def _measured_figures(installation: Installation, service: Service, cable: Cable, as_of: date,
+                      sweeps: Mapping[str, str]) -> tuple[list[Figure], Curve | None]:
     measured = installation.measured
     if measured is None:
         return [], None
@@ -137,7 +165,7 @@ def measured_figures(installation: Installation, service: Service, cable: Cable,
         worst = max((sweep.band_summary(data, low * MHZ, high * MHZ) for low, high in service.bands_mhz
                      if np.any((data.freqs_hz >= low * MHZ) & (data.freqs_hz <= high * MHZ))),
                     key=lambda summary: summary.max_vswr, default=None)
-    except (OSError, ValueError) as error:
+    except (OSError, ValueError, ArithmeticError) as error:
         figures.append(Figure(FK.SWEEP_ERROR, "Measured sweep could not be used", str(error), "", src=src))
         return figures, None
     if worst is None:
@@ -164,6 +192,7 @@ def measured_figures(installation: Installation, service: Service, cable: Cable,
         figures.append(Figure(FK.SWEEP_FAULT_DISTANCE_M, "Largest reflection along the feeder at",
                               f"not available: {error}", "", src=src))
     vswr_curve = mismatch.vswr_from_gamma(np.abs(data.s11))
-    return figures, Curve(data.freqs_hz / MHZ, vswr_curve, "Frequency (MHz)", "VSWR")
+    shown = np.isfinite(vswr_curve)  # a point of total reflection has no VSWR to draw
+    return figures, Curve(data.freqs_hz[shown] / MHZ, vswr_curve[shown], "Frequency (MHz)", "VSWR")
 
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from datetime import date
 from pathlib import Path
-from typing import Any
+from typing import Any, Callable
 
 from registry.core.errors import Problem, Src, parse_path
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, FrozenMap,
@@ -136,10 +136,15 @@ def services(doc: Doc, shipped: bool) -> list[Service]:
     return services
 
 
-def aircraft(doc: Doc) -> tuple[Aircraft, list[Problem]]:
-    """An aircraft file's model, and the problems found in building it (positions used twice)."""
+def aircraft(doc: Doc, keep: Callable[[tuple[str | int, ...]], bool] = lambda parts: True
+             ) -> tuple[Aircraft, list[Problem]]:
+    """An aircraft file's model, and the problems found in building it (positions used twice).
+
+    `keep` says which installations and modifications to build (by their path, `("installations", 2)`):
+    a file with problems in some of them is built from the rest, so their references are checked too."""
     data = doc.data
-    installations = [installation(doc, n, item) for n, item in enumerate(data["installations"])]
+    installations = [installation(doc, n, item) for n, item in enumerate(data["installations"])
+                     if keep(("installations", n))]
     problems = integrity.duplicates(installations, "position", "position in this aircraft")
     return Aircraft(
         **doc.at(),
@@ -150,7 +155,7 @@ def aircraft(doc: Doc) -> tuple[Aircraft, list[Problem]]:
         modifications=tuple(
             Modification(**doc.at("modifications", n), ref=item["ref"], date=iso_date(item["date"]),
                          summary=item["summary"])
-            for n, item in enumerate(data.get("modifications", []))),
+            for n, item in enumerate(data.get("modifications", [])) if keep(("modifications", n))),
         installations=FrozenMap((item.position, item) for item in installations),
     ), problems
 

@@ -10,14 +10,17 @@ The package's service table and default policy (`registry/data/`) are read the s
 """
 from __future__ import annotations
 
+from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry.load import build, inputs, integrity
+from registry.load import build, extent, git, inputs, integrity, partial, plausible
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
-from registry.core.model import POLICY_KEYS, Aircraft, Fleet, FrozenMap, IsolationRule, Policy, Service
+from registry.core.model import (POLICY_KEYS, Aircraft, Airframe, AntennaModel, Cable, Fleet, FrozenMap, Installation,
+                                 IsolationRule, Policy, Review, Service)
+from registry.load.partial import AircraftRead
 from registry.load.yamlsource import YamlDoc, read_yaml
 
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
@@ -25,15 +28,17 @@ _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "source
 
 
 def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir: Path | None = None,
-               workers: int = 1) -> Fleet:
+               workers: int = 1, as_of: date | None = None) -> Fleet:
     """Read, validate and cross-check the registry in `data_dir`.
 
     `shipped_dir` holds the package's `services.yaml` and `policy.yaml` (default: `registry/data/`).
     `cache_dir` (optional) keeps each file's parsed and schema-checked form, keyed by its bytes, so an
-    unchanged file is not parsed again; the others are parsed in `workers` processes. Raises DataError
+    unchanged file is not parsed again; the others are parsed in `workers` processes. A review may not be
+    dated after `as_of` (default: the registry's as-of date, `git.as_of_date`) or today, whichever is
+    later (`git.review_limit`). Raises DataError
     listing every problem, sorted by file and line.
     """
-    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, cache_dir, workers).load()
+    return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, cache_dir, workers, as_of).load()
 
 
 Parsed = tuple[YamlDoc | None, list[Problem]]
@@ -59,40 +64,63 @@ def _file_key(kind: str, file: Path) -> str | None:
         return None
 
 
-def _read_aircraft(file: Path) -> tuple[Aircraft | None, list[Problem]]:
-    """An aircraft file read, checked against its schema and built into its model; with its problems."""
+def _read_aircraft(file: Path) -> AircraftRead:
+    """An aircraft file read, checked against its schema and built into its model; with its problems
+    (and, when it has some, what could be built of it: `partial.read_on`)."""
     doc, problems = _parse_fresh(file, "aircraft")
-    if doc is None or problems:
-        return None, problems
-    return build.aircraft(build.Doc(doc, file))
+    if doc is None:
+        return AircraftRead(None, problems)
+    if problems:
+        return partial.read_on(build.Doc(doc, file), problems)
+    return AircraftRead(*build.aircraft(build.Doc(doc, file)))
 
 
 def _parse_fresh(file: Path, kind: str) -> Parsed:
     doc, problems = read_yaml(file, str(file))
     if doc is not None:
-        problems = schemacheck.check(doc, kind)
+        reported = {problem.field for problem in problems}  # a value the reader refused is not judged again
+        problems = problems + [problem for problem in schemacheck.check(doc, kind) if problem.field not in reported]
     return doc, problems
 
 
 class _Run:
-    def __init__(self, data_dir: Path, shipped_dir: Path, cache_dir: Path | None, workers: int = 1):
+    def __init__(self, data_dir: Path, shipped_dir: Path, cache_dir: Path | None, workers: int = 1,
+                 as_of: date | None = None):
         self.data_dir = data_dir
+        self.as_of = as_of
         self.shipped_dir = shipped_dir
         self.cache = DiskCache(cache_dir, "files", Parsed)
-        self.models = DiskCache(cache_dir, "models", tuple[Aircraft | None, list[Problem]])
+        self.models = DiskCache(cache_dir, "models", AircraftRead)
         self.workers = workers
         self.problems: list[Problem] = []
+        self.partial: list[Aircraft] = []  # built from files with problems, for checking only
+        self.loose: list[Installation] = []
 
     def problem(self, file: Path, found: str, expected: str) -> None:
         self.problems.append(Problem.at(Src(str(file), 1, 1), FILE_FIELD, found, expected))
 
     def read(self, file: Path, kind: str, required: bool = True) -> build.Doc | None:
         """The file read and validated, or None (its problems recorded; a missing required file is one)."""
-        if not file.is_file():
+        if not file.is_file() and not file.is_symlink():
             if required:
                 self.problem(file, "no such file", f"{file.name} ({kind} file, required)")
             return None
+        if file.parent != self.shipped_dir and not self.inside(file):
+            return None
         return self.accept(file, *parse(file, kind, self.cache))
+
+    def inside(self, file: Path) -> bool:
+        """Whether `file`, its links followed, is a regular file inside the registry folder; a problem if
+        not (nothing of it is read, so nothing of it is shown)."""
+        target = file.resolve()
+        if not target.is_relative_to(self.data_dir.resolve()):
+            self.problem(file, "a link to a file outside the registry folder",
+                         f"a file inside {self.data_dir} (links are followed, and must stay inside)")
+            return False
+        if not target.is_file():
+            self.problem(file, "something that is not a regular file", "a YAML file")
+            return False
+        return True
 
     def accept(self, file: Path, doc: YamlDoc | None, problems: list[Problem]) -> build.Doc | None:
         self.problems.extend(problems)
@@ -101,7 +129,7 @@ class _Run:
     def folder_files(self, name: str) -> list[Path]:
         """The .yaml files of a folder of the registry, sorted; a stray .yml or no file at all is a problem."""
         folder = self.data_dir / name
-        files = sorted(folder.glob("*.yaml")) if folder.is_dir() else []
+        files = sorted(file for file in folder.glob("*.yaml") if self.inside(file)) if folder.is_dir() else []
         for stray in sorted(folder.glob("*.yml")) if folder.is_dir() else []:
             self.problem(stray, "a file ending in .yml", "the ending .yaml (other endings are not read)")
         if not files:
@@ -123,10 +151,12 @@ class _Run:
         keys = [_file_key("aircraft-model", file) if self.models.folder is not None else None for file in files]
         built = cached_map(_read_aircraft, files, keys, self.models, self.workers)
         models = []
-        for model, problems in built:
-            self.problems += problems
-            if model is not None:
-                models.append(model)
+        for read in built:
+            self.problems += read.problems
+            if read.model is not None:
+                models.append(read.model)
+            self.partial += [read.partial] if read.partial is not None else []
+            self.loose += read.loose
         return models
 
     def load(self) -> Fleet:
@@ -154,21 +184,7 @@ class _Run:
         reviews = [build.review(reviews_doc, n, item) for n, item in enumerate(reviews_doc.data["reviews"])] \
             if reviews_doc else []
 
-        catalogue = integrity.Catalogue(
-            # an id that differs from its file name is reported once, not again at each reference to it
-            airframes=None if None in airframe_docs else {name for item in airframes for name in build.names(item)},
-            antennas=None if antennas is None else {item.id for item in antennas},
-            cables=None if cables is None else {item.id for item in cables},
-            services=None if services is None else {item.id for item in services},
-        )
-        self.problems += integrity.check_airframes(airframes)
-        self.problems += integrity.check_antennas(antennas or [])
-        self.problems += integrity.check_cables(cables or [])
-        self.problems += integrity.check_services(services or [])
-        self.problems += integrity.check_aircraft(aircraft, catalogue, self.data_dir)
-        self.problems += integrity.check_reviews(reviews)
-        if policy is not None:
-            self.problems += integrity.check_policy(policy, catalogue)
+        self.cross_check(airframe_docs, airframes, aircraft, antennas, cables, services, policy, reviews)
         if self.problems:
             raise DataError(self.problems)
         sweeps = inputs.read_sweeps(inputs.sweep_files(aircraft))
@@ -189,6 +205,37 @@ class _Run:
             sweeps=FrozenMap(sweeps),
             input_keys=FrozenMap(keys),
         )
+
+
+    def cross_check(self, airframe_docs: list[build.Doc | None], airframes: list[Airframe], aircraft: list[Aircraft],
+                    antennas: list[AntennaModel] | None, cables: list[Cable] | None, services: list[Service] | None,
+                    policy: Policy | None, reviews: list[Review]) -> None:
+        """What a schema cannot check, over the files that passed theirs (and the sound parts of aircraft
+        files that did not: `partial`)."""
+        catalogue = integrity.Catalogue(
+            # an id that differs from its file name is reported once, not again at each reference to it
+            airframes=None if None in airframe_docs else {name for item in airframes for name in build.names(item)},
+            antennas=None if antennas is None else {item.id for item in antennas},
+            cables=None if cables is None else {item.id for item in cables},
+            services=None if services is None else {item.id for item in services},
+        )
+        self.problems += integrity.check_airframes(airframes)
+        self.problems += integrity.check_antennas(antennas or [])
+        self.problems += plausible.check_antennas(antennas or [])
+        self.problems += integrity.check_cables(cables or [])
+        self.problems += integrity.check_services(services or [])
+        checked = aircraft + self.partial
+        self.problems += integrity.check_aircraft(checked, catalogue, self.data_dir)
+        for installation in self.loose:
+            self.problems += integrity.check_installation(installation, catalogue, self.data_dir)
+        self.problems += extent.check_locations(checked, {name: item for item in airframes
+                                                         for name in build.names(item)})
+        self.problems += integrity.check_reviews(reviews)
+        if reviews:
+            limit = git.review_limit(self.as_of or git.as_of_date(self.data_dir))
+            self.problems += integrity.future_reviews(reviews, limit)
+        if policy is not None:
+            self.problems += integrity.check_policy(policy, catalogue)
 
     def services(self, shipped: build.Doc | None, fleet: build.Doc | None) -> list[Service] | None:
         """The shipped table with the fleet's entries added or replacing those of the same id."""

@@ -39,3 +39,10 @@ def as_of_date(data_dir: Path) -> date:
     if stamp.isdigit():
         return datetime.fromtimestamp(int(stamp), tz=timezone.utc).date()
     return datetime.now(tz=timezone.utc).date()
+
+
+def review_limit(as_of: date) -> date:
+    """The last day a review may be dated: the registry's as-of date, or today when that is later (a
+    SOURCE_DATE_EPOCH or a history that pins the as-of date in the past does not make today's review
+    one from the future)."""
+    return max(as_of, datetime.now(tz=timezone.utc).date())

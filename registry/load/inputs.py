@@ -34,12 +34,19 @@ def read_sweeps(files: list[Path]) -> dict[str, str]:
 def shared_key(data_dir: Path, shipped_dir: Path) -> str:
     """Key of every file an aircraft's figures depend on besides its own and its sweeps."""
     files = sorted(data_dir.glob("*.yaml")) + sorted((data_dir / "airframes").glob("*.yaml"))
-    files += sorted(shipped_dir.glob("*.yaml"))
+    files = [file for file in files if _regular_inside(file, data_dir)] + sorted(shipped_dir.glob("*.yaml"))
     parts: list[str | bytes] = [str(data_dir)]
     for file in files:
         if file.name != "reviews.yaml":
             parts += [str(file), file.read_bytes()]
     return key_of(*parts)
+
+
+def _regular_inside(file: Path, data_dir: Path) -> bool:
+    """A regular file inside the registry once links are followed: a stray link to a device or to a file
+    outside (which the loader does not read) is not read for the key either."""
+    target = file.resolve()
+    return target.is_file() and target.is_relative_to(data_dir.resolve())
 
 
 def aircraft_keys(aircraft: list[Aircraft], shared: str, sweeps: dict[str, str]) -> dict[str, str]:

@@ -7,6 +7,7 @@ Each problem points at the line of the value concerned, through the model's `whe
 from __future__ import annotations
 
 from dataclasses import dataclass
+from datetime import date
 from pathlib import Path
 from typing import Iterable
 
@@ -14,6 +15,7 @@ from registry.core.errors import Problem
 from registry.core.rulebook import RULES
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
                             Review, Service, Sourced)
+from registry.load import sweepcheck
 from registry.load.schemacheck import suggest
 
 
@@ -104,6 +106,10 @@ def check_antennas(models: list[AntennaModel]) -> list[Problem]:
             if len(set(positions)) != len(positions):
                 problems.append(problem(model, "geometry.elements", "two elements at the same position_m",
                                         "each element at its own position along the boom"))
+        if model.kind == "folded_dipole" and not geometry["spacing_m"] > geometry["element_diameter_m"]:
+            problems.append(problem(model, "geometry.spacing_m", f"{geometry['spacing_m']:g} m, not beyond the "
+                                    f"element diameter {geometry['element_diameter_m']:g} m",
+                                    "a spacing between the two wires' centres greater than their diameter"))
         amplitudes = geometry.get("amplitudes")
         if model.kind == "linear_array" and amplitudes is not None and len(amplitudes) != geometry["element_count"]:
             problems.append(problem(model, "geometry.amplitudes",
@@ -169,6 +175,8 @@ def check_installation(item: Installation, known: Catalogue, data_dir: Path) -> 
         elif not sweep.is_file():
             problems.append(problem(item, "measured.sweep", f"no file at {sweep}",
                                     "the sweep file this installation names"))
+        elif (trouble := sweepcheck.sweep_trouble(sweep)) is not None:
+            problems.append(problem(item, "measured.sweep", *trouble))
     return problems
 
 
@@ -188,6 +196,14 @@ def check_reviews(reviews: list[Review]) -> list[Problem]:
             problems.append(problem(review, "discrepancy", f"the positions '{'+'.join(positions)}'",
                                     f"two different positions in sorted order ('{'+'.join(sorted(positions))}')"))
     return problems
+
+
+def future_reviews(reviews: list[Review], limit: date) -> list[Problem]:
+    """Reviews dated after `limit` (`git.review_limit`): a disposition cannot come before its day."""
+    return [problem(review, "date", f"{review.date.isoformat()}, after {limit.isoformat()}",
+                    f"a date on or before {limit.isoformat()} (the registry's as-of date, or today when that is "
+                    "later: a review cannot be dated in the future)")
+            for review in reviews if review.date > limit]
 
 
 def duplicate_pairs(rules: list[IsolationRule]) -> list[Problem]:

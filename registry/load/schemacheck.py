@@ -32,8 +32,13 @@ _TYPE_WORDS = {
 _UNIT_SUFFIXES = (
     ("_db_per_100m", "dB per 100 m"), ("_db_per_100ft", "dB per 100 ft"), ("_mhz", "MHz"),
     ("_wavelengths", "wavelengths"), ("_days", "days"), ("_pct", "per cent"), ("_deg", "degrees"),
-    ("_ohm", "ohms"), ("_db", "dB"), ("_m", "metres"),
+    ("_ohm", "ohms"), ("_db", "dB"), ("_m", "metres"), ("vswr", "(VSWR, the ratio n:1)"),
+    ("vswr_limit", "(VSWR, the ratio n:1)"), ("sta", "in the airframe's coord_unit"),
+    ("bl", "in the airframe's coord_unit"), ("wl", "in the airframe's coord_unit"),
 )
+_UNIT_NOUNS = {"metres": "a length", "MHz": "a frequency", "ohms": "an impedance", "degrees": "an angle",
+               "in the airframe's coord_unit": "a coordinate"}
+_WHOLE_FILE = {"str": "a file of plain text, not a YAML mapping", "list": "a list, not a mapping"}
 _NUMBER_WITH_UNIT = re.compile(r"\s*[-+]?(\d+\.?\d*|\.\d+)\s*[A-Za-z%]")
 _EXPONENT_WITHOUT_DOT = re.compile(r"[-+]?\d+[eE][-+]?\d+")
 
@@ -82,6 +87,10 @@ def unit_of(parts: tuple[str | int, ...]) -> str:
     names = [part for part in parts if isinstance(part, str)]
     if not names:
         return ""
+    if "vswr_limit_by_service" in names:
+        return unit_of(("vswr_limit",))
+    if names[-1] in ("sta_from", "sta_to"):
+        return unit_of(("sta",))
     for suffix, unit in _UNIT_SUFFIXES:
         if names[-1].endswith(suffix):
             return unit
@@ -96,8 +105,8 @@ def number_words(schema: dict[str, Any], parts: tuple[str | int, ...]) -> str:
     high, high_open = schema.get("maximum"), schema.get("exclusiveMaximum")
     after = f" {unit}" if unit else ""
     if low is not None and high is not None:
-        noun = "a frequency" if unit == "MHz" else noun
-        return f"{noun} from {low:g} to {high:g}{after}"
+        noun = noun if schema.get("type") == "integer" else _UNIT_NOUNS.get(unit, noun)
+        return f"{noun} between {low:g} and {high:g}{after}"
     if low_open == 0 and high is None and high_open is None:
         return f"a positive {noun.removeprefix('a ')}" + (f" of {unit}" if unit else "")
     bounds = []
@@ -154,7 +163,8 @@ def _problems(error: ValidationError, doc: YamlDoc) -> list[Problem]:
 def _found_expected(error: ValidationError, parts: tuple, text: str | None, schema: dict) -> tuple[str, str]:
     """What was found and what was expected, in words, for an error on one value."""
     instance, kind = error.instance, error.validator
-    found = describe(instance, text)
+    # a whole file that is not a mapping is likely not registry YAML at all: say what it is, never what it says
+    found = describe(instance, text) if parts else _WHOLE_FILE.get(type(instance).__name__, "a single value")
     if kind == "type":
         expected = _type_words(error.validator_value, instance, text)
     elif kind == "enum":

@@ -79,7 +79,10 @@ class YamlDoc:
 
 
 def read_yaml(file: Path, shown: str) -> tuple[YamlDoc | None, list[Problem]]:
-    """Read `file` (shown in messages as `shown`): the document, or None and the problems found."""
+    """Read `file` (shown in messages as `shown`): the document and the problems found. The document is
+    None when the file cannot be read as a whole (syntax, encoding, size, aliases, an empty file); after
+    a problem in one value (a duplicate key, a tag, a number that is not finite) it is the rest of the
+    file, to be validated on."""
     top = Src(shown, 1, 1)
     try:
         with open(file, "rb") as stream:
@@ -115,11 +118,12 @@ def read_yaml(file: Path, shown: str) -> tuple[YamlDoc | None, list[Problem]]:
             data = builder.value(root, (), None)
         except _Refused as refused:
             return None, [refused.problem]
-    if builder.problems:
-        return None, builder.problems
     if data is None:
-        return None, [Problem.at(top, FILE_FIELD, "an empty file", "a YAML mapping of keys and values")]
-    return YamlDoc(shown, data, builder.index), []
+        return None, builder.problems or [Problem.at(top, FILE_FIELD, "an empty file",
+                                                     "a YAML mapping of keys and values")]
+    # a duplicate key, a tag or a number that is not finite stops nothing else: the document is read on
+    # (the first of two keys kept, the value with a tag empty) and validated, so a run reports them all
+    return YamlDoc(shown, data, builder.index), builder.problems
 
 
 def _decode(raw: bytes, shown: str) -> tuple[str, Problem | None]:

@@ -61,7 +61,8 @@ class WireLayout:
     """Elements of a wire antenna: lengths (m) along z, x positions (m), one radius (m), the fed element.
 
     For a monopole the layout is its image dipole; for a folded dipole the equivalent dipole of its antenna
-    mode (see impedance.py). end_cap_m: how much each free end is lengthened (END_CAP_RADII radii).
+    mode (see impedance.py). end_cap_m: how much each free end is lengthened (END_CAP_RADII radii);
+    conductor_radius_m: the real conductors' radius when radius_m is an equivalent one (folded dipole).
     """
 
     kind: str
@@ -70,6 +71,7 @@ class WireLayout:
     radius_m: float
     driven: int
     end_cap_m: float = 0.0
+    conductor_radius_m: float | None = None
 
 
 @dataclass(frozen=True)
@@ -109,7 +111,7 @@ def wire_layout(kind: str, g: dict) -> WireLayout:
         if not s > 2 * a:
             raise Unmodellable(f"folded dipole: the conductors touch (spacing {s:g} m is not more than the "
                                f"wire diameter {2 * a:g} m)")
-        return WireLayout(kind, (g["length_m"],), (0.0,), math.sqrt(a * s), 0)
+        return WireLayout(kind, (g["length_m"],), (0.0,), math.sqrt(a * s), 0, 0.0, a)
     if kind == "yagi":
         lengths, positions = g["element_lengths_m"], g["element_positions_m"]
         if len(lengths) != len(positions) or len(lengths) < 2:
@@ -128,7 +130,7 @@ def wire_layout(kind: str, g: dict) -> WireLayout:
 def check_modellable(layout: WireLayout, freq_low_hz: float, freq_high_hz: float) -> None:
     """Raise Unmodellable when the thin-wire model does not apply between the two frequencies (Hz)."""
     name = layout.kind.replace("_", " ")
-    a = layout.radius_m
+    a = layout.radius_m if layout.conductor_radius_m is None else layout.conductor_radius_m
     lam_high = C_M_PER_S / freq_high_hz
     if a > MAX_RADIUS_WAVELENGTHS * lam_high:
         raise Unmodellable(

@@ -48,7 +48,27 @@ def main():
     print(f"{'5-element Yagi, 41 frequencies':40s} {dt * 1e3:8.1f} ms")
     dt = best_of(lambda: solve_wire_antenna("dipole", CASES["dipole"], freqs), repeats=3)
     print(f"{'dipole, 41 frequencies':40s} {dt * 1e3:8.1f} ms")
+    convergence_cost()
     demo_fleet()
+
+
+def convergence_cost():
+    """Cost of refining the segmentation: a cold solve (refinement included) against a warm one (counts cached)."""
+    from registry.physics import segmentation
+
+    for kind in ("dipole", "folded_dipole", "yagi"):
+        segmentation.converged_segments.cache_clear()
+        t = time.perf_counter()
+        sweep = solve_wire_antenna(kind, CASES[kind], [F])
+        cold = time.perf_counter() - t
+        warm = best_of(lambda: solve_wire_antenna(kind, CASES[kind], [F]), repeats=3)
+        seg = sweep.segmentation
+        print(f"{'impedance at one freq, cold/warm: ' + kind:40s} {cold * 1e3:8.1f} / {warm * 1e3:.1f} ms "
+              f"segments {sweep.segments} after {seg.refinements} refinement(s), last change {seg.change:.2%}")
+    segmentation.converged_segments.cache_clear()
+    t = time.perf_counter()
+    pattern_for_kind("yagi", CASES["yagi"], F)
+    print(f"{'Yagi pattern, cold segmentation':40s} {(time.perf_counter() - t) * 1e3:8.1f} ms")
 
 
 def demo_fleet():

@@ -47,7 +47,7 @@ class PatternMetrics:
 
     peak_directivity_dbi: 10 log10(4 pi U_max / P_rad). peak_theta_deg, peak_phi_deg: a direction of
     the maximum. hpbw_e_deg, hpbw_h_deg: half-power beamwidths in the E- and H-plane cuts (nan when a cut
-    stays within 3 dB all round). front_to_back_db: U(peak)/U(opposite direction), at most -FLOOR_DB.
+    stays above half power, 10 log10(0.5) dB, all round). front_to_back_db: U(peak)/U(opposite direction), at most -FLOOR_DB.
     first_sidelobe_db: the higher first side lobe of the two cuts, relative to the peak (negative).
     azimuth_ripple_db: max - min over the horizontal (xy) cut, for kinds meant to be omnidirectional.
     """
@@ -69,6 +69,8 @@ class PatternResult:
     theta_deg (T,), phi_deg (P,), gain_dbi (T, P) directivity pattern floored FLOOR_DB below the peak.
     e_plane / h_plane: names of the cut planes ('xz', 'yz', 'xy'); *_angle_deg (M,) the angle in the
     plane (see metrics.plane_directions), *_db (M,) normalised level (0 dB at the pattern's peak).
+    segments: segment count on each element when the pattern comes from method-of-moments currents
+    (yagi), else ().
     """
 
     kind: str
@@ -83,14 +85,22 @@ class PatternResult:
     h_angle_deg: np.ndarray
     h_db: np.ndarray
     metrics: PatternMetrics
+    segments: tuple[int, ...] = ()
 
 
 def _yagi_power_fn(geometry, freq_hz):
+    """Power function of a Yagi from its MoM currents, with the segment counts refined at freq_hz."""
     from registry.physics.impedance import solve_wire_antenna
     from registry.physics.wire import far_field_theta
 
-    sol = solve_wire_antenna("yagi", geometry, [freq_hz]).solution
-    return lambda th, ph: np.abs(far_field_theta(sol, 0, th, ph)) ** 2
+    sweep = solve_wire_antenna("yagi", geometry, [freq_hz], design_hz=freq_hz)
+    sol = sweep.solution
+
+    def fn(th, ph):
+        return np.abs(far_field_theta(sol, 0, th, ph)) ** 2
+
+    fn.segments = sweep.segments
+    return fn
 
 
 def power_function(kind: str, geometry, freq_hz: float):
@@ -211,6 +221,7 @@ def pattern_for_kind(kind: str, geometry, freq_hz: float, step_deg: float = 1.0)
         h_angle_deg=angle,
         h_db=h_db,
         metrics=m,
+        segments=tuple(getattr(fn, "segments", ())),
     )
 
 

@@ -105,6 +105,35 @@ def _solve(kind, geometry, layout, counts, seg, freqs) -> ImpedanceSweep:
     return ImpedanceSweep(kind, freqs, z, solution, tuple(int(n) for n in counts), seg)
 
 
+def solve_with_resonance(kind: str, geometry, freqs_hz, design_hz: float, search_low_hz: float,
+                         search_high_hz: float, n_scan: int = 21) -> tuple[ImpedanceSweep, float]:
+    """(sweep over freqs_hz, lowest series resonance in [search_low_hz, search_high_hz] or nan), Hz.
+
+    One segmentation serves both: refined at design_hz and bounded for the union of the two ranges, so
+    the sweep, the design point and the resonance come from the same model. The resonance is the first
+    rising zero of X_in on an n_scan-point scan, refined by Brent's method. Raises Unmodellable like
+    solve_wire_antenna.
+    """
+    freqs = _positive_freqs(freqs_hz)
+    lo, hi = min(float(freqs.min()), search_low_hz), max(float(freqs.max()), search_high_hz)
+    layout, counts, seg = choose_segments(kind, geometry, lo, hi, float(design_hz))
+    scan = np.linspace(search_low_hz, search_high_hz, n_scan)
+    both = _solve(kind, geometry, layout, counts, seg, np.concatenate([freqs, scan]))
+    sweep = ImpedanceSweep(kind, freqs, both.z_in_ohm[:freqs.size], both.solution, both.segments, seg)
+    x = both.z_in_ohm[freqs.size:].imag
+    up = np.flatnonzero((x[:-1] < 0) & (x[1:] >= 0))
+    if up.size == 0:
+        return sweep, float("nan")
+    i = int(up[0])
+
+    def reactance(f):
+        return float(_solve(kind, geometry, layout, counts, seg, np.array([f])).z_in_ohm[0].imag)
+
+    from scipy.optimize import brentq  # imported when first needed: a build from the cache never loads scipy
+
+    return sweep, float(brentq(reactance, scan[i], scan[i + 1], xtol=1e-7 * scan[i]))
+
+
 def two_wire_line_z0_ohm(spacing_m: float, radius_m: float) -> float:
     """Characteristic impedance (ohm) of a two-wire line in air: (eta0/pi) acosh(s/2a).
 

@@ -7,7 +7,8 @@ Which model each kind uses:
   antenna mode, the same pattern as a dipole of its length). monopole: image theory, upper half space.
 * small_loop: sin(theta) pattern of an electrically small loop.
 * yagi: currents of the thin-wire method-of-moments solution (wire.py), mutual coupling included.
-* linear_array: array factor (tapers in arrays.py) times an isotropic or a half-wave element.
+* linear_array: array factor (tapers in arrays.py) times an isotropic or a half-wave element, or a
+  quarter-wave monopole on the ground plane z = 0 (elements along z, nothing radiated below the plane).
 * slotted_array: 2-D array factor times the half-wave slot's pattern.
 * parabolic: circular aperture, parabolic-on-pedestal distribution with an edge taper.
 * patch: cavity model, two radiating slots.
@@ -127,8 +128,13 @@ def power_function(kind: str, geometry, freq_hz: float):
                 return 1.0
         elif g["element"] == "half_wave_dipole":
             elem = elements.collinear_half_wave_power
+        elif g["element"] == "monopole":
+            quarter_wave_m = C_M_PER_S / f / 4
+
+            def elem(th, ph):  # quarter-wave monopoles along z on the ground plane z = 0 (image theory)
+                return elements.monopole_power(th, quarter_wave_m, f)
         else:
-            raise ValueError("linear_array: element must be 'isotropic' or 'half_wave_dipole'")
+            raise ValueError("linear_array: element must be 'isotropic', 'half_wave_dipole' or 'monopole'")
 
         def fn(th, ph):
             return elem(th, ph) * arrays.linear_array_power(th, ph, w, g["spacing_m"], f, steer)
@@ -157,6 +163,14 @@ def power_function(kind: str, geometry, freq_hz: float):
     raise ValueError(f"no pattern model for kind '{kind}'")
 
 
+def planes_of(kind: str, geometry) -> tuple[str, str]:
+    """(E-plane, H-plane) of a kind; an array of vertical monopoles along x: the vertical yz plane
+    through its broadside beam, and the horizontal xy plane (the ground plane, where its beam lies)."""
+    if kind == "linear_array" and dict(canonical_geometry(kind, geometry))["element"] == "monopole":
+        return "yz", "xy"
+    return PLANES[kind]
+
+
 def _sampling(size_m: float, freq_hz: float):
     """(Gauss points per hemisphere, phi points, cut step in deg) for an antenna of this size."""
     ka = 2 * np.pi * freq_hz / C_M_PER_S * max(size_m, 1e-9)
@@ -178,7 +192,7 @@ def pattern_for_kind(kind: str, geometry, freq_hz: float, step_deg: float = 1.0)
     n_half, n_phi, cut_step = _sampling(size, freq_hz)
     p_rad = metrics.radiated_integral(fn, n_half, n_phi)
     psi = np.deg2rad(np.arange(0.0, 360.0, cut_step))
-    e_name, h_name = PLANES[kind]
+    e_name, h_name = planes_of(kind, geometry)
     cuts = {}
     for name in {e_name, h_name, "xy"}:
         th_c, ph_c = metrics.plane_directions(name, psi)

@@ -136,17 +136,18 @@ def check_modellable(layout: WireLayout, freq_low_hz: float, freq_high_hz: float
         raise Unmodellable(
             f"{name}: the wire radius ({a:.4g} m) is too large against the wavelength at {freq_high_hz / 1e6:.6g} MHz "
             f"(a/λ = {a / lam_high:.3g}, the thin-wire model needs at most {MAX_RADIUS_WAVELENGTHS:g})")
+    # a monopole's layout is its image dipole: speak of the monopole's own height
+    shown, what = (0.5, "a monopole height") if layout.kind == "monopole" else (1.0, "an element length")
     for length in layout.lengths_m:
         if length < 2 * MIN_SEGMENT_RADII * a:
             raise Unmodellable(
-                f"{name}: an element of {length:.4g} m is too short for its radius ({a:.4g} m): the thin-wire "
-                f"model needs the length to be at least {2 * MIN_SEGMENT_RADII:g} radii")
+                f"{name}: {what} of {shown * length:.4g} m is too short for its radius ({a:.4g} m): the "
+                f"thin-wire model needs at least {2 * MIN_SEGMENT_RADII * shown:g} radii")
         lam_low = C_M_PER_S / freq_low_hz
         if length < MIN_LENGTH_WAVELENGTHS * lam_low:
             raise Unmodellable(
-                f"{name}: an element of {length:.4g} m is electrically too short at {freq_low_hz / 1e6:.6g} MHz "
-                f"(L/λ = {length / lam_low:.3g}, below {MIN_LENGTH_WAVELENGTHS:g}): its radiation resistance is "
-                "lost in rounding")
+                f"{name}: {what} of {shown * length:.4g} m is electrically too short at {freq_low_hz / 1e6:.6g} MHz "
+                f"(below {shown * MIN_LENGTH_WAVELENGTHS:g} λ): its radiation resistance is lost in rounding")
 
 
 def count_bounds(layout: WireLayout, freq_high_hz: float) -> tuple[tuple[int, ...], tuple[int, ...]]:

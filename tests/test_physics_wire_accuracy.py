@@ -114,11 +114,15 @@ def _yagi_case(name):
     return (*_tn688(name), F0)
 
 
-_YAGI_MISS = pytest.mark.xfail(strict=True, reason="measured: front-to-back 1.6-2.3 dB above NEC-2's, or feed "
-                                                   "|Z| 7 % below (6-element TN 688 design)")
+# Measured misses (gain and feed |Z| pass in every case: gain within 0.05 dB, |Z| 0.4-4.7 % low); kept
+# strict so they fail the suite once they pass:
+_YAGI_MISSES = {
+    "6 elements, boom 1.2": "measured: front-to-back 17.6 dB against NEC-2's 15.9 dB (+1.6 dB)",
+    "12 elements, boom 2.2": "measured: front-to-back 20.9 dB against NEC-2's 19.3 dB (+1.6 dB)",
+    "published 6 elements, 144.3 MHz": "measured: front-to-back 31.9 dB against NEC-2's 29.7 dB (+2.3 dB)",
+}
 YAGI_CASES = ["3 elements, boom 0.4", "5 elements, boom 0.8"] + [
-    pytest.param(n, marks=_YAGI_MISS)
-    for n in ("6 elements, boom 1.2", "12 elements, boom 2.2", "published 6 elements, 144.3 MHz")]
+    pytest.param(n, marks=pytest.mark.xfail(strict=True, reason=why)) for n, why in _YAGI_MISSES.items()]
 
 
 @pytest.mark.parametrize("name", YAGI_CASES)

@@ -62,8 +62,9 @@ def length_figures(installation: Installation, model: AntennaModel, service: Ser
         Figure(FK.LENGTH_FACTOR, f"Length factor used (resonant length over {name})", rule.factor, "",
                f"ℓ_res / {name}", source=LENGTH_METHODS[rule.method]),
         Figure(FK.LENGTH_METHOD, "How the resonant length was found", LENGTH_REFERENCES[rule.method], "",
-               source=f"end-effect fit used for L/D {wave.FIT_RANGE_LD[0]:g}–{wave.FIT_RANGE_LD[1]:g}, "
-                      "the moment method outside it"),
+               source="the folded dipole's own model" if rule.method == "MoM+TL" else
+               f"end-effect fit used for L/D {wave.FIT_RANGE_LD[0]:g}–{wave.FIT_RANGE_LD[1]:g}, the moment method "
+               "outside it"),
         Figure(FK.LENGTH_INSTALLED_M, "Installed element length", length_m, "m", src=src),
         Figure(FK.LENGTH_DEVIATION_PCT, "Deviation from resonant length", deviation_pct, "%",
                "(ℓ − ℓ_res) / ℓ_res · 100", (("ℓ", f"{length_m:.4f} m"), ("ℓ_res", f"{rule.length_m:.4f} m")),

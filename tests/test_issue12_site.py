@@ -164,8 +164,7 @@ def test_pencil_beam_caption_states_the_computed_beamwidth(demo_fleet):
 
     result = antenna.pattern(demo_fleet.antennas["TCA-9400-WX12"], 9375.0)
     widths = {f.key: f.value for f in result.metrics}
-    drawn = plots.pattern_plot(result._replace(antenna="TCA-9400-WX12") if hasattr(result, "_replace")
-                               else result)
+    drawn = plots.pattern_plot(result)
     assert "all round" not in drawn.alt
     assert f"beamwidth {widths[FK.PATTERN_HPBW_E_DEG]:.1f}°" in drawn.alt
     assert "directivity" in drawn.alt and " gain " not in drawn.alt
@@ -231,3 +230,19 @@ def test_a_typing_slip_gives_an_unmodellable_finding(one_aircraft):
     text = out.getvalue()
     assert "qx-tca/VHF1/unmodellable" in text
     assert "too short for its radius" in text
+
+
+def test_a_yagi_the_thin_wire_model_cannot_take_gives_a_pattern_that_says_why():
+    """Elements 5 cm thick at 300 MHz (a/λ = 0.025, over the thin-wire bound of 0.01, segmentation.py):
+    the pattern carries a figure with the reason, and its plot says 'not modelled' instead of failing."""
+    from registry.physics import kinds as physics_kinds
+    from registry.site import plots
+
+    geometry = physics_kinds.canonical_geometry("yagi", {
+        "element_lengths_m": [0.5, 0.47, 0.44], "element_positions_m": [0.0, 0.2, 0.45], "diameter_m": 0.05,
+        "driven_index": 1})
+    result = antenna._pattern("yagi", geometry, 300.0)
+    notes = {f.key: f.value for f in result.metrics}
+    assert "too large against the wavelength" in notes[FK.PATTERN_UNMODELLABLE]
+    drawn = plots.pattern_plot(result)
+    assert "not modelled" in drawn.alt

@@ -96,7 +96,7 @@ def segments_figure(key: str, segments: tuple[int, ...], seg) -> Figure:
     else:
         how = f"not converged ({seg.stopped_by}) after {seg.refinements} refinement(s)"
     label = "Segments per element" if len(segments) > 1 else "Segments"
-    return Figure(key, label, f"{counts} ({how})", "", "refined from 24 per wavelength until |Z| changes < 1 %",
+    return Figure(key, label, f"{counts}; {how}", "", "refined from 24 per wavelength until |Z| changes < 1 %",
                   source="common practice for thin-wire moment methods, checked against NEC-2 (segmentation.py)")
 
 

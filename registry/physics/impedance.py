@@ -111,8 +111,8 @@ def solve_with_resonance(kind: str, geometry, freqs_hz, design_hz: float, search
 
     One segmentation serves both: refined at design_hz and bounded for the union of the two ranges, so
     the sweep, the design point and the resonance come from the same model. The resonance is the first
-    rising zero of X_in on an n_scan-point scan, refined by Brent's method. Raises Unmodellable like
-    solve_wire_antenna.
+    rising zero of X_in on an n_scan-point scan, refined by Brent's method. The sweep's `solution` holds
+    the currents at freqs_hz followed by the scan's frequencies. Raises Unmodellable like solve_wire_antenna.
     """
     freqs = _positive_freqs(freqs_hz)
     lo, hi = min(float(freqs.min()), search_low_hz), max(float(freqs.max()), search_high_hz)

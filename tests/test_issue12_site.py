@@ -103,7 +103,7 @@ def test_site_length_rule_matches_nec2_resonant_height(demo_fleet):
     assert "moment method" in figures[FK.LENGTH_METHOD].value
 
 
-def _nec_folded_z(length_m: float, radius_m: float, spacing_m: float, freq_hz: float, nseg: int = 21) -> complex:
+def _nec_folded_z(length_m: float, radius_m: float, spacing_m: float, freq_hz: float, nseg: int = 41) -> complex:
     """NEC-2 folded dipole: both conductors and the two end wires, fed at the centre of the first."""
     ctx = PyNEC.nec_context()
     geo = ctx.get_geometry()
@@ -119,9 +119,9 @@ def _nec_folded_z(length_m: float, radius_m: float, spacing_m: float, freq_hz: f
 
 
 @pytest.mark.xfail(strict=True, reason="measured: the folded-dipole model (antenna mode at the equivalent radius "
-                                       "plus a transmission-line stub) resonates 1.7 % long against NEC-2 with "
-                                       "both conductors for the demo's glide-slope element; a model with both "
-                                       "conductors and their end wires is not built yet")
+                                       "plus a transmission-line stub) resonates 1.7 % long (0.4149 m against "
+                                       "NEC-2's 0.4079 m with both conductors and end wires) for the demo's "
+                                       "glide-slope element; a model with both conductors is not built yet")
 def test_site_folded_dipole_resonant_length_within_1_percent_of_nec2(demo_fleet):
     """Issue 12: folded dipoles' resonant length within 1 % of NEC-2 (the demo's TCA-332-GSF at 332 MHz)."""
     installation = demo_fleet.aircraft["qx-tca"].installations["GS"]
@@ -134,6 +134,20 @@ def test_site_folded_dipole_resonant_length_within_1_percent_of_nec2(demo_fleet)
     l_nec = brentq(lambda L: _nec_folded_z(L, g["element_diameter_m"] / 2, g["spacing_m"], freq_hz).imag,
                    0.8 * half, 1.04 * half, xtol=1e-6)
     assert figures[FK.LENGTH_RESONANT_M].value == pytest.approx(l_nec, rel=0.01)
+
+
+@pytest.mark.xfail(strict=True, reason="measured: |Z| 7.5 % below NEC-2's (309.9 against 335.0 ohm) for the demo's "
+                                       "glide-slope element as installed, at 332 MHz")
+def test_site_folded_dipole_impedance_within_5_percent_of_nec2(demo_fleet):
+    """Issue 12: folded dipoles' |Z| within 5 % of NEC-2 (TCA-332-GSF as installed, at the ILS glide-slope
+    design frequency, through compute.antenna.impedance_sweep as the site calls it)."""
+    model, service, solved = _site_impedance(demo_fleet, "TCA-332-GSF", "ils_gs")
+    g = model.geometry
+    z_nec = _nec_folded_z(g["element_length_m"], g["element_diameter_m"] / 2, g["spacing_m"],
+                          service.design_freq_mhz * MHZ)
+    freqs = element.sweep_freqs_mhz(service)
+    i = int(np.argmin(abs(freqs - service.design_freq_mhz)))
+    assert abs(solved.z[i]) == pytest.approx(abs(z_nec), rel=0.05)
 
 
 def test_monopole_element_array_sees_the_horizon_with_image_theory_directivity(demo_fleet):

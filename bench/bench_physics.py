@@ -48,7 +48,45 @@ def main():
     print(f"{'5-element Yagi, 41 frequencies':40s} {dt * 1e3:8.1f} ms")
     dt = best_of(lambda: solve_wire_antenna("dipole", CASES["dipole"], freqs), repeats=3)
     print(f"{'dipole, 41 frequencies':40s} {dt * 1e3:8.1f} ms")
+    convergence_cost()
     demo_fleet()
+
+
+def convergence_cost():
+    """Cost of refining the segmentation: a cold solve (refinement included) against a warm one (counts cached)."""
+    from registry.physics import segmentation
+
+    for kind in ("dipole", "folded_dipole", "yagi"):
+        segmentation.converged_segments.cache_clear()
+        t = time.perf_counter()
+        sweep = solve_wire_antenna(kind, CASES[kind], [F])
+        cold = time.perf_counter() - t
+        warm = best_of(lambda: solve_wire_antenna(kind, CASES[kind], [F]), repeats=3)
+        seg = sweep.segmentation
+        print(f"{'impedance at one freq, cold/warm: ' + kind:40s} {cold * 1e3:8.1f} / {warm * 1e3:.1f} ms "
+              f"segments {sweep.segments} after {seg.refinements} refinement(s), last change {seg.change:.2%}")
+    segmentation.converged_segments.cache_clear()
+    t = time.perf_counter()
+    pattern_for_kind("yagi", CASES["yagi"], F)
+    print(f"{'Yagi pattern, cold segmentation':40s} {(time.perf_counter() - t) * 1e3:8.1f} ms")
+    site_model_cost()
+
+
+def site_model_cost():
+    """What one wire model costs the site (41-point sweep, design point, slopes and resonance search, one
+    segmentation: impedance.solve_with_resonance as compute/antenna.py calls it), converged counts against
+    the fixed 20 segments on the longest element that the site used before."""
+    from registry.physics import segmentation
+    from registry.physics.impedance import solve_with_resonance
+
+    freqs = list(np.linspace(0.9 * F, 1.1 * F, 41)) + [F, 0.999 * F, F, 1.001 * F]
+    for kind in ("dipole", "monopole", "folded_dipole", "yagi"):
+        for label, geometry in (("converged", CASES[kind]), ("fixed 20", {**CASES[kind], "segments": 20})):
+            segmentation.converged_segments.cache_clear()
+            t = time.perf_counter()
+            sweep, _ = solve_with_resonance(kind, geometry, freqs, F, 0.5 * F, 1.5 * F)
+            dt = time.perf_counter() - t
+            print(f"{f'site model, {label}: {kind}':40s} {dt * 1e3:8.1f} ms segments {sweep.segments}")
 
 
 def demo_fleet():
@@ -61,7 +99,11 @@ def demo_fleet():
     from registry.load.fleet import load_fleet
 
     fleet = load_fleet(Path(__file__).resolve().parent.parent / "fleet_data")
-    for cached in (cache._pattern, cache._impedance, cache._raw_grid):
+    from registry.compute import element
+    from registry.physics import segmentation
+
+    for cached in (cache._pattern, cache._impedance, cache._raw_grid, element._straight_rule, element._folded_rule,
+                   segmentation.converged_segments):
         cached.cache_clear()
     t = time.perf_counter()
     evaluate_fleet(fleet, datetime.date(2026, 12, 2), cache_dir=None, workers=1)

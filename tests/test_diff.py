@@ -203,15 +203,16 @@ def test_two_lookalike_installations_renamed_together_are_not_guessed_as_moves(p
 
 def test_changed_review_is_reported(pair, capsys):
     old, new = pair
+    # the fixture's 6 mm L-band blade (a/λ = 0.011) is beyond the thin-wire model: its finding is `unmodellable`
     path = new / "reviews.yaml"
     path.write_text(path.read_text(encoding="utf-8")
-                    + "  - discrepancy: qx-fca/DME1/element-length\n    state: action-raised\n"
+                    + "  - discrepancy: qx-fca/DME1/unmodellable\n    state: action-raised\n"
                       "    reviewer: R. Example\n    date: 2026-02-20\n    reference: ENG-REQ-0311\n",
                     encoding="utf-8")
     result = compare(old, new)
     assert result.installations == [] and result.figures == []
     [change] = result.discrepancies
-    assert (change.id, change.change) == ("qx-fca/DME1/element-length", "changed")
+    assert (change.id, change.change) == ("qx-fca/DME1/unmodellable", "changed")
     assert change.aspects == (FieldChange("review", "open", "action-raised (R. Example, ENG-REQ-0311)"),)
     assert result.counts()["review_changes"] == 1
     assert result.marks("qx-fca", "DME1") == ("1 finding changed",)

@@ -164,7 +164,12 @@ def test_impedance_matrix_is_symmetric_by_reciprocity():
     Moment Methods, 1968, ch. 1)."""
     wires = [Wire(0.0, 0.0, -0.5, 0.5, 0.003, 12), Wire(0.4, 0.1, -0.45, 0.45, 0.002, 10)]
     z = impedance_matrix(build_structure(wires), 140e6)
-    np.testing.assert_allclose(z, z.T, rtol=1e-9, atol=1e-9)
+    # the fill computes one triangle and mirrors it: with the wires in the other order, the block between
+    # them is computed with test and source swapped, so the two orders compare Z_mn with Z_nm
+    swapped = impedance_matrix(build_structure(wires[::-1]), 140e6)
+    first, second = slice(0, 11), slice(11, 20)  # basis functions of wire 0 and wire 1 (n_segments - 1 each)
+    np.testing.assert_allclose(z[first, second], swapped[9:, :9], rtol=1e-9, atol=1e-9)
+    np.testing.assert_allclose(z[first, first], swapped[9:, 9:], rtol=1e-9, atol=1e-9)
 
 
 def test_radiated_power_equals_input_power_for_lossless_wires():
@@ -186,7 +191,7 @@ def test_radiated_power_equals_input_power_for_lossless_wires():
 
 def test_end_effect_factor_spans_the_trade_range():
     """Thin wire near 0.98, fat elements near 0.93 (field notes, from memory): the factor falls with
-    thickness and stays inside that band for L/D from 30 to 10 000."""
-    k = end_effect_factor(np.array([30.0, 100.0, 1000.0, 10000.0]))
+    thickness and stays inside that band over the fit's range, L/D from 100 to 8 000."""
+    k = end_effect_factor(np.array([100.0, 300.0, 1000.0, 8000.0]))
     assert np.all(np.diff(k) > 0)
     assert k[0] > 0.90 and k[-1] < 0.985

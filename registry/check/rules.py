@@ -244,6 +244,17 @@ def antenna_suitability(s: Subject) -> list[Discrepancy]:
                  "service table (polarisation, coverage)")]
 
 
+def unmodellable(s: Subject) -> list[Discrepancy]:
+    """A figure the physics could not compute for this geometry (the thin-wire model does not apply)."""
+    notes = [f for f in (s.fig(FK.LENGTH_UNMODELLABLE), s.fig(FK.VSWR_UNMODELLABLE)) if f is not None]
+    if not notes:
+        return []
+    reasons = list(dict.fromkeys(str(f.value) for f in notes))
+    return [make("unmodellable", *s.ids, len(notes), 0, "figures",
+                 f"Antenna {s.model.id} cannot be modelled as recorded: " + "; ".join(reasons)
+                 + ". Check its geometry in the catalogue.", notes[0])]
+
+
 def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
     """Isolation below the policy's minimum for the pair's services."""
     isolation = pair.figure(FK.PAIR_ISOLATION_DB)
@@ -259,5 +270,6 @@ def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
 
 
 INSTALLATION_RULES = (element_length, band_coverage, vswr_bandwidth, measured_vswr, feeder_loss, impedance_match,
-                      cable_frequency, ground_plane, antenna_suitability, measurement_age, missing_data)
+                      cable_frequency, ground_plane, antenna_suitability, measurement_age, missing_data,
+                      unmodellable)
 """The single-installation rules, in the order their findings are listed (pairs follow)."""

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import functools
 import math
+from typing import NamedTuple
 
 import numpy as np
 
@@ -38,28 +39,65 @@ def pattern(model: AntennaModel, freq_mhz: float) -> PatternResult:
 
 @functools.lru_cache(maxsize=None)
 def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
-    raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)
+    key = repr_key(kind, geometry, freq_mhz)
+    try:
+        raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)
+    except impedance.Unmodellable as problem:
+        return _unmodelled_pattern(key, kind, freq_mhz, str(problem))
     m = raw.metrics
     peak = m.peak_directivity_dbi
     method = PATTERN_METHODS[kind]
     figures = [
         Figure(FK.PATTERN_DIRECTIVITY_DBI, "Peak directivity", peak, "dBi", "D = 4π U_max / P_rad",
                source=f"{method}; numerical integration over the sphere"),
-        Figure(FK.PATTERN_HPBW_E_DEG, "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°", source=method),
-        Figure(FK.PATTERN_HPBW_H_DEG, "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°", source=method),
+        Figure(FK.PATTERN_HPBW_E_DEG, "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°",
+               HALF_POWER_FORMULA, source=method),
+        Figure(FK.PATTERN_HPBW_H_DEG, "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°",
+               HALF_POWER_FORMULA, source=method),
         Figure(FK.PATTERN_FRONT_TO_BACK_DB, "Front-to-back ratio", m.front_to_back_db, "dB", source=method),
         Figure(FK.PATTERN_FIRST_SIDELOBE_DB, "First sidelobe level", m.first_sidelobe_db, "dB", source=method),
         Figure(FK.PATTERN_AZIMUTH_RIPPLE_DB, "Azimuth ripple", m.azimuth_ripple_db, "dB", source=method),
     ]
+    if raw.segments:
+        _, _, seg = impedance.choose_segments(kind, geometry, freq_mhz * MHZ, freq_mhz * MHZ, freq_mhz * MHZ)
+        figures.append(segments_figure(FK.PATTERN_SEGMENTS, raw.segments, seg))
     return PatternResult(
-        key=repr_key(kind, geometry, freq_mhz),
+        key=key,
         antenna="",
         kind=kind,
         freq_mhz=freq_mhz,
-        e_plane=Curve(np.asarray(raw.e_angle_deg), np.asarray(raw.e_db) + peak, "Angle (°)", "Gain (dBi)"),
-        h_plane=Curve(np.asarray(raw.h_angle_deg), np.asarray(raw.h_db) + peak, "Angle (°)", "Gain (dBi)"),
+        e_plane=Curve(np.asarray(raw.e_angle_deg), np.asarray(raw.e_db) + peak, "Angle (°)", DIRECTIVITY_LABEL),
+        h_plane=Curve(np.asarray(raw.h_angle_deg), np.asarray(raw.h_db) + peak, "Angle (°)", DIRECTIVITY_LABEL),
         metrics=tuple(figures),
     )
+
+
+HALF_POWER_FORMULA = "width of the cut above 10·log₁₀(0.5) ≈ −3.01 dB re peak"
+DIRECTIVITY_LABEL = "Directivity (dBi)"
+"""The pattern is lossless (the catalogue gives no efficiency): its level is directivity, not gain."""
+
+
+def _unmodelled_pattern(key: str, kind: str, freq_mhz: float, reason: str) -> PatternResult:
+    """A pattern that could not be modelled: empty cuts and one figure saying why."""
+    empty = Curve(np.zeros(0), np.zeros(0), "Angle (°)", DIRECTIVITY_LABEL)
+    note = Figure(FK.PATTERN_UNMODELLABLE, "Pattern not modelled", reason, "", source=PATTERN_METHODS[kind])
+    return PatternResult(key=key, antenna="", kind=kind, freq_mhz=freq_mhz, e_plane=empty, h_plane=empty,
+                         metrics=(note,))
+
+
+def segments_figure(key: str, segments: tuple[int, ...], seg) -> Figure:
+    """The segment count on each element and how it was reached (seg: physics Segmentation or None)."""
+    counts = ", ".join(str(n) for n in segments)
+    if seg is None:
+        how = "as given in the geometry"
+    elif seg.converged:
+        how = (f"converged: |Z| changed {100 * seg.change:.2f} % at the last of {seg.refinements} "
+               f"refinement(s) at {seg.freq_hz / MHZ:g} MHz")
+    else:
+        how = f"not converged ({seg.stopped_by}) after {seg.refinements} refinement(s)"
+    label = "Segments per element" if len(segments) > 1 else "Segments"
+    return Figure(key, label, f"{counts}; {how}", "", "refined from 24 per wavelength until |Z| changes < 1 %",
+                  source="common practice for thin-wire moment methods, checked against NEC-2 (segmentation.py)")
 
 
 def gain_toward_dbi(model: AntennaModel, freq_mhz: float, theta_rad: float, phi_rad: float) -> float:
@@ -75,17 +113,33 @@ def gain_toward_dbi(model: AntennaModel, freq_mhz: float, theta_rad: float, phi_
 
 @functools.lru_cache(maxsize=None)
 def _raw_grid(kind: str, geometry: tuple, freq_mhz: float):
-    raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)
+    try:
+        raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)
+    except impedance.Unmodellable:  # no pattern: the pair's figures fall back on the gain floor
+        return np.array([0.0, 180.0]), np.array([0.0, 180.0]), np.full((2, 2), math.nan)
     return raw.theta_deg, raw.phi_deg, raw.gain_dbi
 
 
-def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mhz: float,
-                    centres_mhz: tuple[float, ...]):
-    """Modelled input impedance of a wire kind, or None for kinds without an input-impedance model.
+class WireImpedance(NamedTuple):
+    """The modelled input impedance of a wire antenna, or why it could not be modelled.
 
-    Returns (Z_in over freqs_mhz, series resonance in MHz or nan, Re Z_in at design_mhz,
-    ((Z, dZ/dω) at each of centres_mhz)).
+    z: Z_in over the sweep (ohm); resonance_mhz: series resonance (nan if none in 0.5–1.5 × design);
+    r_design: Re Z_in at the design frequency; slopes: (Z, dZ/dω) at each band centre; segments: a
+    Figure with the segment counts used; reason: '' when modelled, else why not (the rest is empty).
     """
+
+    z: np.ndarray | None
+    resonance_mhz: float
+    r_design: float
+    slopes: tuple
+    segments: Figure | None
+    reason: str = ""
+
+
+def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mhz: float,
+                    centres_mhz: tuple[float, ...]) -> WireImpedance | None:
+    """Modelled input impedance of a wire kind (`WireImpedance`), or None for kinds without an
+    input-impedance model. Every frequency is solved with one segmentation, refined at design_mhz."""
     kind, geometry = physics_geometry(model)
     if kind not in physics_kinds.WIRE_KINDS:
         return None
@@ -94,14 +148,20 @@ def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mh
 
 @functools.lru_cache(maxsize=None)
 def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_mhz: float,
-               centres_mhz: tuple[float, ...]):
-    freqs_hz = np.asarray(freqs_mhz) * MHZ
-    z = impedance.solve_wire_antenna(kind, geometry, freqs_hz).z_in_ohm
-    r_design = float(impedance.solve_wire_antenna(kind, geometry, [design_mhz * MHZ]).z_in_ohm[0].real)
-    resonance_hz = impedance.resonant_frequency_hz(kind, geometry, 0.5 * design_mhz * MHZ, 1.5 * design_mhz * MHZ)
+               centres_mhz: tuple[float, ...]) -> WireImpedance:
+    steps = [1e-3 * centre for centre in centres_mhz]
+    extra = [design_mhz] + [f for c, h in zip(centres_mhz, steps) for f in (c - h, c, c + h)]
+    freqs_hz = np.asarray(list(freqs_mhz) + extra) * MHZ
+    try:
+        sweep, resonance_hz = impedance.solve_with_resonance(
+            kind, geometry, freqs_hz, design_mhz * MHZ, 0.5 * design_mhz * MHZ, 1.5 * design_mhz * MHZ)
+    except impedance.Unmodellable as problem:
+        return WireImpedance(None, math.nan, math.nan, (), None, str(problem))
+    n = len(freqs_mhz)
+    z_all = sweep.z_in_ohm
     slopes = []
-    for centre in centres_mhz:
-        step = 1e-3 * centre * MHZ
-        z3 = impedance.solve_wire_antenna(kind, geometry, [centre * MHZ - step, centre * MHZ, centre * MHZ + step]).z_in_ohm
-        slopes.append((complex(z3[1]), complex((z3[2] - z3[0]) / (2 * step * 2 * np.pi))))
-    return z, resonance_hz / MHZ, r_design, tuple(slopes)
+    for i, h in enumerate(steps):
+        z3 = z_all[n + 1 + 3 * i: n + 4 + 3 * i]
+        slopes.append((complex(z3[1]), complex((z3[2] - z3[0]) / (2 * h * MHZ * 2 * np.pi))))
+    seg_figure = segments_figure(FK.VSWR_SEGMENTS, sweep.segments, sweep.segmentation)
+    return WireImpedance(z_all[:n], resonance_hz / MHZ, float(z_all[n].real), tuple(slopes), seg_figure)

@@ -2,6 +2,7 @@
 ground plane. Pure functions of the model objects; physics from registry.physics."""
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -21,47 +22,87 @@ MHZ = 1e6
 
 
 def length_figures(installation: Installation, model: AntennaModel, service: Service) -> list[Figure]:
-    """Installed element length against the resonant length at the service's design frequency."""
+    """Installed element length against the resonant length at the service's design frequency.
+
+    The resonant length is `wave.resonant_length_rule` (the end-effect fit inside its L/D range, the
+    moment method outside it), or `wave.folded_resonant_length_rule` for a folded dipole; the factor shown
+    is the one used. A geometry the moment method cannot model gives a figure saying why.
+    """
     fraction = kind_of(model.kind).element_fraction
     if fraction is None or installation.coupler:
         return []
     freq_hz = service.design_freq_mhz * MHZ
     element = "quarter_wave" if fraction == 0.25 else "half_wave"
     length_m = float(model.geometry["element_length_m"])
-    diameter_m = float(model.geometry["element_diameter_m"])
-    image_ratio = (2.0 if element == "quarter_wave" else 1.0) * length_m / diameter_m
     wavelength_m = wave.wavelength_m(freq_hz)
     rule_m = wave.rule_of_thumb_length_m(freq_hz, element)
-    try:
-        factor = wave.end_effect_factor(image_ratio)
-        resonant_m = wave.resonant_length_m(freq_hz, diameter_m, element)
-        reference = "end effect"
-    except ValueError:  # a fat element: the thin-wire fit does not apply, fall back on the trade's rule
-        factor = wave.RULE_OF_THUMB_FACTOR
-        resonant_m = rule_m
-        reference = "95 % rule (element too thick for the end-effect fit)"
-    deviation_pct, deviation_mm = wave.length_deviation(length_m, resonant_m)
     src = where(model, "geometry.element_length_m")
     name = "λ/4" if fraction == 0.25 else "λ/2"
-    return [
+    figures = [
         Figure(FK.LENGTH_DESIGN_FREQ_MHZ, "Design frequency", service.design_freq_mhz, "MHz",
                source=f"service table: {service.source}", src=where(service, "bands_mhz")),
         Figure(FK.LENGTH_WAVELENGTH_M, "Free-space wavelength", wavelength_m, "m", "λ = c / f",
                (("c", "299 792 458 m/s"), ("f", f"{service.design_freq_mhz:g} MHz")), "SI definition of c"),
         Figure("length.rule95_m", f"Resonant length, 95 % rule ({name})", rule_m, "m", f"0.95 · {name}",
                (("λ", f"{wavelength_m:.4f} m"),), "common practice, no source"),
-        Figure(FK.LENGTH_RESONANT_M, f"Resonant length, {reference} ({name})", resonant_m, "m",
-               f"K(L/D) · {name}", (("L/D of the dipole or image dipole", f"{image_ratio:.1f}"),
-                                    ("K", f"{factor:.4f}")),
-               "K = 1 − 0.219 / (ln(2L/D) − 1.855): transmission-line model of a dipole (Balanis, Antenna "
-               "Theory, 4th ed., ch. 4 and 9), constants fitted to NEC-2 resonant lengths"),
+    ]
+    try:
+        rule = _resonant_rule(model, freq_hz, element)
+    except impedance.Unmodellable as problem:
+        return figures + [
+            Figure(FK.LENGTH_INSTALLED_M, "Installed element length", length_m, "m", src=src),
+            Figure(FK.LENGTH_UNMODELLABLE, "Resonant length not modelled", str(problem), "",
+                   source=LENGTH_METHODS["MoM"], src=where(model, "geometry"))]
+    deviation_pct, deviation_mm = wave.length_deviation(length_m, rule.length_m)
+    return figures + [
+        Figure(FK.LENGTH_RESONANT_M, f"Resonant length, {LENGTH_REFERENCES[rule.method]} ({name})", rule.length_m,
+               "m", f"K · {name}", (("L/D of the dipole or image dipole" if rule.method != "MoM+TL" else
+                                     "L / (2√(a·s))", f"{rule.length_to_diameter:.1f}"), ("K", f"{rule.factor:.4f}")),
+               LENGTH_METHODS[rule.method]),
+        Figure(FK.LENGTH_FACTOR, f"Length factor used (resonant length over {name})", rule.factor, "",
+               f"ℓ_res / {name}", source=LENGTH_METHODS[rule.method]),
+        Figure(FK.LENGTH_METHOD, "How the resonant length was found", LENGTH_REFERENCES[rule.method], "",
+               source="the folded dipole's own model" if rule.method == "MoM+TL" else
+               f"end-effect fit used for L/D {wave.FIT_RANGE_LD[0]:g}–{wave.FIT_RANGE_LD[1]:g}, the moment method "
+               "outside it"),
         Figure(FK.LENGTH_INSTALLED_M, "Installed element length", length_m, "m", src=src),
         Figure(FK.LENGTH_DEVIATION_PCT, "Deviation from resonant length", deviation_pct, "%",
-               "(ℓ − ℓ_res) / ℓ_res · 100", (("ℓ", f"{length_m:.4f} m"), ("ℓ_res", f"{resonant_m:.4f} m")),
+               "(ℓ − ℓ_res) / ℓ_res · 100", (("ℓ", f"{length_m:.4f} m"), ("ℓ_res", f"{rule.length_m:.4f} m")),
                src=src),
         Figure(FK.LENGTH_DEVIATION_MM, "Deviation from resonant length", deviation_mm, "mm", "ℓ − ℓ_res",
                src=src),
     ]
+
+
+def _resonant_rule(model: AntennaModel, freq_hz: float, element: str) -> wave.ResonantLength:
+    g = model.geometry
+    diameter_m = float(g["element_diameter_m"])
+    if kind_of(model.kind).physics == "folded_dipole":
+        return _folded_rule(freq_hz, diameter_m, float(g["spacing_m"]))
+    return _straight_rule(freq_hz, diameter_m, element)
+
+
+@functools.lru_cache(maxsize=None)
+def _straight_rule(freq_hz: float, diameter_m: float, element: str) -> wave.ResonantLength:
+    return wave.resonant_length_rule(freq_hz, diameter_m, element)
+
+
+@functools.lru_cache(maxsize=None)
+def _folded_rule(freq_hz: float, diameter_m: float, spacing_m: float) -> wave.ResonantLength:
+    return wave.folded_resonant_length_rule(freq_hz, diameter_m, spacing_m)
+
+
+LENGTH_REFERENCES = {"fit": "end-effect fit", "MoM": "moment method (X_in = 0)",
+                     "MoM+TL": "folded-dipole model (X_in = 0)"}
+LENGTH_METHODS = {
+    "fit": "K = 1 − 0.219 / (ln(2L/D) − 1.855): transmission-line model of a dipole (Balanis, Antenna "
+           "Theory, 4th ed., ch. 4 and 9), constants fitted to NEC-2 resonant lengths for L/D 100–8000",
+    "MoM": "thin-wire method of moments, X_in(ℓ) = 0 at the design frequency (the element is outside the "
+           "end-effect fit's L/D range); checked against NEC-2",
+    "MoM+TL": "folded dipole: antenna mode by the thin-wire method of moments with the equivalent radius "
+              "√(a·s), transmission-line mode a shorted two-wire stub (Balanis, Antenna Theory, 4th ed., "
+              "ch. 9); X_in(ℓ) = 0. Measured 1–3 % longer than NEC-2 models with both conductors",
+}
 
 
 # --- band coverage --------------------------------------------------------------------------------------
@@ -148,7 +189,10 @@ def modelled_vswr(model: AntennaModel, service: Service, cable: Cable,
     solved = cache.impedance_sweep(model, tuple(freqs_mhz.tolist()), service.design_freq_mhz, centres)
     if solved is None:
         return [], None
-    z_element, resonance_mhz, r_design, slopes = solved
+    if solved.reason:
+        return [Figure(FK.VSWR_UNMODELLABLE, "Input impedance not modelled", solved.reason, "",
+                       source=METHOD_MOM, src=where(model, "geometry"))], None
+    z_element, resonance_mhz, r_design, slopes = solved.z, solved.resonance_mhz, solved.r_design, solved.slopes
     ratio = model.impedance_ohm / r_design
     vswr = mismatch.vswr_from_z(z_element * ratio, cable.impedance_ohm)
     band = in_bands(freqs_mhz, service.bands_mhz)
@@ -184,6 +228,7 @@ def modelled_vswr(model: AntennaModel, service: Service, cable: Cable,
                "π / (Q·ln(1/Γm))", (("Q", f"{q:.2f}"), ("Γm", f"{gamma_max:.3f}")),
                "Bode–Fano limit (Pozar, Microwave Engineering, 4th ed., §5.9)", src),
     ]
+    figures.append(solved.segments._replace(src=src))
     curve = Curve(freqs_mhz, vswr, "Frequency (MHz)", "VSWR")
     return figures, curve
 

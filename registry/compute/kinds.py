@@ -48,9 +48,14 @@ def _yagi_size(g: Geometry) -> float:
     return max(max(positions) - min(positions), max(element["length_m"] for element in g["elements"]))
 
 
+ARRAY_ELEMENTS = {"isotropic": "isotropic", "dipole": "half_wave_dipole", "monopole": "monopole"}
+"""The registry's array element → the physics element: a monopole element stands on the skin (its ground
+plane) and is modelled as a quarter-wave monopole over it, not as a dipole in free space."""
+
+
 def _linear_array(g: Geometry) -> dict[str, Any]:
     params = {"n_elements": g["element_count"], "spacing_m": g["spacing_m"], "taper": g.get("taper", "uniform"),
-              "element": "isotropic" if g.get("element", "isotropic") == "isotropic" else "half_wave_dipole"}
+              "element": ARRAY_ELEMENTS[g.get("element", "isotropic")]}
     if "sidelobe_db" in g:
         params["sidelobe_db"] = g["sidelobe_db"]
     if "amplitudes" in g:
@@ -101,7 +106,8 @@ PATTERN_METHODS = {
     "folded_dipole": "antenna mode of a folded dipole: the dipole pattern (Balanis 4th ed., §9.5)",
     "small_loop": "electrically small loop, sin θ pattern (Balanis 4th ed., §5.2)",
     "yagi": "thin-wire method-of-moments currents, mutual coupling included (Richmond's PWS Galerkin)",
-    "linear_array": "array factor times element pattern (Balanis 4th ed., ch. 6)",
+    "linear_array": "array factor times element pattern (Balanis 4th ed., ch. 6); monopole elements over the "
+                    "skin by image theory (§4.7)",
     "slotted_array": "2-D array factor times the half-wave slot pattern (Balanis 4th ed., ch. 6 and 12)",
     "parabolic": "circular aperture, parabolic-on-pedestal illumination (Balanis 4th ed., §12.7, ch. 15)",
     "patch": "cavity model, two radiating slots (Balanis 4th ed., §14.2)",

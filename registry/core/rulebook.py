@@ -22,6 +22,7 @@ RULE_SEVERITY = {
     "antenna-suitability": "concern",
     "measurement-age": "advisory",
     "missing-data": "advisory",
+    "unmodellable": "concern",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

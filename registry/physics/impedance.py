@@ -20,14 +20,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from registry.physics import kinds as _kinds
+from registry.physics import segmentation as _seg
 from registry.physics.mismatch import vswr_from_z
-from registry.physics.wire import Wire, WireSolution, build_structure, solve_structure
+from registry.physics.segmentation import Segmentation, Unmodellable  # noqa: F401  (re-exported)
+from registry.physics.wire import WireSolution
 from registry.core.units import C_M_PER_S, ETA0
-
-#: default segments on the longest wire of a structure (the others scale with their length)
-DEFAULT_SEGMENTS = 20
-#: a segment may be at most this fraction of a wavelength at the highest frequency solved
-MAX_SEGMENT_WAVELENGTHS = 0.1
 
 
 @dataclass(frozen=True)
@@ -36,79 +33,105 @@ class ImpedanceSweep:
 
     freqs_hz (F,), z_in_ohm (F,) complex; solution: the underlying wire solution (its currents feed the
     pattern of a Yagi); for a monopole it is the image dipole's, for a folded dipole the equivalent
-    dipole's (antenna mode).
+    dipole's (antenna mode). segments: the segment count used on each element (for a monopole, on its
+    image dipole); segmentation: how that count was reached (segmentation.Segmentation; None when the
+    geometry gave 'segments').
     """
 
     kind: str
     freqs_hz: np.ndarray
     z_in_ohm: np.ndarray
     solution: WireSolution
+    segments: tuple[int, ...] = ()
+    segmentation: Segmentation | None = None
 
 
-def _even(n: int) -> int:
-    return int(n + (n % 2))
+def _positive_freqs(freqs_hz) -> np.ndarray:
+    freqs = np.atleast_1d(np.asarray(freqs_hz, dtype=float))
+    if freqs.size == 0 or not np.all(np.isfinite(freqs)) or np.any(freqs <= 0):
+        raise ValueError("freqs_hz must be positive")
+    return freqs
 
 
-def _wire_set(kind: str, g: dict):
-    """Wires and the driven wire's index for a canonical geometry dict of a wire kind."""
-    seg = g["segments"] or DEFAULT_SEGMENTS
-    if kind == "dipole":
-        half = g["length_m"] / 2
-        return (Wire(0.0, 0.0, -half, half, g["diameter_m"] / 2, _even(seg)),), 0
-    if kind == "monopole":
-        h = g["height_m"]
-        return (Wire(0.0, 0.0, -h, h, g["diameter_m"] / 2, _even(seg)),), 0
-    if kind == "folded_dipole":
-        a = g["diameter_m"] / 2
-        s = g["spacing_m"]
-        if not s > 2 * a:
-            raise ValueError("folded_dipole: spacing_m must exceed the wire diameter")
-        half = g["length_m"] / 2
-        return (Wire(0.0, 0.0, -half, half, np.sqrt(a * s), _even(seg)),), 0
-    if kind == "yagi":
-        lengths, positions = g["element_lengths_m"], g["element_positions_m"]
-        if len(lengths) != len(positions) or len(lengths) < 2:
-            raise ValueError("yagi: element_lengths_m and element_positions_m need the same length (>= 2)")
-        if not 0 <= g["driven_index"] < len(lengths):
-            raise ValueError("yagi: driven_index out of range")
-        longest = max(lengths)
-        wires = tuple(
-            Wire(float(x), 0.0, -l / 2, l / 2, g["diameter_m"] / 2, _even(max(4, round(seg * l / longest))))
-            for l, x in zip(lengths, positions)
-        )
-        return wires, g["driven_index"]
-    raise ValueError(f"'{kind}' is not a wire antenna kind ({', '.join(_kinds.WIRE_KINDS)})")
+def choose_segments(kind: str, geometry, freq_low_hz: float, freq_high_hz: float, design_hz: float):
+    """(layout, per-element segment counts, Segmentation or None) for solving between two frequencies (Hz).
+
+    The counts are refined at design_hz (segmentation.converged_segments) and raised where needed so no
+    segment exceeds segmentation.MAX_SEGMENT_WAVELENGTHS at freq_high_hz. A 'segments' value in the
+    geometry (on the longest element; the others in proportion) replaces the refinement.
+    Raises Unmodellable when the thin-wire model does not apply.
+    """
+    g = dict(_kinds.canonical_geometry(kind, geometry))
+    layout = _seg.wire_layout(kind, g)
+    lo, hi = min(freq_low_hz, design_hz), max(freq_high_hz, design_hz)
+    _seg.check_modellable(layout, lo, hi)
+    fewest, most = _seg.count_bounds(layout, hi)
+    if g.get("segments"):
+        longest = max(layout.lengths_m)
+        asked = tuple(_seg._even(g["segments"] * length / longest) for length in layout.lengths_m)
+        if any(n < f for n, f in zip(asked, fewest)) or any(n > m for n, m in zip(asked, most)):
+            raise Unmodellable(f"{kind.replace('_', ' ')}: the 'segments' given ({g['segments']}) put segments "
+                               "outside the thin-wire model's bounds; leave 'segments' out to have them chosen")
+        return layout, asked, None
+    seg = _seg.converged_segments(layout, float(design_hz))
+    return layout, tuple(max(n, f) for n, f in zip(seg.per_wire, fewest)), seg
 
 
-def solve_wire_antenna(kind: str, geometry, freqs_hz) -> ImpedanceSweep:
+def solve_wire_antenna(kind: str, geometry, freqs_hz, design_hz: float | None = None) -> ImpedanceSweep:
     """Input impedance (ohm) of a wire antenna at each frequency in freqs_hz (Hz).
 
     kind: 'dipole' | 'monopole' | 'folded_dipole' | 'yagi'; geometry: mapping or (name, value) pairs
     (see kinds.KIND_PARAMETERS; lengths and diameters in metres); freqs_hz: float or sequence.
-    The segmentation depends on the geometry only (DEFAULT_SEGMENTS on the longest wire unless
-    'segments' is given), so a frequency's result does not depend on the other frequencies asked for.
-    Raises ValueError when segments exceed MAX_SEGMENT_WAVELENGTHS at the highest frequency.
+    The segment counts are refined at design_hz (default: the highest frequency asked) until |Z| settles
+    (segmentation.py) and reused across the sweep; pass the same design_hz to every call for one
+    antenna so that a frequency's result does not depend on the other frequencies asked for.
+    Raises segmentation.Unmodellable (a ValueError) when the thin-wire model does not apply.
     """
-    g = dict(_kinds.canonical_geometry(kind, geometry))
-    freqs = np.atleast_1d(np.asarray(freqs_hz, dtype=float))
-    if freqs.size == 0 or np.any(freqs <= 0):
-        raise ValueError("freqs_hz must be positive")
-    wires, driven = _wire_set(kind, g)
-    lam_min = C_M_PER_S / freqs.max()
-    longest_segment = max((w.z_end_m - w.z_start_m) / w.n_segments for w in wires)
-    if longest_segment > MAX_SEGMENT_WAVELENGTHS * lam_min:
-        raise ValueError(
-            f"{kind}: segments of {longest_segment:.4g} m are too long at {freqs.max():.6g} Hz; "
-            "give more 'segments'"
-        )
-    structure = build_structure(wires)
-    solution = solve_structure(structure, structure.centre_basis(driven), freqs)
-    z = solution.z_in_ohm
+    freqs = _positive_freqs(freqs_hz)
+    design = float(freqs.max() if design_hz is None else design_hz)
+    layout, counts, seg = choose_segments(kind, geometry, float(freqs.min()), float(freqs.max()), design)
+    return _solve(kind, geometry, layout, counts, seg, freqs)
+
+
+def _solve(kind, geometry, layout, counts, seg, freqs) -> ImpedanceSweep:
+    z, solution = _seg.feed_impedance_ohm(layout, counts, freqs)
     if kind == "monopole":
         z = z / 2
     elif kind == "folded_dipole":
+        g = dict(_kinds.canonical_geometry(kind, geometry))
         z = folded_dipole_impedance_ohm(z, g["length_m"], g["diameter_m"] / 2, g["spacing_m"], freqs)
-    return ImpedanceSweep(kind, freqs, z, solution)
+    if not np.all(np.isfinite(z)):
+        raise Unmodellable(f"{kind.replace('_', ' ')}: the moment-method solution is not finite (singular matrix)")
+    return ImpedanceSweep(kind, freqs, z, solution, tuple(int(n) for n in counts), seg)
+
+
+def solve_with_resonance(kind: str, geometry, freqs_hz, design_hz: float, search_low_hz: float,
+                         search_high_hz: float, n_scan: int = 21) -> tuple[ImpedanceSweep, float]:
+    """(sweep over freqs_hz, lowest series resonance in [search_low_hz, search_high_hz] or nan), Hz.
+
+    One segmentation serves both: refined at design_hz and bounded for the union of the two ranges, so
+    the sweep, the design point and the resonance come from the same model. The resonance is the first
+    rising zero of X_in on an n_scan-point scan, refined by Brent's method. The sweep's `solution` holds
+    the currents at freqs_hz followed by the scan's frequencies. Raises Unmodellable like solve_wire_antenna.
+    """
+    freqs = _positive_freqs(freqs_hz)
+    lo, hi = min(float(freqs.min()), search_low_hz), max(float(freqs.max()), search_high_hz)
+    layout, counts, seg = choose_segments(kind, geometry, lo, hi, float(design_hz))
+    scan = np.linspace(search_low_hz, search_high_hz, n_scan)
+    both = _solve(kind, geometry, layout, counts, seg, np.concatenate([freqs, scan]))
+    sweep = ImpedanceSweep(kind, freqs, both.z_in_ohm[:freqs.size], both.solution, both.segments, seg)
+    x = both.z_in_ohm[freqs.size:].imag
+    up = np.flatnonzero((x[:-1] < 0) & (x[1:] >= 0))
+    if up.size == 0:
+        return sweep, float("nan")
+    i = int(up[0])
+
+    def reactance(f):
+        return float(_solve(kind, geometry, layout, counts, seg, np.array([f])).z_in_ohm[0].imag)
+
+    from scipy.optimize import brentq  # imported when first needed: a build from the cache never loads scipy
+
+    return sweep, float(brentq(reactance, scan[i], scan[i + 1], xtol=1e-7 * scan[i]))
 
 
 def two_wire_line_z0_ohm(spacing_m: float, radius_m: float) -> float:
@@ -131,21 +154,26 @@ def folded_dipole_impedance_ohm(z_dipole_ohm, length_m, radius_m, spacing_m, fre
     return 4 * z_t * z_d / (z_t + 2 * z_d)
 
 
-def resonant_frequency_hz(kind: str, geometry, f_low_hz: float, f_high_hz: float, n_scan: int = 21) -> float:
+def resonant_frequency_hz(kind: str, geometry, f_low_hz: float, f_high_hz: float, n_scan: int = 21,
+                          design_hz: float | None = None) -> float:
     """Lowest series resonance (X_in = 0 rising through zero) in [f_low_hz, f_high_hz], Hz.
 
     Scans n_scan frequencies, then refines the first sign change of the reactance with Brent's method.
-    Returns nan when the reactance does not cross zero from below in the range.
+    One segmentation serves the whole search (refined at design_hz, default the middle of the range), so
+    the reactance is a smooth function of frequency. Returns nan when the reactance does not cross zero
+    from below in the range. Raises Unmodellable like solve_wire_antenna.
     """
+    design = 0.5 * (f_low_hz + f_high_hz) if design_hz is None else float(design_hz)
+    layout, counts, seg = choose_segments(kind, geometry, f_low_hz, f_high_hz, design)
     scan = np.linspace(f_low_hz, f_high_hz, n_scan)
-    x = solve_wire_antenna(kind, geometry, scan).z_in_ohm.imag
+    x = _solve(kind, geometry, layout, counts, seg, scan).z_in_ohm.imag
     up = np.flatnonzero((x[:-1] < 0) & (x[1:] >= 0))
     if up.size == 0:
         return float("nan")
     i = int(up[0])
 
     def reactance(f):
-        return float(solve_wire_antenna(kind, geometry, [f]).z_in_ohm[0].imag)
+        return float(_solve(kind, geometry, layout, counts, seg, np.array([f])).z_in_ohm[0].imag)
 
     from scipy.optimize import brentq  # imported when first needed: a build from the cache never loads scipy
 

@@ -9,7 +9,8 @@ Coordinate conventions (right-handed x, y, z; theta from +z, phi from +x toward 
 * wire kinds (dipole, monopole, folded_dipole, yagi): elements parallel to z, centred on z = 0
   (a monopole stands on the ground plane z = 0); a Yagi's boom is the x axis, the beam toward +x.
 * small_loop: loop in the xy plane (axis z).
-* linear_array: elements along x, broadside beam toward +z; slotted_array: slots in the xy plane,
+* linear_array: elements along x, broadside beam toward +z (monopole elements: standing along z on the
+  ground plane z = 0, broadside beam along the horizon toward +/- y); slotted_array: slots in the xy plane,
   beam toward +z; parabolic and patch: aperture in the xy plane, beam toward +z, E field along x.
 """
 from __future__ import annotations

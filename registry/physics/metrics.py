@@ -12,6 +12,8 @@ import numpy as np
 
 #: levels below this (dB relative to the peak) are treated as the floor; it caps the F/B ratio
 FLOOR_DB = -100.0
+#: half power in decibels: 10 log10(1/2) = -3.0103 dB (IEEE Std 145-2013, half-power beamwidth)
+HALF_POWER_DB = 10 * math.log10(0.5)
 
 
 def sphere_grid_rad(step_deg: float = 1.0):
@@ -73,10 +75,12 @@ def to_db(power, peak: float):
 
 
 def half_power_beamwidth_deg(angle_deg, level_db) -> float:
-    """Width (deg) of the lobe around the cut's maximum between its -3 dB points (linear interpolation).
+    """Width (deg) of the lobe around the cut's maximum between its half-power points (linear interpolation).
+
+    Half power is HALF_POWER_DB = 10 log10(0.5) = -3.0103 dB below the cut's maximum.
 
     angle_deg: uniformly spaced full-circle cut (endpoint excluded); level_db: levels in dB.
-    Returns nan when the cut never drops 3 dB below its maximum (omnidirectional in this plane).
+    Returns nan when the cut never drops to half power below its maximum (omnidirectional in this plane).
     """
     lv = np.asarray(level_db, dtype=float)
     n = lv.size
@@ -84,7 +88,7 @@ def half_power_beamwidth_deg(angle_deg, level_db) -> float:
         raise ValueError("angle_deg and level_db differ in length")
     step = 360.0 / n
     i0 = int(np.argmax(lv))
-    target = lv[i0] - 3.0
+    target = lv[i0] + HALF_POWER_DB
     widths = []
     for direction in (1, -1):
         prev = lv[i0]

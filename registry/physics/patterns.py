@@ -7,7 +7,8 @@ Which model each kind uses:
   antenna mode, the same pattern as a dipole of its length). monopole: image theory, upper half space.
 * small_loop: sin(theta) pattern of an electrically small loop.
 * yagi: currents of the thin-wire method-of-moments solution (wire.py), mutual coupling included.
-* linear_array: array factor (tapers in arrays.py) times an isotropic or a half-wave element.
+* linear_array: array factor (tapers in arrays.py) times an isotropic or a half-wave element, or a
+  quarter-wave monopole on the ground plane z = 0 (elements along z, nothing radiated below the plane).
 * slotted_array: 2-D array factor times the half-wave slot's pattern.
 * parabolic: circular aperture, parabolic-on-pedestal distribution with an edge taper.
 * patch: cavity model, two radiating slots.
@@ -47,7 +48,7 @@ class PatternMetrics:
 
     peak_directivity_dbi: 10 log10(4 pi U_max / P_rad). peak_theta_deg, peak_phi_deg: a direction of
     the maximum. hpbw_e_deg, hpbw_h_deg: half-power beamwidths in the E- and H-plane cuts (nan when a cut
-    stays within 3 dB all round). front_to_back_db: U(peak)/U(opposite direction), at most -FLOOR_DB.
+    stays above half power, 10 log10(0.5) dB, all round). front_to_back_db: U(peak)/U(opposite direction), at most -FLOOR_DB.
     first_sidelobe_db: the higher first side lobe of the two cuts, relative to the peak (negative).
     azimuth_ripple_db: max - min over the horizontal (xy) cut, for kinds meant to be omnidirectional.
     """
@@ -69,6 +70,8 @@ class PatternResult:
     theta_deg (T,), phi_deg (P,), gain_dbi (T, P) directivity pattern floored FLOOR_DB below the peak.
     e_plane / h_plane: names of the cut planes ('xz', 'yz', 'xy'); *_angle_deg (M,) the angle in the
     plane (see metrics.plane_directions), *_db (M,) normalised level (0 dB at the pattern's peak).
+    segments: segment count on each element when the pattern comes from method-of-moments currents
+    (yagi), else ().
     """
 
     kind: str
@@ -83,14 +86,22 @@ class PatternResult:
     h_angle_deg: np.ndarray
     h_db: np.ndarray
     metrics: PatternMetrics
+    segments: tuple[int, ...] = ()
 
 
 def _yagi_power_fn(geometry, freq_hz):
+    """Power function of a Yagi from its MoM currents, with the segment counts refined at freq_hz."""
     from registry.physics.impedance import solve_wire_antenna
     from registry.physics.wire import far_field_theta
 
-    sol = solve_wire_antenna("yagi", geometry, [freq_hz]).solution
-    return lambda th, ph: np.abs(far_field_theta(sol, 0, th, ph)) ** 2
+    sweep = solve_wire_antenna("yagi", geometry, [freq_hz], design_hz=freq_hz)
+    sol = sweep.solution
+
+    def fn(th, ph):
+        return np.abs(far_field_theta(sol, 0, th, ph)) ** 2
+
+    fn.segments = sweep.segments
+    return fn
 
 
 def power_function(kind: str, geometry, freq_hz: float):
@@ -117,8 +128,13 @@ def power_function(kind: str, geometry, freq_hz: float):
                 return 1.0
         elif g["element"] == "half_wave_dipole":
             elem = elements.collinear_half_wave_power
+        elif g["element"] == "monopole":
+            quarter_wave_m = C_M_PER_S / f / 4
+
+            def elem(th, ph):  # quarter-wave monopoles along z on the ground plane z = 0 (image theory)
+                return elements.monopole_power(th, quarter_wave_m, f)
         else:
-            raise ValueError("linear_array: element must be 'isotropic' or 'half_wave_dipole'")
+            raise ValueError("linear_array: element must be 'isotropic', 'half_wave_dipole' or 'monopole'")
 
         def fn(th, ph):
             return elem(th, ph) * arrays.linear_array_power(th, ph, w, g["spacing_m"], f, steer)
@@ -147,6 +163,14 @@ def power_function(kind: str, geometry, freq_hz: float):
     raise ValueError(f"no pattern model for kind '{kind}'")
 
 
+def planes_of(kind: str, geometry) -> tuple[str, str]:
+    """(E-plane, H-plane) of a kind; an array of vertical monopoles along x: the vertical yz plane
+    through its broadside beam, and the horizontal xy plane (the ground plane, where its beam lies)."""
+    if kind == "linear_array" and dict(canonical_geometry(kind, geometry))["element"] == "monopole":
+        return "yz", "xy"
+    return PLANES[kind]
+
+
 def _sampling(size_m: float, freq_hz: float):
     """(Gauss points per hemisphere, phi points, cut step in deg) for an antenna of this size."""
     ka = 2 * np.pi * freq_hz / C_M_PER_S * max(size_m, 1e-9)
@@ -168,7 +192,7 @@ def pattern_for_kind(kind: str, geometry, freq_hz: float, step_deg: float = 1.0)
     n_half, n_phi, cut_step = _sampling(size, freq_hz)
     p_rad = metrics.radiated_integral(fn, n_half, n_phi)
     psi = np.deg2rad(np.arange(0.0, 360.0, cut_step))
-    e_name, h_name = PLANES[kind]
+    e_name, h_name = planes_of(kind, geometry)
     cuts = {}
     for name in {e_name, h_name, "xy"}:
         th_c, ph_c = metrics.plane_directions(name, psi)
@@ -211,6 +235,7 @@ def pattern_for_kind(kind: str, geometry, freq_hz: float, step_deg: float = 1.0)
         h_angle_deg=angle,
         h_db=h_db,
         metrics=m,
+        segments=tuple(getattr(fn, "segments", ())),
     )
 
 

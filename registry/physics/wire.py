@@ -144,20 +144,27 @@ def impedance_matrix(structure: WireStructure, freq_hz: float) -> np.ndarray:
     p = _e1_imag(k * structure.r_minus_m)
     m = _e1_imag(k * structure.r_plus_m)
     ph = np.exp(-1j * k * structure.zeta_m)  # ph[t, s] = exp(jk(z_s - z_t))
-    t1, t0, t2 = (structure.basis_nodes[:, j][:, None] for j in range(3))
-    nodes_n = structure.basis_nodes
-    weights = (np.ones_like(d), np.ones_like(d), -2 * np.cos(k * d))
-    acc = np.zeros((d.size, d.size), dtype=complex)
+    # Z is symmetric (reciprocity): fill the pairs m <= n only, then mirror
+    rows, cols = np.triu_indices(d.size)
+    t1, t0, t2 = (structure.basis_nodes[rows, j] for j in range(3))
+    nodes_n = structure.basis_nodes[cols]
+    d_n = d[cols]
+    weights = (np.ones_like(d_n), np.ones_like(d_n), -2 * np.cos(k * d_n))
+    acc = np.zeros(rows.size, dtype=complex)
     for s_col, c in zip((0, 2, 1), weights):
-        s = nodes_n[:, s_col][None, :]
+        s = nodes_n[:, s_col]
         p_t1, p_t0, p_t2 = p[t1, s], p[t0, s], p[t2, s]
         m_t1, m_t0, m_t2 = m[t1, s], m[t0, s], m[t2, s]
         e1, e2 = ph[t1, s], ph[t2, s]
         k_rise = e1 * (p_t0 - p_t1) + np.conj(e1) * (m_t0 - m_t1)
         k_fall = e2 * (p_t2 - p_t0) + np.conj(e2) * (m_t2 - m_t0)
-        acc += c[None, :] * (k_rise - k_fall)
+        acc += c * (k_rise - k_fall)
     sin_kd = np.sin(k * d)
-    return (1j * ETA0 / (4 * np.pi)) * acc / (2j) / (sin_kd[:, None] * sin_kd[None, :])
+    upper = (1j * ETA0 / (4 * np.pi)) * acc / (2j) / (sin_kd[rows] * sin_kd[cols])
+    z = np.empty((d.size, d.size), dtype=complex)
+    z[rows, cols] = upper
+    z[cols, rows] = upper
+    return z
 
 
 @dataclass(frozen=True)

@@ -16,8 +16,10 @@ from pathlib import Path
 import numpy as np
 
 from registry.incremental import DiskCache, array_key, cached_map, key_of
+from registry.core import figure_keys as FK
 from registry.site.plot_check import plain_svg
 from registry.core.results import CableResult, Curve, InstallationResult, PatternResult
+from registry.physics.metrics import HALF_POWER_DB  # 10·log10(0.5): one half-power level everywhere
 
 INK = "#2b2f36"
 GRID = "#9aa3ad"
@@ -85,10 +87,12 @@ def _styled(draw):
 
 
 def half_power_points(angle_deg: np.ndarray, gain_dbi: np.ndarray) -> tuple[float, float] | None:
-    """The two angles (degrees) either side of the peak where the gain falls 3 dB below it.
+    """The two angles (degrees) either side of the peak where the level falls to half power,
+    HALF_POWER_DB = 10·log₁₀(0.5) ≈ −3.01 dB below it.
 
-    Walks outwards from the peak around the cut (treated as circular) and interpolates linearly
-    between samples. None when the cut never falls 3 dB below its peak (an omnidirectional cut).
+    Walks outwards from the peak around the cut (circular when its samples go all round, whether or not
+    the first angle is repeated at the end) and interpolates linearly between samples. None when the
+    cut never falls to half power (an omnidirectional cut).
     """
     angle = np.asarray(angle_deg, dtype=float)
     gain = np.asarray(gain_dbi, dtype=float)
@@ -97,13 +101,16 @@ def half_power_points(angle_deg: np.ndarray, gain_dbi: np.ndarray) -> tuple[floa
     gain = np.where(np.isfinite(gain), gain, -np.inf)
     n = angle.size
     peak = int(np.argmax(gain))
-    level = gain[peak] - 3.0
+    level = gain[peak] + HALF_POWER_DB
     if not (gain < level).any():
         return None
-    # a closed cut repeats its first angle at the end: walk over distinct samples only
+    # a closed cut repeats its first angle at the end: walk over distinct samples only; a cut whose
+    # samples reach all round without repeating it is circular too
     span = angle[-1] - angle[0]
-    closed = math.isclose(span % 360.0, 0.0, abs_tol=1e-9) and span > 0
-    distinct = n - 1 if closed else n
+    repeats = math.isclose(span % 360.0, 0.0, abs_tol=1e-9) and span > 0
+    all_round = math.isclose(span + (angle[1] - angle[0]), 360.0, rel_tol=1e-9)
+    closed = repeats or all_round
+    distinct = n - 1 if repeats else n
 
     def walk(step: int) -> float | None:
         i = peak
@@ -139,7 +146,9 @@ def _finite_peak(values: np.ndarray) -> float:
     return float(values[np.isfinite(values)].max())
 
 
-def _polar_cut(ax, curve: Curve, title: str, floor_db: float, top_db: float) -> str:
+def _polar_cut(ax, curve: Curve, title: str, floor_db: float, top_db: float, width_deg: float | None) -> str:
+    """One polar cut; its caption states width_deg, the pattern's computed half-power beamwidth (nan:
+    none; None: not computed, the cut's own), so the plot says what the figures say. The dots mark where this cut crosses half power."""
     theta = np.radians(np.asarray(curve.x, dtype=float))
     gain = np.asarray(curve.y, dtype=float)
     shown = np.clip(np.where(np.isfinite(gain), gain, floor_db), floor_db, None)
@@ -155,35 +164,56 @@ def _polar_cut(ax, curve: Curve, title: str, floor_db: float, top_db: float) -> 
     ax.grid(True)
     ax.set_title(title, pad=14, fontsize=10)
     ax.text(math.radians(112.5), top_db + (top_db - floor_db) * 0.16, "dBi", fontsize=7, ha="center")
+    if not len(curve.x):
+        ax.text(0.5, -0.14, "not modelled (see the figures)", transform=ax.transAxes, ha="center", fontsize=8)
+        return "not modelled"
     points = half_power_points(curve.x, curve.y)
-    if points is None:
-        ax.text(0.5, -0.14, f"{curve.x_label}; within 3 dB all round", transform=ax.transAxes,
+    if points is not None:
+        peak = _finite_peak(gain)
+        for angle in points:
+            ax.plot([math.radians(angle)], [peak + HALF_POWER_DB], marker="o", markersize=5, color=SECOND,
+                    linestyle="none")
+    if width_deg is None:  # a pattern without its computed beamwidth: the cut's own
+        width_deg = beamwidth_deg(points) if points is not None else math.nan
+    if not math.isfinite(width_deg):
+        ax.text(0.5, -0.14, f"{curve.x_label}; above half power all round", transform=ax.transAxes,
                 ha="center", fontsize=8)
-        return "no half-power points (within 3 dB all round)"
-    peak = _finite_peak(gain)
-    for angle in points:
-        ax.plot([math.radians(angle)], [peak - 3.0], marker="o", markersize=5, color=SECOND, linestyle="none")
-    width = beamwidth_deg(points)
-    ax.text(0.5, -0.14, f"{curve.x_label}; half-power beamwidth {width:.0f}°", transform=ax.transAxes,
+        return "no half-power points (above half power all round)"
+    ax.text(0.5, -0.14, f"{curve.x_label}; half-power beamwidth {_degrees(width_deg)}°", transform=ax.transAxes,
             ha="center", fontsize=8, color=INK)
-    return f"half-power points at {points[0] % 360:.0f}° and {points[1] % 360:.0f}°, beamwidth {width:.0f}°"
+    where_text = "" if points is None else f"half-power points at {points[0] % 360:.1f}° and {points[1] % 360:.1f}°, "
+    return f"{where_text}beamwidth {_degrees(width_deg)}°"
+
+
+def _degrees(width_deg: float) -> str:
+    """A beamwidth to the degree, or to a tenth under 10° (a pencil beam)."""
+    return f"{width_deg:.0f}" if width_deg >= 10 else f"{width_deg:.1f}"
+
+
+def _metric(pattern: PatternResult, key: str) -> float | None:
+    for figure in pattern.metrics:
+        if figure.key == key:
+            return float(figure.value) if isinstance(figure.value, (int, float)) else math.nan
+    return None
 
 
 @_styled
 def pattern_plot(pattern: PatternResult) -> Drawn:
-    """E- and H-plane cuts side by side on polar axes, gain in dBi, half-power points marked."""
+    """E- and H-plane cuts side by side on polar axes, directivity in dBi (the pattern is lossless),
+    half-power points marked; the captions give the pattern's computed beamwidths."""
     fig = _figure(7.2, 3.9)
     peaks = [_finite_peak(c.y) for c in (pattern.e_plane, pattern.h_plane) if np.isfinite(c.y).any()]
     top = math.ceil(max(peaks) / 5.0) * 5.0 + 5.0 if peaks else 10.0
     floor = top - 40.0
     notes = []
-    for index, (curve, name) in enumerate(((pattern.e_plane, "E-plane"), (pattern.h_plane, "H-plane"))):
+    cuts = ((pattern.e_plane, "E-plane", FK.PATTERN_HPBW_E_DEG), (pattern.h_plane, "H-plane", FK.PATTERN_HPBW_H_DEG))
+    for index, (curve, name, key) in enumerate(cuts):
         ax = fig.add_subplot(1, 2, index + 1, projection="polar")
-        notes.append(f"{name}: " + _polar_cut(ax, curve, f"{name} gain", floor, top))
+        notes.append(f"{name}: " + _polar_cut(ax, curve, f"{name} directivity", floor, top, _metric(pattern, key)))
     fig.subplots_adjust(left=0.06, right=0.94, top=0.84, bottom=0.14, wspace=0.45)
     fig.suptitle(f"{pattern.antenna} at {pattern.freq_mhz:g} MHz", fontsize=10, y=0.98)
     peak_text = f"peak {max(peaks):.1f} dBi; " if peaks else ""
-    alt = (f"Polar plots of the E-plane and H-plane gain of antenna model {pattern.antenna} at "
+    alt = (f"Polar plots of the E-plane and H-plane directivity of antenna model {pattern.antenna} at "
            f"{pattern.freq_mhz:g} MHz, in dBi, {floor:g} to {top:g} dBi; {peak_text}" + "; ".join(notes) + ".")
     return Drawn(_to_svg(fig), alt)
 

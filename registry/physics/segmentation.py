@@ -1,0 +1,217 @@
+"""How finely each wire is cut for the thin-wire method of moments, and what cannot be modelled.
+
+Wire kinds are laid out as straight elements parallel to z (see `wire_layout`); every element gets its own
+segment count. The count is chosen in three steps, all deterministic for (kind, geometry, frequency):
+
+1. Start: START_SEGMENTS_PER_WAVELENGTH segments per wavelength of the element at the design frequency
+   (12 on a half-wave element), at least 2.
+2. Bounds of the thin-wire model (common practice for thin-wire moment methods, no single source; the
+   values were checked against NEC-2 runs, tests/test_physics_wire_accuracy.py):
+   * a segment is at most MAX_SEGMENT_WAVELENGTHS of a wavelength at the highest frequency solved,
+     so the sinusoidal basis can follow the current;
+   * a segment is at least MIN_SEGMENT_RADII wire radii long: the reduced kernel (current on the axis,
+     field on the surface) stops being a fair model of a tube when segments are shorter (our solver's
+     impedance breaks down below about 1.5 radii, and its reactance drifts away from NEC-2's below 4);
+   * the radius is at most MAX_RADIUS_WAVELENGTHS of a wavelength (2 pi a / lambda = 0.06: the current
+     is no longer uniform round the wire when the wire is fatter);
+   * the element is at least MIN_LENGTH_WAVELENGTHS of a wavelength long: below that, the radiation
+     resistance (about 20 pi^2 (L/lambda)^2 ohm) is lost in the rounding of a reactance a million times
+     larger;
+   * at most MAX_BASIS basis functions in all (speed).
+3. Refinement: the counts are doubled (within the bounds) until the feed-point |Z| at the design
+   frequency changes by less than CONVERGENCE (1 %) between two refinements, at most MAX_REFINEMENTS times.
+   The finer of the last two counts is the one used.
+
+Free wire ends: a tube's end carries charge that the thin-wire model (current vanishing at the end of the
+axis) leaves out; each free end is lengthened by END_CAP_RADII radii to stand for it. The value is
+empirical: it brings the feed reactance of fat elements (a/lambda 1e-3 to 5e-3, Yagi elements of
+d/lambda 0.0085) to within a few ohm of NEC-2's, which models the same tubes (see the accuracy tests).
+
+A geometry outside the bounds raises Unmodellable (a ValueError) with the reason in plain words.
+"""
+from __future__ import annotations
+
+import functools
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from registry.physics import kinds as _kinds
+from registry.physics.wire import Wire, build_structure, solve_structure
+from registry.core.units import C_M_PER_S
+
+START_SEGMENTS_PER_WAVELENGTH = 24
+MAX_SEGMENT_WAVELENGTHS = 0.1
+MIN_SEGMENT_RADII = 4.0
+END_CAP_RADII = 0.25
+MAX_RADIUS_WAVELENGTHS = 0.01
+MIN_LENGTH_WAVELENGTHS = 1e-3
+MAX_BASIS = 800
+CONVERGENCE = 0.01
+MAX_REFINEMENTS = 3
+
+
+class Unmodellable(ValueError):
+    """A wire geometry the thin-wire method of moments cannot model; the message says why in plain words."""
+
+
+@dataclass(frozen=True)
+class WireLayout:
+    """Elements of a wire antenna: lengths (m) along z, x positions (m), one radius (m), the fed element.
+
+    For a monopole the layout is its image dipole; for a folded dipole the equivalent dipole of its antenna
+    mode (see impedance.py). end_cap_m: how much each free end is lengthened (END_CAP_RADII radii);
+    conductor_radius_m: the real conductors' radius when radius_m is an equivalent one (folded dipole).
+    """
+
+    kind: str
+    lengths_m: tuple[float, ...]
+    x_m: tuple[float, ...]
+    radius_m: float
+    driven: int
+    end_cap_m: float = 0.0
+    conductor_radius_m: float | None = None
+
+
+@dataclass(frozen=True)
+class Segmentation:
+    """Segment count of each element, and how it was reached.
+
+    per_wire: segments on each element; freq_hz: the frequency the refinement was judged at;
+    refinements: how many times the counts were doubled; change: relative change of |Z| at the last
+    refinement (nan when none was possible); converged: change < CONVERGENCE; stopped_by: '' when
+    converged, else what stopped the refinement ('segment length limit', 'segment budget',
+    'refinement limit').
+    """
+
+    per_wire: tuple[int, ...]
+    freq_hz: float
+    refinements: int
+    change: float
+    converged: bool
+    stopped_by: str
+
+
+def _even(n: float) -> int:
+    n = int(math.ceil(n))
+    return max(2, n + (n % 2))
+
+
+def wire_layout(kind: str, g: dict) -> WireLayout:
+    """Layout of a canonical geometry dict (kinds.canonical_geometry) of a wire kind."""
+    if kind == "dipole":
+        a = g["diameter_m"] / 2
+        return WireLayout(kind, (g["length_m"],), (0.0,), a, 0, END_CAP_RADII * a)
+    if kind == "monopole":
+        a = g["diameter_m"] / 2
+        return WireLayout(kind, (2 * g["height_m"],), (0.0,), a, 0, END_CAP_RADII * a)
+    if kind == "folded_dipole":
+        a, s = g["diameter_m"] / 2, g["spacing_m"]
+        if not s > 2 * a:
+            raise Unmodellable(f"folded dipole: the conductors touch (spacing {s:g} m is not more than the "
+                               f"wire diameter {2 * a:g} m)")
+        return WireLayout(kind, (g["length_m"],), (0.0,), math.sqrt(a * s), 0, 0.0, a)
+    if kind == "yagi":
+        lengths, positions = g["element_lengths_m"], g["element_positions_m"]
+        if len(lengths) != len(positions) or len(lengths) < 2:
+            raise ValueError("yagi: element_lengths_m and element_positions_m need the same length (>= 2)")
+        if not 0 <= g["driven_index"] < len(lengths):
+            raise ValueError("yagi: driven_index out of range")
+        gaps = np.diff(np.sort(np.asarray(positions, dtype=float)))
+        if gaps.size and gaps.min() <= g["diameter_m"]:
+            raise Unmodellable(f"yagi: two elements are {gaps.min():g} m apart, not more than the element "
+                               f"diameter {g['diameter_m']:g} m: they touch")
+        a = g["diameter_m"] / 2
+        return WireLayout(kind, tuple(lengths), tuple(positions), a, g["driven_index"], END_CAP_RADII * a)
+    raise ValueError(f"'{kind}' is not a wire antenna kind ({', '.join(_kinds.WIRE_KINDS)})")
+
+
+def check_modellable(layout: WireLayout, freq_low_hz: float, freq_high_hz: float) -> None:
+    """Raise Unmodellable when the thin-wire model does not apply between the two frequencies (Hz)."""
+    name = layout.kind.replace("_", " ")
+    a = layout.radius_m if layout.conductor_radius_m is None else layout.conductor_radius_m
+    lam_high = C_M_PER_S / freq_high_hz
+    if a > MAX_RADIUS_WAVELENGTHS * lam_high:
+        raise Unmodellable(
+            f"{name}: the wire radius ({a:.4g} m) is too large against the wavelength at {freq_high_hz / 1e6:.6g} MHz "
+            f"(a/λ = {a / lam_high:.3g}, the thin-wire model needs at most {MAX_RADIUS_WAVELENGTHS:g})")
+    # a monopole's layout is its image dipole: speak of the monopole's own height
+    shown, what = (0.5, "a monopole height") if layout.kind == "monopole" else (1.0, "an element length")
+    for length in layout.lengths_m:
+        if length < 2 * MIN_SEGMENT_RADII * a:
+            raise Unmodellable(
+                f"{name}: {what} of {shown * length:.4g} m is too short for its radius ({a:.4g} m): the "
+                f"thin-wire model needs at least {2 * MIN_SEGMENT_RADII * shown:g} radii")
+        lam_low = C_M_PER_S / freq_low_hz
+        if length < MIN_LENGTH_WAVELENGTHS * lam_low:
+            raise Unmodellable(
+                f"{name}: {what} of {shown * length:.4g} m is electrically too short at {freq_low_hz / 1e6:.6g} MHz "
+                f"(below {shown * MIN_LENGTH_WAVELENGTHS:g} λ): its radiation resistance is lost in rounding")
+
+
+def count_bounds(layout: WireLayout, freq_high_hz: float) -> tuple[tuple[int, ...], tuple[int, ...]]:
+    """(fewest, most) segments on each element: MAX_SEGMENT_WAVELENGTHS at freq_high_hz and MIN_SEGMENT_RADII.
+
+    Raises Unmodellable when the fewest exceed the most or the fewest exceed MAX_BASIS in all.
+    """
+    lam = C_M_PER_S / freq_high_hz
+    fewest = tuple(_even(length / (MAX_SEGMENT_WAVELENGTHS * lam)) for length in layout.lengths_m)
+    most = tuple(max(2, int(length / (MIN_SEGMENT_RADII * layout.radius_m)) // 2 * 2) for length in layout.lengths_m)
+    name = layout.kind.replace("_", " ")
+    if any(lo > hi for lo, hi in zip(fewest, most)):
+        raise Unmodellable(
+            f"{name}: at {freq_high_hz / 1e6:.6g} MHz segments would have to be shorter than "
+            f"{MIN_SEGMENT_RADII:g} wire radii ({layout.radius_m:.4g} m): the wire is too thick against the "
+            "wavelength for the thin-wire model")
+    if sum(n - 1 for n in fewest) > MAX_BASIS:
+        raise Unmodellable(
+            f"{name}: the elements are {max(layout.lengths_m) / lam:.4g} wavelengths long at "
+            f"{freq_high_hz / 1e6:.6g} MHz and would need {sum(fewest)} segments, more than the solver's "
+            f"limit of {MAX_BASIS}")
+    return fewest, most
+
+
+def build_wires(layout: WireLayout, per_wire) -> tuple[Wire, ...]:
+    """Wires parallel to z centred on z = 0 with the given segment counts, each end lengthened by end_cap_m."""
+    e = layout.end_cap_m
+    return tuple(Wire(float(x), 0.0, -length / 2 - e, length / 2 + e, layout.radius_m, int(n))
+                 for length, x, n in zip(layout.lengths_m, layout.x_m, per_wire))
+
+
+def feed_impedance_ohm(layout: WireLayout, per_wire, freqs_hz):
+    """Feed-point impedance (ohm) of the layout's wires (centre delta gap on the driven element) and the solution."""
+    structure = build_structure(build_wires(layout, per_wire))
+    solution = solve_structure(structure, structure.centre_basis(layout.driven), freqs_hz)
+    return solution.z_in_ohm, solution
+
+
+def _clamp(counts, fewest, most):
+    return tuple(min(hi, max(lo, n)) for n, lo, hi in zip(counts, fewest, most))
+
+
+@functools.lru_cache(maxsize=4096)
+def converged_segments(layout: WireLayout, freq_hz: float) -> Segmentation:
+    """Segment counts of a layout refined at freq_hz (Hz) until |Z| changes by under CONVERGENCE.
+
+    Deterministic in (layout, freq_hz). The layout must already have passed check_modellable at freq_hz.
+    """
+    fewest, most = count_bounds(layout, freq_hz)
+    lam = C_M_PER_S / freq_hz
+    counts = _clamp(tuple(_even(START_SEGMENTS_PER_WAVELENGTH * length / lam) for length in layout.lengths_m),
+                    fewest, most)
+    z_prev = abs(feed_impedance_ohm(layout, counts, [freq_hz])[0][0])
+    change, stopped_by = float("nan"), "refinement limit"
+    for level in range(1, MAX_REFINEMENTS + 1):
+        finer = _clamp(tuple(2 * n for n in counts), fewest, most)
+        if finer == counts:
+            stopped_by = "segment length limit"
+            return Segmentation(counts, freq_hz, level - 1, change, False, stopped_by)
+        if sum(n - 1 for n in finer) > MAX_BASIS:
+            return Segmentation(counts, freq_hz, level - 1, change, False, "segment budget")
+        z = abs(feed_impedance_ohm(layout, finer, [freq_hz])[0][0])
+        change = abs(z - z_prev) / max(z, z_prev)
+        counts, z_prev = finer, z
+        if change < CONVERGENCE:
+            return Segmentation(counts, freq_hz, level, change, True, "")
+    return Segmentation(counts, freq_hz, MAX_REFINEMENTS, change, False, stopped_by)

@@ -125,6 +125,15 @@ def test_installations_of_an_aircraft_without_an_id_are_still_checked(tmp_path):
         "expected an antenna model id from antennas.yaml"]
 
 
+def test_a_key_written_like_a_path_does_not_upset_the_partial_build(tmp_path):
+    data = registry(tmp_path)
+    file = data / "aircraft" / "qx-fcb.yaml"
+    file.write_text(file.read_text(encoding="utf-8") + "'notes[x]': 1\n", encoding="utf-8")
+    assert problems(data) == [
+        "aircraft/qx-fcb.yaml:15:1: error: notes[x]: found an unknown key 'notes[x]', expected one of "
+        "id, registration, airframe, serial, modifications, installations"]
+
+
 # --- reviews from the future --------------------------------------------------------------------------
 
 

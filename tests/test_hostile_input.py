@@ -16,14 +16,14 @@ from pathlib import Path
 
 import pytest
 import yaml
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 
 from registry import cli
 from registry.compute import feeder as feeder_figures
 from registry.core import figure_keys as FK
 from registry.core.errors import DataError
-from registry.load import inputs, sweepcheck
+from registry.load import extent, inputs, sweepcheck
 from registry.load.fleet import load_fleet
 
 FIXTURES = Path(__file__).parent / "fixtures"
@@ -123,6 +123,15 @@ def test_installations_of_an_aircraft_without_an_id_are_still_checked(tmp_path):
         "aircraft/qx-fcb.yaml:2:1: error: id: found nothing, expected a value (the key is required)",
         "aircraft/qx-fcb.yaml:7:5: error: installations[0].antenna: found 'FXA-NOPE', "
         "expected an antenna model id from antennas.yaml"]
+
+
+def test_a_key_written_like_a_path_does_not_upset_the_partial_build(tmp_path):
+    data = registry(tmp_path)
+    file = data / "aircraft" / "qx-fcb.yaml"
+    file.write_text(file.read_text(encoding="utf-8") + "'notes[x]': 1\n", encoding="utf-8")
+    assert problems(data) == [
+        "aircraft/qx-fcb.yaml:15:1: error: notes[x]: found an unknown key 'notes[x]', expected one of "
+        "id, registration, airframe, serial, modifications, installations"]
 
 
 # --- reviews from the future --------------------------------------------------------------------------
@@ -258,6 +267,7 @@ def numeric_fields(schema: dict, parts: tuple = ()) -> list[tuple[tuple, dict]]:
 
 
 FIELDS = numeric_fields(SCHEMA["$defs"]["installation"])
+OUTLINE = extent.extent(load_fleet(DEMO).airframes["tc-44"])
 
 
 def extreme(schema: dict) -> st.SearchStrategy:
@@ -301,13 +311,16 @@ def test_extreme_valid_numbers_never_crash_check(one_aircraft, capsys, data):
             holder = holder.setdefault(name, {"type": "plate"} if name == "ground_plane" else {})
         if parts[0] == "measured":
             holder.setdefault("date", date(2026, 1, 1))
-        holder[parts[-1]] = data.draw(extreme(schema))
+        inside = getattr(OUTLINE, parts[-1], None)  # a coordinate: often inside the airframe, to reach compute
+        values = extreme(schema) if inside is None else st.one_of(extreme(schema), st.floats(*inside))
+        holder[parts[-1]] = data.draw(values)
     try:
         file.write_text(yaml.safe_dump(document, sort_keys=False), encoding="utf-8")
         code = cli.main(["check", str(one_aircraft)])
     finally:
         file.write_text(original, encoding="utf-8")
     out, err = capsys.readouterr()
+    event(f"exit {code}")  # pytest --hypothesis-show-statistics: how many examples reached the checks
     assert code in (0, 1, 2), err
     for text in (out, err):
         assert "Traceback" not in text and "internal error" not in text

@@ -35,8 +35,8 @@ def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir:
     `cache_dir` (optional) keeps each file's parsed and schema-checked form, keyed by its bytes, so an
     unchanged file is not parsed again; the others are parsed in `workers` processes. A review may not be
     dated after `as_of` (default: the registry's as-of date, `git.as_of_date`) or today, whichever is
-    later (`git.review_limit`). Raises DataError
-    listing every problem, sorted by file and line.
+    later (`git.review_limit`). Every file read must lie inside `data_dir` once links are followed.
+    Raises DataError listing every problem, sorted by file and line.
     """
     return _Run(Path(data_dir), shipped_dir or SHIPPED_DIR, cache_dir, workers, as_of).load()
 

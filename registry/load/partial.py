@@ -30,7 +30,7 @@ class AircraftRead(NamedTuple):
 
 def read_on(doc: build.Doc, problems: list[Problem]) -> AircraftRead:
     """What can be built of an aircraft file with `problems`, with the problems found in building it."""
-    bad = [parse_path(problem.field) for problem in problems]
+    bad = [_parts(problem.field) for problem in problems]
     if not isinstance(doc.data, dict) or (FILE_FIELD,) in bad:
         return AircraftRead(None, problems)
 
@@ -50,3 +50,11 @@ def read_on(doc: build.Doc, problems: list[Problem]) -> AircraftRead:
                   if keep(("installations", n)))
     return AircraftRead(None, problems + integrity.duplicates(loose, "position", "position in this aircraft"),
                         loose=loose)
+
+
+def _parts(field: str) -> tuple[str | int, ...]:
+    """A problem's field as a path; a key that cannot be read back as one (`a[b]`) stands for the whole file."""
+    try:
+        return parse_path(field)
+    except ValueError:
+        return (FILE_FIELD,)

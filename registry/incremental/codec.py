@@ -194,20 +194,24 @@ class _Encoder:
 
     def encode(self, value: Any) -> Any:
         kind = type(value)
-        if kind is str or kind is int or kind is float or kind is bool or value is None:
+        if kind in SCALARS:
             return value
         if kind is tuple:
-            return ["t", *[self.encode(item) for item in value]]
+            return ["t", *self.items(value)]
         if kind is list:
-            return ["l", *[self.encode(item) for item in value]]
+            return ["l", *self.items(value)]
         if kind is dict:
             return self.mapping(value)
         record = self.records.get(kind)
         if record is not None:
             if issubclass(kind, tuple):
-                return [record.tag, *[self.encode(item) for item in value]]
-            return [record.tag, *[self.encode(getattr(value, name)) for name in record.fields]]
+                return [record.tag, *self.items(value)]
+            return [record.tag, *self.items([getattr(value, name) for name in record.fields])]
         return self.other(value)
+
+    def items(self, values: Any) -> list:
+        """Each of `values` encoded; JSON scalars (the most of them) as they are, without a call."""
+        return [item if type(item) in SCALARS else self.encode(item) for item in values]
 
     def mapping(self, value: dict) -> list:
         if id(value) in self.shared:

@@ -45,7 +45,7 @@ def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Ai
     part, patterns = compute_aircraft(fleet, aircraft, as_of)
     summary = AircraftSummary(
         pattern_of={position: result.pattern_key for (_, position), result in part.installations.items()},
-        findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs)),
+        findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs, part.cosite)),
         figure_uses=figure_uses(part.installations.values(), part.pairs),
         record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
                                                         Path(fleet.data_dir))))
@@ -138,6 +138,8 @@ def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],
         if aircraft_id in parts:
             results.installations.update(parts[aircraft_id].installations)
             results.pairs += parts[aircraft_id].pairs
+            if parts[aircraft_id].cosite is not None:
+                results.cosite[aircraft_id] = parts[aircraft_id].cosite
         for position, installation in aircraft.installations.items():
             pattern_key = summary.pattern_of.get(position)
             if pattern_key and pattern_key not in results.patterns:  # named after the first model using it
@@ -152,6 +154,8 @@ def _load_parts(fleet: Fleet, as_of: date, store: DiskCache, results: FleetResul
             part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
         results.installations.update(part.installations)
         results.pairs += part.pairs
+        if part.cosite is not None:
+            results.cosite[aircraft_id] = part.cosite
         results.unloaded.discard(aircraft_id)
 
 

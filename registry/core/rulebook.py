@@ -22,6 +22,8 @@ RULE_SEVERITY = {
     "antenna-suitability": "concern",
     "measurement-age": "advisory",
     "missing-data": "advisory",
+    "cosite": "blocking",
+    "cosite-small": "concern",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

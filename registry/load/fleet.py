@@ -24,6 +24,7 @@ SHIPPED_DIR = Path(__file__).parent.parent / "data"
 POLICY_KEYS = ("length_tolerance_pct", "vswr_limit", "vswr_limit_by_service", "feeder_loss_budget_db",
                "connector_loss_db", "adapter_loss_db", "measurement_max_age_days",
                "ground_plane_min_radius_wavelengths", "min_isolation_db")
+_COSITE_POLICY = {"cosite_max_harmonic_order": int, "cosite_small_margin_db": float}
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
 
 
@@ -245,4 +246,5 @@ class _Run:
             ground_plane_min_radius_wavelengths=float(merged["ground_plane_min_radius_wavelengths"]),
             min_isolation_db=tuple(rules[pair] for pair in sorted(rules)),
             sources=FrozenMap(merged.get("sources", {})),
+            **{key: kind(merged[key]) for key, kind in _COSITE_POLICY.items() if key in merged},
         )

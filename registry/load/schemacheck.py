@@ -33,6 +33,7 @@ _UNIT_SUFFIXES = (
     ("_db_per_100m", "dB per 100 m"), ("_db_per_100ft", "dB per 100 ft"), ("_mhz", "MHz"),
     ("_wavelengths", "wavelengths"), ("_days", "days"), ("_pct", "per cent"), ("_deg", "degrees"),
     ("_ohm", "ohms"), ("_db", "dB"), ("_m", "metres"),
+    ("_dbm", "dBm"), ("_dbc", "dBc"), ("_khz", "kHz"),
 )
 _NUMBER_WITH_UNIT = re.compile(r"\s*[-+]?(\d+\.?\d*|\.\d+)\s*[A-Za-z%]")
 _EXPONENT_WITHOUT_DOT = re.compile(r"[-+]?\d+[eE][-+]?\d+")

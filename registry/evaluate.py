@@ -48,7 +48,7 @@ def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Ai
         findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs, part.cosite)),
         figure_uses=figure_uses(part.installations.values(), part.pairs),
         record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
-                                                        Path(fleet.data_dir))))
+                                                        Path(fleet.data_dir), part.cosite)))
     return part, summary, patterns
 
 

@@ -1,0 +1,121 @@
+"""An aircraft's interference page: the transmitter × receiver matrix of worst co-site margins (each cell
+opens the arithmetic, details/summary, no script), a frequency chart drawn here as SVG, and the
+intermodulation products located in frequency."""
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from markupsafe import Markup, escape
+
+from registry.core import figure_keys as FK
+from registry.core.model import Aircraft
+from registry.core.results import AircraftCosite, CositeHit, CositePath
+from registry.output.report import format_value
+from registry.site.context import SiteData
+from registry.site.pages import Page, page
+from registry.site.paths import aircraft_path
+from registry.site.svg import n
+
+INTERMOD_SHOWN = 200
+"""Intermodulation products listed on the page; the rest are counted (`check --details` lists all)."""
+
+
+def cosite_path(aircraft_id: str) -> str:
+    return f"aircraft/{aircraft_id}/interference.html"
+
+
+def cosite_outputs(data: SiteData, aircraft: Aircraft) -> list[Page]:
+    """The aircraft's interference page, when its co-site analysis is loaded."""
+    cosite = data.results.cosite.get(aircraft.id)
+    return [] if cosite is None else [cosite_page(data, aircraft, cosite)]
+
+
+def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> Page:
+    small = data.fleet.policy.cosite_small_margin_db
+    transmitters = sorted({p for p, _, side, _ in cosite.bands if side == "tx"})
+    receivers = sorted({p for p, _, side, _ in cosite.bands if side == "rx"})
+    paths = {(path.tx, path.rx): path for path in cosite.paths}
+    rows = [{"tx": tx, "cells": [cell(paths.get((tx, rx)), tx == rx, small) for rx in receivers]}
+            for tx in transmitters]
+    products = [item for item in cosite.intermod if not item.excused_by]
+    return page(cosite_path(aircraft.id), "cosite.html", "fleet", f"{aircraft.registration} interference",
+                [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
+                 ("Interference", None)],
+                aircraft=aircraft, receivers=receivers, rows=rows, small_db=small,
+                max_order=data.fleet.policy.cosite_max_harmonic_order,
+                chart=frequency_chart(cosite), intermod=products[:INTERMOD_SHOWN],
+                intermod_more=max(0, len(products) - INTERMOD_SHOWN),
+                intermod_excused=len(cosite.intermod) - len(products),
+                excused=[path for path in cosite.paths if path.excused_by])
+
+
+def cell(path: CositePath | None, same: bool, small_db: float) -> dict[str, Any]:
+    """One matrix cell: its state, the worst margin as `check --details` writes it, and every hit."""
+    if same:
+        return {"state": "self", "text": "—", "hits": ()}
+    if path is None:
+        return {"state": "clear", "text": "nothing lands", "hits": ()}
+    if path.excused_by:
+        return {"state": "excused", "text": f"excused ({path.excused_by} line)", "hits": ()}
+    worst = path.worst
+    margin = worst.margin_db if worst is not None else None
+    state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db
+             else "ok")
+    text = margin_text(worst) if margin is not None else "no level"
+    return {"state": state, "text": text, "id": f"c-{path.tx}-{path.rx}", "tx": path.tx, "rx": path.rx,
+            "hits": [hit_view(hit) for hit in path.hits]}
+
+
+def margin_text(hit: CositeHit) -> str:
+    figure = next(f for f in hit.figures if f.key == FK.COSITE_MARGIN_DB)
+    return format_value(figure)
+
+
+def hit_view(hit: CositeHit) -> dict[str, Any]:
+    return {"product": hit.product, "channels": hit.channels,
+            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz",
+            "figures": [{"label": f.label, "value": format_value(f), "formula": f.formula,
+                         "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs), "source": f.source, "src": f.src}
+                        for f in hit.figures]}
+
+
+CHART_WIDTH, ROW_HEIGHT, LEFT, TOP = 860, 22, 150, 28
+
+
+def frequency_chart(cosite: AircraftCosite) -> Markup:
+    """Transmit ranges and receive bands on a logarithmic frequency axis, one row per installation and
+    side; the harmonics that land are drawn on their receiver's row."""
+    rows = sorted(cosite.bands, key=lambda row: (row[2], row[0]))
+    if not rows:
+        return Markup("")
+    edges = [f for _, _, _, ranges in rows for band in ranges for f in band]
+    lo, hi = math.log10(min(edges) / 1.5), math.log10(max(edges) * 1.5)
+    x = lambda f: LEFT + (math.log10(f) - lo) / (hi - lo) * (CHART_WIDTH - LEFT - 10)  # noqa: E731
+    height = TOP + ROW_HEIGHT * len(rows) + 10
+    parts = [f'<svg class="cosite-chart" viewBox="0 0 {CHART_WIDTH} {height}" role="img" '
+             f'aria-labelledby="chart-title"><title id="chart-title">Transmit ranges, receive bands and the '
+             f'harmonics that land, frequency in MHz on a logarithmic scale</title>']
+    for decade in range(math.ceil(lo), math.floor(hi) + 1):
+        gx = n(x(10 ** decade))
+        parts.append(f'<line x1="{gx}" y1="{TOP - 6}" x2="{gx}" y2="{height - 10}" class="grid"/>'
+                     f'<text x="{gx}" y="{TOP - 10}" class="tick">{10 ** decade:g} MHz</text>')
+    landing = {}
+    for path in cosite.paths:
+        for hit in path.hits:
+            landing.setdefault(path.rx, []).append((hit, path.tx))
+    for i, (position, service, side, ranges) in enumerate(rows):
+        y = TOP + i * ROW_HEIGHT
+        parts.append(f'<text x="4" y="{n(y + 14)}" class="label">{escape(position)} {side}</text>')
+        for band_lo, band_hi in ranges:
+            width = max(2.0, x(band_hi) - x(band_lo))
+            parts.append(f'<rect x="{n(x(band_lo))}" y="{n(y + 4)}" width="{n(width)}" height="12" class="{side}">'
+                         f'<title>{escape(position)} ({escape(service)}) {side} {band_lo:g}–{band_hi:g} MHz</title></rect>')
+        if side == "rx":
+            for hit, tx in landing.get(position, ()):
+                hx = n(x(hit.product_lo_mhz))
+                bad = "hit-bad" if hit.margin_db is not None and hit.margin_db < 0 else "hit"
+                parts.append(f'<path d="M{hx} {n(y + 2)} l-4 -6 h8 z" class="{bad}"><title>{escape(tx)} '
+                             f'{hit.product} at {hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz</title></path>')
+    parts.append("</svg>")
+    return Markup("".join(parts))

@@ -21,7 +21,8 @@ from registry.check.rules import aircraft_discrepancies
 from registry.compute.aircraft import cable_results, compute_aircraft
 from registry.core.model import Aircraft, Fleet
 from registry.core.progress import QUIET, Progress
-from registry.core.results import AircraftPart, AircraftSummary, FleetResults, PatternResult, figure_uses
+from registry.core.results import (AircraftPart, AircraftSummary, FleetResults, PatternResult, cosite_cells,
+                                   figure_uses)
 from registry.incremental import DiskCache, key_of, ordered_map
 from registry.output import record
 
@@ -48,7 +49,8 @@ def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Ai
         findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs, part.cosite)),
         figure_uses=figure_uses(part.installations.values(), part.pairs),
         record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
-                                                        Path(fleet.data_dir), part.cosite)))
+                                                        Path(fleet.data_dir), part.cosite)),
+        cosite=cosite_cells(part.cosite))
     return part, summary, patterns
 
 

@@ -123,3 +123,17 @@ def test_interference_page_agrees_with_check_details(demo_site, capsys):
     assert cells and set(cells) == set(details)
     assert cells == details
     assert cells[("VHF3", "GNSS1")] < 0
+
+
+def test_type_page_shows_the_worst_margin_of_the_paths_every_aircraft_shares(demo_site, demo_fleet):
+    """The TJ-88 page: VHF1 → GNSS1 is on all three jets; its worst margin is the lowest of the three
+    aircraft pages' cells. VHF3 is not on every jet (QX-TJC's third radio is VHF3-AFT): not listed."""
+    def cell(html: str, tx: str, rx: str) -> float:
+        match = re.search(rf'data-tx="{tx}" data-rx="{rx}"><summary>(-?[\d.]+) dB</summary>', html)
+        return float(match.group(1))
+    jets = [a.id for a in demo_fleet.aircraft.values() if a.airframe == "tj-88"]
+    each = [cell((demo_site / "aircraft" / a / "interference.html").read_text(encoding="utf-8"), "VHF1", "GNSS1")
+            for a in jets]
+    html = (demo_site / "interference" / "tj-88.html").read_text(encoding="utf-8")
+    assert cell(html, "VHF1", "GNSS1") == min(each)
+    assert 'data-tx="VHF3"' not in html

@@ -211,6 +211,30 @@ class AircraftPart:
     cosite: AircraftCosite | None = None
 
 
+class CositeCell(NamedTuple):
+    """One transmitter → receiver path reduced to its worst: what a type-wide page needs of it."""
+
+    tx: str
+    rx: str
+    tx_service: str
+    rx_service: str
+    margin_db: float | None
+    excused_by: str
+    what: str
+    """The worst hit in words: '13th harmonic, channels 121.108–121.258 MHz (19 at 8.333 kHz)'."""
+
+
+def cosite_cells(cosite: AircraftCosite | None) -> tuple[CositeCell, ...]:
+    """Each path of an aircraft's co-site analysis as its worst hit."""
+    cells = []
+    for path in cosite.paths if cosite is not None else ():
+        worst = path.worst
+        cells.append(CositeCell(path.tx, path.rx, path.tx_service, path.rx_service,
+                                worst.margin_db if worst is not None else None, path.excused_by,
+                                f"{worst.product}, {worst.channels}" if worst is not None else ""))
+    return tuple(cells)
+
+
 FigureUse = tuple[str, str, str, str, str, str]
 """(key, label, unit, formula, source, where): one kind of figure as the methods page lists it."""
 
@@ -235,6 +259,8 @@ class AircraftSummary(NamedTuple):
     findings: tuple[Discrepancy, ...] | None
     figure_uses: dict[FigureUse, int]
     record: tuple[str, str, str] | None = None
+    cosite: tuple[CositeCell, ...] = ()
+    """Its co-site paths' worst margins, for the airframe type's interference page (`cosite_cells`)."""
 
 
 @dataclass

@@ -25,6 +25,10 @@ def cosite_path(aircraft_id: str) -> str:
     return f"aircraft/{aircraft_id}/interference.html"
 
 
+def type_cosite_path(airframe_id: str) -> str:
+    return f"interference/{airframe_id}.html"
+
+
 def cosite_outputs(data: SiteData, aircraft: Aircraft) -> list[Page]:
     """The aircraft's interference page, when its co-site analysis is loaded."""
     cosite = data.results.cosite.get(aircraft.id)
@@ -43,6 +47,7 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
                 [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
                  ("Interference", None)],
                 aircraft=aircraft, receivers=receivers, rows=rows, small_db=small,
+                airframe=data.fleet.airframe_of(aircraft), type_href=type_cosite_path(aircraft.airframe),
                 max_order=data.fleet.policy.cosite_max_harmonic_order,
                 chart=frequency_chart(cosite), intermod=products[:INTERMOD_SHOWN],
                 intermod_more=max(0, len(products) - INTERMOD_SHOWN),
@@ -119,3 +124,34 @@ def frequency_chart(cosite: AircraftCosite) -> Markup:
                              f'{hit.product} at {hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz</title></path>')
     parts.append("</svg>")
     return Markup("".join(parts))
+
+
+def type_cosite_pages(data: SiteData) -> list[Page]:
+    """One page per airframe type: the transmitter → receiver paths every aircraft of the type has, with
+    the worst margin over them and each aircraft's own (from the aircraft summaries, no figures loaded)."""
+    pages = []
+    small = data.fleet.policy.cosite_small_margin_db
+    for airframe in data.fleet.airframes.values():
+        members = [a for a in data.fleet.aircraft.values() if a.airframe == airframe.id]
+        summaries = [data.results.summaries.get(a.id) for a in members]
+        if not members or any(summary is None for summary in summaries):
+            continue
+        cells = [{(c.tx, c.rx): c for c in summary.cosite} for summary in summaries]
+        shared = sorted(set.intersection(*(set(c) for c in cells)))
+        rows = []
+        for key in shared:
+            each = [(aircraft, by_path[key]) for aircraft, by_path in zip(members, cells)]
+            rated = [c.margin_db for _, c in each if c.margin_db is not None]
+            worst = min(rated) if rated else None
+            state = ("excused" if each[0][1].excused_by else "unrated" if worst is None else
+                     "blocking" if worst < 0 else "concern" if worst < small else "ok")
+            rows.append({"tx": key[0], "rx": key[1], "services": f"{each[0][1].tx_service} → {each[0][1].rx_service}",
+                         "state": state, "worst": "—" if worst is None else f"{worst:.4g} dB",
+                         "excused_by": each[0][1].excused_by,
+                         "each": [{"registration": a.registration, "href": cosite_path(a.id),
+                                   "margin": "—" if c.margin_db is None else f"{c.margin_db:.4g} dB",
+                                   "what": c.what} for a, c in each]})
+        pages.append(page(type_cosite_path(airframe.id), "cosite_type.html", "fleet",
+                          f"{airframe.name} interference", [("Fleet", "index.html"), (airframe.name, None)],
+                          airframe=airframe, members=members, rows=rows, small_db=small))
+    return pages

@@ -18,6 +18,7 @@ the transmit cable loses more at the harmonic, so the figure understates that lo
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft, Fleet, Installation, Service
@@ -189,5 +190,12 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
                                                    rx.installation.position, hit.label, hit.order,
                                                    (hit.f1_lo_mhz, hit.f1_hi_mhz), (hit.f2_lo_mhz, hit.f2_hi_mhz),
                                                    (hit.product_lo_mhz, hit.product_hi_mhz), line)
-                                    for hit in cosite.intermod_hits(f1, f2, victim, INTERMOD_ORDERS)]
+                                    for hit in _intermod_hits(f1, f2, victim)]
     return out
+
+
+@lru_cache(maxsize=4096)
+def _intermod_hits(f1: tuple[float, float], f2: tuple[float, float], victim: tuple[float, float]) -> tuple:
+    """`physics.cosite.intermod_hits` once per set of ranges in a process: the products depend on the
+    ranges only, and every aircraft's transmitters and receivers draw them from the same service table."""
+    return tuple(cosite.intermod_hits(f1, f2, victim, INTERMOD_ORDERS))

@@ -172,10 +172,10 @@ class CositePath(WithFigures):
         return worst.figures if worst else ()
 
 
-@dataclass(frozen=True, slots=True)
-class CositeIntermod:
+class CositeIntermod(NamedTuple):
     """An intermodulation product a·f1 + b·f2 of two transmitters landing in a receiver's band: located
-    in frequency only (no level model); `excused_by` names a suppression line all three share."""
+    in frequency only (no level model); `excused_by` names a suppression line all three share. A named
+    tuple: an aircraft has thousands, and tuples are the cheapest to keep in the cache."""
 
     aircraft: str
     tx_a: str

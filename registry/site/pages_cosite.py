@@ -17,7 +17,7 @@ from registry.site.pages import Page, page
 from registry.site.paths import aircraft_path
 from registry.site.svg import n
 
-INTERMOD_SHOWN = 200
+INTERMOD_SHOWN = 60
 """Intermodulation products listed on the page; the rest are counted (`check --details` lists all)."""
 
 
@@ -40,7 +40,8 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
     transmitters = sorted({p for p, _, side, _ in cosite.bands if side == "tx"})
     receivers = sorted({p for p, _, side, _ in cosite.bands if side == "rx"})
     paths = {(path.tx, path.rx): path for path in cosite.paths}
-    rows = [{"tx": tx, "cells": [cell(paths.get((tx, rx)), tx == rx, small) for rx in receivers]}
+    notes = Notes(data.src_text)
+    rows = [{"tx": tx, "cells": [cell(paths.get((tx, rx)), tx == rx, small, notes) for rx in receivers]}
             for tx in transmitters]
     products = [item for item in cosite.intermod if not item.excused_by]
     return page(cosite_path(aircraft.id), "cosite.html", "fleet", f"{aircraft.registration} interference",
@@ -52,10 +53,11 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
                 chart=frequency_chart(cosite), intermod=products[:INTERMOD_SHOWN],
                 intermod_more=max(0, len(products) - INTERMOD_SHOWN),
                 intermod_excused=len(cosite.intermod) - len(products),
-                excused=[path for path in cosite.paths if path.excused_by])
+                excused=[path for path in cosite.paths if path.excused_by],
+                notes=sorted((number, text) for text, number in notes.numbers.items()))
 
 
-def cell(path: CositePath | None, same: bool, small_db: float) -> dict[str, Any]:
+def cell(path: CositePath | None, same: bool, small_db: float, notes: Notes) -> dict[str, Any]:
     """One matrix cell: its state, the worst margin as `check --details` writes it, and every hit."""
     if same:
         return {"state": "self", "text": "—", "hits": ()}
@@ -68,8 +70,11 @@ def cell(path: CositePath | None, same: bool, small_db: float) -> dict[str, Any]
     state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db
              else "ok")
     text = margin_text(worst) if margin is not None else "no level"
+    others = [{"product": hit.product, "channels": hit.channels,
+               "margin": margin_text(hit) if hit.margin_db is not None else "no level"}
+              for hit in path.hits if hit is not worst]
     return {"state": state, "text": text, "id": f"c-{path.tx}-{path.rx}", "tx": path.tx, "rx": path.rx,
-            "hits": [hit_view(hit) for hit in path.hits]}
+            "hits": [hit_view(worst, notes)], "others": others}
 
 
 def margin_text(hit: CositeHit) -> str:
@@ -77,12 +82,32 @@ def margin_text(hit: CositeHit) -> str:
     return format_value(figure)
 
 
-def hit_view(hit: CositeHit) -> dict[str, Any]:
+class Notes:
+    """The page's numbered sources, and how it shows a registry line (relative to the data folder)."""
+
+    def __init__(self, src_text):
+        self.numbers: dict[str, int] = {}
+        self.src_text = src_text
+
+    def number(self, source: str) -> int | None:
+        return self.numbers.setdefault(source, len(self.numbers) + 1) if source else None
+
+
+STANDINGS = ("sourced", "common practice, no source", "unverified", "installed radio")
+
+
+def hit_view(hit: CositeHit, notes: Notes) -> dict[str, Any]:
+    """A hit's arithmetic; each figure's source is numbered once per page (`notes`) and shown in the cell
+    by its number and standing, so long source texts are not repeated in every cell."""
+    figures = []
+    for f in hit.figures:
+        number = notes.number(f.source)
+        standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
+        figures.append({"label": f.label, "value": format_value(f), "formula": f.formula,
+                        "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs), "note": number,
+                        "standing": standing, "src": notes.src_text(f.src) if f.src else ""})
     return {"product": hit.product, "channels": hit.channels,
-            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz",
-            "figures": [{"label": f.label, "value": format_value(f), "formula": f.formula,
-                         "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs), "source": f.source, "src": f.src}
-                        for f in hit.figures]}
+            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figures}
 
 
 CHART_WIDTH, ROW_HEIGHT, LEFT, TOP = 860, 22, 150, 28

@@ -36,7 +36,7 @@ def path_of(part, tx, rx):
     return next(path for path in part.cosite.paths if (path.tx, path.rx) == (tx, rx))
 
 
-def test_planted_vhf_harmonic_into_gnss_worked_by_hand(demo_fleet, tja):
+def test_planted_vhf_harmonic_into_gnss_worked_by_hand_p525(demo_fleet, tja):
     """QX-TJA VHF3 (pool unit, −100 dBc harmonics) at STA 13400 mm, GNSS1 at STA 10200 mm, both on the
     crown at BL 0, WL 3950: d = 3.2 m. 13th harmonic: 1574.397/13 = 121.1075 MHz up to 1576.443/13 =
     121.2648 MHz; on the 25/3 kHz grid from 118.000 MHz the channels 121.108333 … 121.258333 MHz (19)."""

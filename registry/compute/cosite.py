@@ -33,7 +33,8 @@ COORD_UNITS = {"in": "inch", "mm": "mm"}
 INTERMOD_ORDERS = (3, 5)
 """Intermodulation orders located (ITU-R SM.329 §1.1.3: odd orders fall near the carriers)."""
 FRIIS = "Friis, Proc. IRE 34 (1946); free-space loss per ITU-R P.525"
-MARGIN_SOURCE = "field notes, co-site paragraph; CEPT 'Example of calculations' §4.1 (iRSS unwanted)"
+MARGIN_SOURCE = ("unwanted level as in CEPT wiki 'Example of calculations' §4.1 (iRSSunwanted, Eq. 20–21), "
+                 "with both feeders' losses")
 
 
 class Side:

@@ -62,9 +62,9 @@ def cell(path: CositePath | None, same: bool, small_db: float, notes: Notes) -> 
     if same:
         return {"state": "self", "text": "—", "hits": ()}
     if path is None:
-        return {"state": "clear", "text": "nothing lands", "hits": ()}
+        return {"state": "clear", "text": "·", "hits": ()}
     if path.excused_by:
-        return {"state": "excused", "text": f"excused ({path.excused_by} line)", "hits": ()}
+        return {"state": "excused", "text": f"excused: {path.excused_by}", "hits": ()}
     worst = path.worst
     margin = worst.margin_db if worst is not None else None
     state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db
@@ -103,11 +103,25 @@ def hit_view(hit: CositeHit, notes: Notes) -> dict[str, Any]:
     for f in hit.figures:
         number = notes.number(f.source)
         standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
-        figures.append({"label": f.label, "value": format_value(f), "formula": f.formula,
-                        "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs), "note": number,
+        figures.append({"label": f.label, "value": format_value(f),
+                        "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs) if f.key == FK.COSITE_COUPLING_DB
+                        else "", "note": number,
                         "standing": standing, "src": notes.src_text(f.src) if f.src else ""})
     return {"product": hit.product, "channels": hit.channels,
-            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figures}
+            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figures,
+            "sum": arithmetic(hit)}
+
+
+def arithmetic(hit: CositeHit) -> str:
+    """The margin written out with the cell's numbers: level = P + E − L_tx + C − L_rx; margin."""
+    value = {f.key: f for f in hit.figures}
+    keys = (FK.COSITE_TX_POWER_DBM, FK.COSITE_EMISSION_DBC, FK.COSITE_TX_FEEDER_LOSS_DB, FK.COSITE_COUPLING_DB,
+            FK.COSITE_RX_FEEDER_LOSS_DB, FK.COSITE_LEVEL_DBM, FK.COSITE_THRESHOLD_DBM, FK.COSITE_MARGIN_DB)
+    if any(key not in value or value[key].value is None for key in keys):
+        return ""
+    p, e, ltx, c, lrx, level, threshold, margin = (format_value(value[key]) for key in keys)
+    return (f"level = P + E − L_tx + C − L_rx = {p} + ({e}) − {ltx} + ({c}) − {lrx} = {level}; "
+            f"margin = threshold − level = {threshold} − ({level}) = {margin}")
 
 
 CHART_WIDTH, ROW_HEIGHT, LEFT, TOP = 860, 22, 150, 28

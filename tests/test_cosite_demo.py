@@ -139,3 +139,26 @@ def test_type_page_shows_the_worst_margin_of_the_paths_every_aircraft_shares(dem
     html = (demo_site / "interference" / "tj-88.html").read_text(encoding="utf-8")
     assert cell(html, "VHF1", "GNSS1") == min(each)
     assert 'data-tx="VHF3"' not in html
+
+
+def test_every_reported_product_lies_in_the_victims_band(demo_fleet):
+    """Over the whole demo fleet, independent of the interval arithmetic: each harmonic's range is its
+    order times its channels and lies in one of the receiver's bands; each channel run is on the plan
+    (first + k·step); each intermodulation product a·f1 + b·f2 evaluated at the reported ends lies in a band."""
+    for aircraft in demo_fleet.aircraft.values():
+        part, _ = compute_aircraft(demo_fleet, aircraft, AS_OF)
+        for path in part.cosite.paths:
+            tx = demo_fleet.services[path.tx_service]
+            bands = demo_fleet.services[path.rx_service].rx_bands_mhz
+            for hit in path.hits:
+                assert hit.product_lo_mhz == pytest.approx(hit.order * hit.channels_lo_mhz)
+                assert hit.product_hi_mhz == pytest.approx(hit.order * hit.channels_hi_mhz)
+                assert any(lo - 1e-6 <= hit.product_lo_mhz <= hit.product_hi_mhz <= hi + 1e-6 for lo, hi in bands)
+                if hit.channel_count:
+                    step_khz = 25 / 3 if hit.step_khz == 8.333 else hit.step_khz  # ED-23C: 25 kHz / 3
+                    k = (hit.channels_lo_mhz - tx.tx_bands_mhz[0][0]) * 1000 / step_khz
+                    assert abs(k - round(k)) < 1e-6
+        for item in part.cosite.intermod:
+            rx = demo_fleet.aircraft[aircraft.id].installations[item.rx]
+            bands = demo_fleet.services[rx.service].rx_bands_mhz
+            assert any(lo - 1e-6 <= item.product_mhz[0] <= item.product_mhz[1] <= hi + 1e-6 for lo, hi in bands)

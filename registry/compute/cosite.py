@@ -96,14 +96,7 @@ def harmonic_hits(fleet: Fleet, tx: Side, rx: Side, unit: str, isolation: dict) 
     hits = []
     for band in tx.service.tx_bands_mhz:
         for victim in rx.service.rx_bands_mhz:
-            if step:
-                found = [(h.order, h.first_channel_mhz, h.last_channel_mhz, h.channel_count,
-                          h.product_lo_mhz, h.product_hi_mhz)
-                         for h in cosite.channel_harmonic_hits((band[0], band[1], step), victim, order_limit)]
-            else:
-                found = [(h.order, h.tx_lo_mhz, h.tx_hi_mhz, 0, h.product_lo_mhz, h.product_hi_mhz)
-                         for h in cosite.harmonic_hits(band, victim, order_limit)]
-            for order, lo, hi, count, p_lo, p_hi in found:
+            for order, lo, hi, count, p_lo, p_hi in _harmonic_hits(band, step, victim, order_limit):
                 figures, margin = margin_figures(tx, rx, unit, isolation, p_lo)
                 hits.append(CositeHit(order, lo, hi, count, step, p_lo, p_hi, figures, margin))
     return hits
@@ -187,16 +180,29 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
                 for f1 in one.service.tx_bands_mhz:
                     for f2 in two.service.tx_bands_mhz:
                         for victim in rx.service.rx_bands_mhz:
-                            out += [CositeIntermod(aircraft_id, one.installation.position, two.installation.position,
-                                                   rx.installation.position, hit.label, hit.order,
-                                                   (hit.f1_lo_mhz, hit.f1_hi_mhz), (hit.f2_lo_mhz, hit.f2_hi_mhz),
-                                                   (hit.product_lo_mhz, hit.product_hi_mhz), line)
+                            out += [CositeIntermod(aircraft_id, one.installation.position,
+                                                   two.installation.position, rx.installation.position, *hit, line)
                                     for hit in _intermod_hits(f1, f2, victim)]
     return out
+
+
+@lru_cache(maxsize=4096)
+def _harmonic_hits(band: tuple[float, float], step_khz: float, victim: tuple[float, float],
+                   order_limit: int) -> tuple[tuple[int, float, float, int, float, float], ...]:
+    """(order, first, last, channel count (0: continuous), product low, product high) of each harmonic
+    that lands, once per set of ranges in a process (they depend on the service table only)."""
+    if step_khz:
+        return tuple((h.order, h.first_channel_mhz, h.last_channel_mhz, h.channel_count, h.product_lo_mhz,
+                      h.product_hi_mhz)
+                     for h in cosite.channel_harmonic_hits((band[0], band[1], step_khz), victim, order_limit))
+    return tuple((h.order, h.tx_lo_mhz, h.tx_hi_mhz, 0, h.product_lo_mhz, h.product_hi_mhz)
+                 for h in cosite.harmonic_hits(band, victim, order_limit))
 
 
 @lru_cache(maxsize=4096)
 def _intermod_hits(f1: tuple[float, float], f2: tuple[float, float], victim: tuple[float, float]) -> tuple:
     """`physics.cosite.intermod_hits` once per set of ranges in a process: the products depend on the
     ranges only, and every aircraft's transmitters and receivers draw them from the same service table."""
-    return tuple(cosite.intermod_hits(f1, f2, victim, INTERMOD_ORDERS))
+    return tuple((hit.label, hit.order, (hit.f1_lo_mhz, hit.f1_hi_mhz), (hit.f2_lo_mhz, hit.f2_hi_mhz),
+                  (hit.product_lo_mhz, hit.product_hi_mhz))
+                 for hit in cosite.intermod_hits(f1, f2, victim, INTERMOD_ORDERS))

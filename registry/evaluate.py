@@ -21,7 +21,8 @@ from registry.check.rules import aircraft_discrepancies
 from registry.compute.aircraft import cable_results, compute_aircraft
 from registry.core.model import Aircraft, Fleet
 from registry.core.progress import QUIET, Progress
-from registry.core.results import AircraftPart, AircraftSummary, FleetResults, PatternResult, figure_uses
+from registry.core.results import (AircraftPart, AircraftSummary, FleetResults, PatternResult, cosite_cells,
+                                   figure_uses)
 from registry.incremental import DiskCache, key_of, ordered_map
 from registry.output import record
 
@@ -47,10 +48,11 @@ def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Ai
     part, patterns = compute_aircraft(fleet, aircraft, as_of)
     summary = AircraftSummary(
         pattern_of={position: result.pattern_key for (_, position), result in part.installations.items()},
-        findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs)),
+        findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs, part.cosite)),
         figure_uses=figure_uses(part.installations.values(), part.pairs),
         record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
-                                                        Path(fleet.data_dir))))
+                                                        Path(fleet.data_dir), part.cosite)),
+        cosite=cosite_cells(part.cosite))
     return part, summary, patterns
 
 
@@ -140,6 +142,8 @@ def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],
         if aircraft_id in parts:
             results.installations.update(parts[aircraft_id].installations)
             results.pairs += parts[aircraft_id].pairs
+            if parts[aircraft_id].cosite is not None:
+                results.cosite[aircraft_id] = parts[aircraft_id].cosite
         for position, installation in aircraft.installations.items():
             pattern_key = summary.pattern_of.get(position)
             if pattern_key and pattern_key not in results.patterns:  # named after the first model using it
@@ -154,6 +158,8 @@ def _load_parts(fleet: Fleet, as_of: date, store: DiskCache, results: FleetResul
             part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
         results.installations.update(part.installations)
         results.pairs += part.pairs
+        if part.cosite is not None:
+            results.cosite[aircraft_id] = part.cosite
         results.unloaded.discard(aircraft_id)
 
 

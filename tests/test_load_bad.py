@@ -41,6 +41,15 @@ EXPECTED = {
     "band_edges_reversed": [
         'services.yaml:5:17: error: services[0].bands_mhz[0]: found [137, 131], expected the lower band edge first (low < high)',
     ],
+    "cosite_level_with_unit": [
+        "services.yaml:10:24: error: services[0].tx_peak_power_dbm: found '44 dBm', expected a number without a unit (the unit is in the key name)",
+        'services.yaml:11:28: error: services[0].tx_channel_steps_khz[0]: found 0, expected a number greater than 0 and at most 100000 kHz',
+    ],
+    "cosite_transmit_figures_on_receiver": [
+        'services.yaml:10:5: error: services[0].tx_peak_power_dbm: found tx_peak_power_dbm on a service with transmits: false, expected transmit figures only on a transmitting service',
+        'services.yaml:11:20: error: services[0].rx_bands_mhz[0]: found [137, 131], expected the lower band edge first (low < high)',
+        'services.yaml:14:7: error: services[0].sources.spurious_dbc: found a source for spurious_dbc, which this entry does not give, expected a source only for a figure the entry gives',
+    ],
     "design_freq_outside_bands": [
         "services.yaml:6:5: error: services[0].design_freq_mhz: found 150 MHz, expected a frequency within the service's bands, 131 to 137 MHz",
     ],
@@ -119,7 +128,7 @@ EXPECTED = {
         'policy.yaml:2:13: error: vswr_limit: found 1.0e+308, expected a number between 1.01 and 100 (VSWR, the ratio n:1)',
     ],
     "review_unknown_rule": [
-        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, unmodellable (did you mean 'feeder-loss'?)",
+        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, unmodellable, cosite, cosite-small (did you mean 'feeder-loss'?)",
     ],
     "serial_not_quoted": [
         'aircraft/qx-fcb.yaml:5:9: error: serial: found 2018, expected text (put it in quotes)',

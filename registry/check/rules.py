@@ -13,7 +13,7 @@ from registry.compute.kinds import kind_of
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft, AntennaModel, Cable, Fleet, Installation, Service
 from registry.core.sources import where
-from registry.core.results import Discrepancy, Figure, InstallationResult
+from registry.core.results import AircraftCosite, CositePath, Discrepancy, Figure, InstallationResult
 from registry.core.rulebook import RULE_SEVERITY
 
 IMPEDANCE_TOLERANCE_PCT = 5.0
@@ -23,14 +23,17 @@ practice, no source: catalogue impedances are nominal to a few per cent."""
 
 
 def aircraft_discrepancies(fleet: Fleet, aircraft: Aircraft, installations: dict[tuple[str, str], InstallationResult],
-                           pairs: list) -> list[Discrepancy]:
-    """Every rule over one aircraft's figures: its installations' and its pairs' (no reviews applied)."""
+                           pairs: list, cosite: AircraftCosite | None = None) -> list[Discrepancy]:
+    """Every rule over one aircraft's figures: its installations', its pairs' and its co-site paths'
+    (no reviews applied)."""
     found: list[Discrepancy] = []
     for installation in aircraft.installations.values():
         found += installation_discrepancies(fleet, aircraft, installation,
                                             installations[(aircraft.id, installation.position)])
     for pair in pairs:
         found += pair_discrepancies(fleet, pair)
+    if cosite is not None:
+        found += cosite_discrepancies(fleet, cosite)
     return found
 
 
@@ -267,6 +270,36 @@ def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
         "isolation", pair.aircraft, f"{pair.position_a}+{pair.position_b}", isolation.value, minimum.value, "dB",
         f"{pair.position_a} and {pair.position_b} are {distance.value:.2f} m apart: free-space isolation "
         f"{isolation.value:.1f} dB is under the {minimum.value:g} dB minimum{caveat}.", isolation)]
+
+
+def cosite_discrepancies(fleet: Fleet, cosite: AircraftCosite) -> list[Discrepancy]:
+    """Co-site margins: `cosite` for any negative margin between two installations (each negative harmonic
+    named with its channels and margin), `cosite-small` for margins under the policy's small margin.
+    One finding per pair of positions (sorted, as reviews name pairs); its value is the worst margin."""
+    small = fleet.policy.cosite_small_margin_db
+    by_pair: dict[tuple[str, str], list[CositePath]] = {}
+    for path in cosite.paths:
+        by_pair.setdefault(tuple(sorted((path.tx, path.rx))), []).append(path)
+    found = []
+    for (a, b), paths in sorted(by_pair.items()):
+        rated = [(hit.margin_db, path, hit) for path in paths for hit in path.hits if hit.margin_db is not None]
+        for rule, limit, bad in (("cosite", 0.0, [r for r in rated if r[0] < 0.0]),
+                                 ("cosite-small", small, [r for r in rated if 0.0 <= r[0] < small])):
+            if bad and (rule == "cosite" or not any(r[0] < 0.0 for r in rated)):
+                found.append(cosite_finding(rule, cosite.aircraft, f"{a}+{b}", limit, sorted(bad, key=lambda r: r[0])))
+    return found
+
+
+def cosite_finding(rule: str, aircraft: str, pair: str, limit: float, bad: list) -> Discrepancy:
+    worst_margin, worst_path, worst_hit = bad[0]
+    what = "; ".join(f"{path.tx} → {path.rx}: {hit.channels}, {hit.product} at {hit.product_lo_mhz:.3f}–"
+                     f"{hit.product_hi_mhz:.3f} MHz, margin {margin:.1f} dB" for margin, path, hit in bad[:3])
+    what += f"; and {len(bad) - 3} more" if len(bad) > 3 else ""
+    verb = "lands above the receiver's protection threshold" if rule == "cosite" else "leaves a small margin"
+    margin = next(f for f in worst_hit.figures if f.key == FK.COSITE_MARGIN_DB)
+    return make(rule, aircraft, pair, worst_margin, limit, "dB",
+                f"A transmitter harmonic {verb}: {what}.", margin,
+                "harmonic level at the receiver against its protection threshold (co-site)")
 
 
 INSTALLATION_RULES = (element_length, band_coverage, vswr_bandwidth, measured_vswr, feeder_loss, impedance_match,

@@ -11,6 +11,7 @@ from __future__ import annotations
 from datetime import date
 
 from registry.compute import antenna
+from registry.compute.cosite import cosite_result
 from registry.compute.element import band_figures, ground_plane_figures, length_figures, modelled_vswr
 from registry.compute.feeder import cable_result, feeder_figures, measured_figures
 from registry.compute.pair import pair_results
@@ -33,6 +34,7 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Air
         patterns.setdefault(pattern.key, pattern)
         part.installations[(aircraft.id, installation.position)] = result
     part.pairs = pair_results(fleet, aircraft)
+    part.cosite = cosite_result(fleet, aircraft, part.installations, part.pairs)
     return part, patterns
 
 

@@ -128,6 +128,16 @@ class Measured(Sourced):
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
+class RadioFigures(Sourced):
+    """The installed radio's own figures (its data sheet), in place of the service table's typical ones."""
+
+    tx_peak_power_dbm: float | None = None
+    spurious_dbc: float | None = None
+    protection_dbm: float | None = None
+    source: str = ""
+
+
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Installation(Sourced):
     position: str
     service: str
@@ -140,6 +150,8 @@ class Installation(Sourced):
     coupler: bool = False
     installed: date | None = None
     notes: str = ""
+    radio: RadioFigures | None = None
+    """The installed radio's own co-site figures, overriding the service table's."""
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -271,6 +283,18 @@ class Service(Sourced):
     group: str
     source: str = ""
     shipped: bool = False
+    # Co-site figures (harmonics, intermodulation, margin); None or () when the table gives none.
+    tx_bands_mhz: tuple[tuple[float, float], ...] = ()
+    """Transmit ranges, MHz; the loader fills them from `bands_mhz` for a transmitting service."""
+    tx_channel_steps_khz: tuple[float, ...] = ()
+    tx_peak_power_dbm: float | None = None
+    spurious_dbc: float | None = None
+    rx_bands_mhz: tuple[tuple[float, float], ...] = ()
+    """Receive bands, MHz; the loader fills them from `bands_mhz`."""
+    protection_dbm: float | None = None
+    suppression_line: str | None = None
+    sources: FrozenMap = field(default_factory=FrozenMap)
+    """Co-site figure key → its standing and document ('sourced: …', 'unverified: …', ...)."""
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -294,6 +318,8 @@ class Policy(Sourced):
     ground_plane_min_radius_wavelengths: float
     min_isolation_db: tuple[IsolationRule, ...]
     sources: FrozenMap = field(default_factory=FrozenMap)
+    cosite_max_harmonic_order: int = 15
+    cosite_small_margin_db: float = 6.0
 
     def vswr_limit_for(self, service: str) -> float:
         return self.vswr_limit_by_service.get(service, self.vswr_limit)

@@ -113,6 +113,94 @@ class CableResult:
     figures: tuple[Figure, ...]
 
 
+class CositeHit(NamedTuple):
+    """One harmonic of a transmitter landing in a receiver's band, and its margin's arithmetic.
+
+    `channels_lo_mhz`..`channels_hi_mhz` are the transmit frequencies (channels, `channel_count` of them
+    at `step_khz`; 0 for a continuous range) whose `order`-th harmonic lies in the band, over
+    `product_lo_mhz`..`product_hi_mhz`. `figures` lay the margin out step by step; `margin_db` is None
+    when the table gives no level for one side."""
+
+    order: int
+    channels_lo_mhz: float
+    channels_hi_mhz: float
+    channel_count: int
+    step_khz: float
+    product_lo_mhz: float
+    product_hi_mhz: float
+    figures: tuple[Figure, ...]
+    margin_db: float | None
+
+    @property
+    def channels(self) -> str:
+        """'channels 121.100–121.250 MHz (7 at 25 kHz)' or 'transmit 1646.5–1660.5 MHz'."""
+        span = f"{self.channels_lo_mhz:.3f}–{self.channels_hi_mhz:.3f} MHz"
+        if not self.channel_count:
+            return f"transmit {span}"
+        word = "channel" if self.channel_count == 1 else "channels"
+        return f"{word} {span} ({self.channel_count} at {self.step_khz:g} kHz)"
+
+    @property
+    def product(self) -> str:
+        """'13th harmonic'."""
+        suffix = "th" if 10 <= self.order % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(self.order % 10, "th")
+        return f"{self.order}{suffix} harmonic"
+
+
+@dataclass(frozen=True, slots=True)
+class CositePath(WithFigures):
+    """A transmitter → receiver pair on one aircraft; `excused_by` names the suppression line both share
+    (then no hits are listed). `figures` are the hit's with the worst margin."""
+
+    aircraft: str
+    tx: str
+    rx: str
+    tx_service: str
+    rx_service: str
+    hits: tuple[CositeHit, ...]
+    excused_by: str = ""
+
+    @property
+    def worst(self) -> CositeHit | None:
+        """The hit with the lowest margin (hits without a margin count last)."""
+        rated = [hit for hit in self.hits if hit.margin_db is not None]
+        return min(rated, key=lambda hit: hit.margin_db) if rated else (self.hits[0] if self.hits else None)
+
+    @property
+    def figures(self) -> tuple[Figure, ...]:  # type: ignore[override]
+        worst = self.worst
+        return worst.figures if worst else ()
+
+
+class CositeIntermod(NamedTuple):
+    """An intermodulation product a·f1 + b·f2 of two transmitters landing in a receiver's band: located
+    in frequency only (no level model); `excused_by` names a suppression line all three share. A named
+    tuple: an aircraft has thousands, and tuples are the cheapest to keep in the cache."""
+
+    aircraft: str
+    tx_a: str
+    tx_b: str
+    rx: str
+    product: str
+    order: int
+    f1_mhz: tuple[float, float]
+    f2_mhz: tuple[float, float]
+    product_mhz: tuple[float, float]
+    excused_by: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class AircraftCosite:
+    """One aircraft's co-site analysis: every transmitter → receiver path and every intermodulation
+    product that lands; `coupling_method` says how the antenna coupling was estimated."""
+
+    aircraft: str
+    paths: tuple[CositePath, ...]
+    intermod: tuple[CositeIntermod, ...]
+    bands: tuple[tuple[str, str, str, tuple[tuple[float, float], ...]], ...] = ()
+    """(position, service, "tx" or "rx", ranges in MHz) of every transmitter and receiver."""
+
+
 @dataclass(slots=True)
 class AircraftPart:
     """One aircraft's full figures: its installations' and its pairs'. Patterns are shared by the whole
@@ -120,6 +208,31 @@ class AircraftPart:
 
     installations: dict[tuple[str, str], InstallationResult]
     pairs: list[PairResult]
+    cosite: AircraftCosite | None = None
+
+
+class CositeCell(NamedTuple):
+    """One transmitter → receiver path reduced to its worst: what a type-wide page needs of it."""
+
+    tx: str
+    rx: str
+    tx_service: str
+    rx_service: str
+    margin_db: float | None
+    excused_by: str
+    what: str
+    """The worst hit in words: '13th harmonic, channels 121.108–121.258 MHz (19 at 8.333 kHz)'."""
+
+
+def cosite_cells(cosite: AircraftCosite | None) -> tuple[CositeCell, ...]:
+    """Each path of an aircraft's co-site analysis as its worst hit."""
+    cells = []
+    for path in cosite.paths if cosite is not None else ():
+        worst = path.worst
+        cells.append(CositeCell(path.tx, path.rx, path.tx_service, path.rx_service,
+                                worst.margin_db if worst is not None else None, path.excused_by,
+                                f"{worst.product}, {worst.channels}" if worst is not None else ""))
+    return tuple(cells)
 
 
 FigureUse = tuple[str, str, str, str, str, str]
@@ -146,6 +259,8 @@ class AircraftSummary(NamedTuple):
     findings: tuple[Discrepancy, ...] | None
     figure_uses: dict[FigureUse, int]
     record: tuple[str, str, str] | None = None
+    cosite: tuple[CositeCell, ...] = ()
+    """Its co-site paths' worst margins, for the airframe type's interference page (`cosite_cells`)."""
 
 
 @dataclass
@@ -160,6 +275,8 @@ class FleetResults:
     pairs: list[PairResult] = field(default_factory=list)
     patterns: dict[str, PatternResult] = field(default_factory=dict)
     cables: dict[str, CableResult] = field(default_factory=dict)
+    cosite: dict[str, AircraftCosite] = field(default_factory=dict)
+    """Each loaded aircraft's co-site analysis, by aircraft id."""
     summaries: dict[str, AircraftSummary] = field(default_factory=dict)
     records: dict[str, tuple[str, str, str]] = field(default_factory=dict)
     """Each aircraft's share of the build record as text (record.ShareText), made where it was computed."""
@@ -183,6 +300,7 @@ class FleetResults:
         for position in positions:
             self.installations.pop((aircraft_id, position), None)
         self.pairs = [pair for pair in self.pairs if pair.aircraft != aircraft_id]
+        self.cosite.pop(aircraft_id, None)
         self.unloaded.add(aircraft_id)
 
 

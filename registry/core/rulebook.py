@@ -23,6 +23,8 @@ RULE_SEVERITY = {
     "measurement-age": "advisory",
     "missing-data": "advisory",
     "unmodellable": "concern",
+    "cosite": "blocking",
+    "cosite-small": "concern",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

@@ -12,7 +12,7 @@ from typing import Any, Callable
 from registry.core.errors import Problem, Src, parse_path
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, FrozenMap,
                                  Fuselage, GroundPlane, Installation, Locator, Location, Measured,
-                                 Modification, Review, Service, Wing, Zone, freeze)
+                                 Modification, RadioFigures, Review, Service, Wing, Zone, freeze)
 from registry.core.units import per_100ft_to_per_100m
 from registry.load import integrity
 from registry.load.yamlsource import YamlDoc
@@ -132,8 +132,25 @@ def services(doc: Doc, shipped: bool) -> list[Service]:
             group=item["group"],
             source=item.get("source", ""),
             shipped=shipped,
+            **cosite_fields(item, bands),
         ))
     return services
+
+
+def cosite_fields(item: dict[str, Any], bands: tuple[tuple[float, float], ...]) -> dict[str, Any]:
+    """A service's co-site figures; transmit and receive ranges default to its bands."""
+    optional = lambda key: float(item[key]) if key in item else None  # noqa: E731
+    return {
+        "tx_bands_mhz": band_pairs(item["tx_bands_mhz"]) if "tx_bands_mhz" in item else (
+            bands if item["transmits"] else ()),
+        "tx_channel_steps_khz": tuple(float(step) for step in item.get("tx_channel_steps_khz", ())),
+        "tx_peak_power_dbm": optional("tx_peak_power_dbm"),
+        "spurious_dbc": optional("spurious_dbc"),
+        "rx_bands_mhz": band_pairs(item["rx_bands_mhz"]) if "rx_bands_mhz" in item else bands,
+        "protection_dbm": optional("protection_dbm"),
+        "suppression_line": item.get("suppression_line"),
+        "sources": freeze(item.get("sources", {})),
+    }
 
 
 def aircraft(doc: Doc, keep: Callable[[tuple[str | int, ...]], bool] = lambda parts: True
@@ -184,7 +201,16 @@ def installation(doc: Doc, n: int, item: dict[str, Any]) -> Installation:
         coupler=item.get("coupler", False),
         installed=iso_date(item["installed"]) if "installed" in item else None,
         notes=item.get("notes", ""),
+        radio=radio_figures(doc, at, item["radio"]) if "radio" in item else None,
     )
+
+
+def radio_figures(doc: Doc, at: tuple[str, int], item: dict[str, Any]) -> RadioFigures:
+    """The installed radio's own co-site figures."""
+    optional = lambda key: float(item[key]) if key in item else None  # noqa: E731
+    return RadioFigures(**doc.at(*at, "radio"), tx_peak_power_dbm=optional("tx_peak_power_dbm"),
+                        spurious_dbc=optional("spurious_dbc"), protection_dbm=optional("protection_dbm"),
+                        source=item["source"])
 
 
 def review(doc: Doc, n: int, item: dict[str, Any]) -> Review:

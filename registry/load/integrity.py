@@ -144,6 +144,26 @@ def check_services(services: list[Service]) -> list[Problem]:
         if not unordered and not lowest <= service.design_freq_mhz <= highest:
             problems.append(problem(service, "design_freq_mhz", f"{service.design_freq_mhz:g} MHz",
                                     f"a frequency within the service's bands, {lowest:g} to {highest:g} MHz"))
+        problems += cosite_fields(service)
+    return problems
+
+
+TX_FIGURES = ("tx_bands_mhz", "tx_channel_steps_khz", "tx_peak_power_dbm", "spurious_dbc")
+
+
+def cosite_fields(service: Service) -> list[Problem]:
+    """Co-site figures: ranges in order, transmit figures only on a transmitting service, and a source
+    only for a figure the entry gives."""
+    problems = [problem(service, f"{key}[{n}]", f"[{low:g}, {high:g}]", "the lower band edge first (low < high)")
+                for key in ("tx_bands_mhz", "rx_bands_mhz") if getattr(service, key) != service.bands_mhz
+                for n, (low, high) in enumerate(getattr(service, key)) if not low < high]  # not the defaults
+    if not service.transmits:
+        problems += [problem(service, key, f"{key} on a service with transmits: false",
+                             "transmit figures only on a transmitting service")
+                     for key in TX_FIGURES if getattr(service, key) not in (None, ())]
+    problems += [problem(service, f"sources.{key}", f"a source for {key}, which this entry does not give",
+                         "a source only for a figure the entry gives")
+                 for key in service.sources if getattr(service, key, None) in (None, ())]
     return problems
 
 

@@ -35,6 +35,7 @@ _UNIT_SUFFIXES = (
     ("_ohm", "ohms"), ("_db", "dB"), ("_m", "metres"), ("vswr", "(VSWR, the ratio n:1)"),
     ("vswr_limit", "(VSWR, the ratio n:1)"), ("sta", "in the airframe's coord_unit"),
     ("bl", "in the airframe's coord_unit"), ("wl", "in the airframe's coord_unit"),
+    ("_dbm", "dBm"), ("_dbc", "dBc"), ("_khz", "kHz"),
 )
 _UNIT_NOUNS = {"metres": "a length", "MHz": "a frequency", "ohms": "an impedance", "degrees": "an angle",
                "in the airframe's coord_unit": "a coordinate"}

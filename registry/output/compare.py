@@ -230,6 +230,13 @@ def compare_figures(old: Mapping[str, Any], new: Mapping[str, Any], identity: Ma
         entry = new_pairs[key]
         out += compare_figure_maps("pair", key, entry["aircraft"], tuple(entry["positions"]),
                                    old_pairs[key]["figures"], entry["figures"], tolerance)
+    old_cosite, new_cosite = old["figures"].get("cosite", {}), new["figures"].get("cosite", {})
+    both = set(old["registry"]["aircraft"]) & set(new["registry"]["aircraft"])
+    for key in sorted(k for k in set(old_cosite) | set(new_cosite) if k.split("/")[0] in both):
+        entry = new_cosite.get(key) or old_cosite[key]
+        out += compare_figure_maps("co-site", key, entry["aircraft"], (entry["tx"], entry["rx"]),
+                                   old_cosite.get(key, {}).get("figures", {}),
+                                   new_cosite.get(key, {}).get("figures", {}), tolerance)
     old_cables, new_cables = old["figures"]["cables"], new["figures"]["cables"]
     for key in sorted(set(old_cables) & set(new_cables)):
         out += compare_figure_maps("cable", key, None, (), old_cables[key]["figures"], new_cables[key]["figures"],

@@ -107,9 +107,28 @@ def figures(items: tuple[Figure, ...] | list[Figure]) -> dict[str, dict[str, Any
     return out
 
 
-def aircraft_record(aircraft, installations, pairs, data_dir: Path) -> dict[str, Any]:
-    """One aircraft's share of the record: its registry entry and the figures of its installations and
-    pairs. Made where the aircraft is computed, so that it is kept in the cache with its figures."""
+def cosite_record(cosite) -> dict[str, Any]:
+    """Each transmitter → receiver path's margins, keyed `<aircraft>/<TX>+<RX>` (transmitter first):
+    one figure per harmonic order (the worst of its hits), so `diff` shows what a new radio breaks."""
+    out: dict[str, Any] = {}
+    for path in cosite.paths if cosite is not None else ():
+        worst: dict[int, Any] = {}
+        for hit in path.hits:
+            if hit.order not in worst or (hit.margin_db or 0.0) < (worst[hit.order].margin_db or 0.0):
+                worst[hit.order] = hit
+        out[f"{path.aircraft}/{path.tx}+{path.rx}"] = {
+            "aircraft": path.aircraft, "tx": path.tx, "rx": path.rx, "excused_by": path.excused_by or None,
+            "figures": {f"cosite.margin_db.h{order}": {
+                "label": f"Margin, {hit.product} ({hit.channels})", "unit": "dB",
+                "value": None if hit.margin_db is None else round_sig(hit.margin_db, FIGURE_DIGITS)}
+                for order, hit in sorted(worst.items())}}
+    return out
+
+
+def aircraft_record(aircraft, installations, pairs, data_dir: Path, cosite=None) -> dict[str, Any]:
+    """One aircraft's share of the record: its registry entry and the figures of its installations,
+    pairs and co-site paths. Made where the aircraft is computed, so that it is kept in the cache with
+    its figures."""
     entry = plain(aircraft, data_dir)
     entry["modifications"] = sorted(entry["modifications"], key=lambda mod: (mod["date"], mod["ref"]))
     return {
@@ -120,6 +139,7 @@ def aircraft_record(aircraft, installations, pairs, data_dir: Path) -> dict[str,
         "pairs": {f"{pair.aircraft}/{pair.position_a}+{pair.position_b}": {
             "aircraft": pair.aircraft, "positions": [pair.position_a, pair.position_b],
             "near_field": bool(pair.near_field), "figures": figures(pair.figures)} for pair in pairs},
+        "cosite": cosite_record(cosite),
     }
 
 
@@ -131,11 +151,13 @@ class ShareText(NamedTuple):
     aircraft: str
     installations: str
     pairs: str
+    cosite: str = ""
 
 
 def share_text(share: Mapping[str, Any]) -> ShareText:
     """`aircraft_record`'s result as JSON text, encoded as `dumps` would."""
-    return ShareText(_json(share["aircraft"]), _json(share["installations"])[1:-1], _json(share["pairs"])[1:-1])
+    return ShareText(_json(share["aircraft"]), _json(share["installations"])[1:-1], _json(share["pairs"])[1:-1],
+                     _json(share.get("cosite", {}))[1:-1])
 
 
 def to_record(outcome) -> dict[str, Any]:
@@ -157,7 +179,7 @@ def to_text(outcome) -> str:
         if share is None:
             share = share_text(aircraft_record(
                 craft, {key: result for key, result in results.installations.items() if key[0] == craft.id},
-                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir))
+                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir, results.cosite.get(craft.id)))
         shares[craft.id] = share
     by_prefix = sorted(shares, key=lambda aircraft_id: aircraft_id + "/")
     patterns = {key: {"antenna": pattern.antenna, "kind": pattern.kind,
@@ -185,6 +207,7 @@ def to_text(outcome) -> str:
         "figures": _object({
             "installations": _joined(shares[aircraft_id].installations for aircraft_id in by_prefix),
             "pairs": _joined(shares[aircraft_id].pairs for aircraft_id in by_prefix),
+            "cosite": _joined(shares[aircraft_id].cosite for aircraft_id in by_prefix),
             "patterns": _json(patterns),
             "cables": _json(cables),
         }),

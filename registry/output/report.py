@@ -134,4 +134,34 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
         for figure in pair.figures:
             lines.append(f"  {figure.label:<52} {format_value(figure)}")
         lines.append("")
+    for aircraft_id, cosite in sorted(results.cosite.items()):
+        craft = fleet.aircraft[aircraft_id]
+        lines += cosite_details(craft, cosite, lambda *services: matches(craft, list(services), aircraft, service))
     return "\n".join(terminal_line(line) for line in lines)
+
+
+def cosite_details(craft, cosite, wanted) -> list[str]:
+    """One aircraft's co-site paths for `check --details`: each harmonic that lands with its margin's
+    arithmetic, the pairs a suppression line excuses, and the intermodulation products (located only)."""
+    lines = []
+    for path in cosite.paths:
+        if not wanted(path.tx_service, path.rx_service):
+            continue
+        head = f"{craft.registration} co-site {path.tx} → {path.rx} ({path.tx_service} → {path.rx_service})"
+        if path.excused_by:
+            lines += [f"{head}: excused (both on suppression line {path.excused_by})", ""]
+            continue
+        lines.append(head)
+        for hit in path.hits:
+            lines.append(f"  {hit.product}, {hit.channels}, at {hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz")
+            for figure in hit.figures:
+                lines.append(f"    {figure.label:<50} {format_value(figure)}")
+        lines.append("")
+    products = [item for item in cosite.intermod if not item.excused_by]
+    if products:
+        lines.append(f"{craft.registration} intermodulation (located only: no level model, no margin)")
+        for item in products:
+            lines.append(f"  {item.tx_a} + {item.tx_b} → {item.rx}: {item.product} (order {item.order}) at "
+                         f"{item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz")
+        lines.append("")
+    return lines

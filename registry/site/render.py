@@ -31,6 +31,7 @@ from registry.site.format import plain_text
 from registry.site.info import BuildInfo
 from registry.site.pages import Output, Renderer, page
 from registry.site.pages_aircraft import aircraft_outputs, output_paths
+from registry.site.pages_cosite import cosite_outputs, type_cosite_pages
 from registry.site.pages_catalogue import antenna_pages, cable_pages, services_page
 from registry.site.pages_fleet import audit_pages, fleet_page, search_pages
 from registry.site.pages_methods import methods_page
@@ -96,6 +97,7 @@ def fleet_wide_pages(data: SiteData, pieces: dict[str, AircraftPieces], store: p
     outputs.append(services_page(data, pieces))
     outputs += audit_pages(data)
     outputs.append(methods_page(data))
+    outputs += type_cosite_pages(data)
     outputs += search_pages(data, pieces)
     if data.comparison is not None:
         outputs.append(page("changes.html", "changes.html", "changes", "Changes in this build",
@@ -166,7 +168,7 @@ class AircraftRun:
             for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
                 self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
                 self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
-        outputs = aircraft_outputs(self.data, aircraft, self.pairs_of)
+        outputs = aircraft_outputs(self.data, aircraft, self.pairs_of) + cosite_outputs(self.data, aircraft)
         produced = self.put(outputs)
         key = self.page_key(aircraft)
         if self.incremental is not None and key:

@@ -1,0 +1,196 @@
+"""An aircraft's interference page: the transmitter × receiver matrix of worst co-site margins (each cell
+opens the arithmetic, details/summary, no script), a frequency chart drawn here as SVG, and the
+intermodulation products located in frequency."""
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from markupsafe import Markup, escape
+
+from registry.core import figure_keys as FK
+from registry.core.model import Aircraft
+from registry.core.results import AircraftCosite, CositeHit, CositePath
+from registry.output.report import format_value
+from registry.site.context import SiteData
+from registry.site.pages import Page, page
+from registry.site.paths import aircraft_path
+from registry.site.svg import n
+
+INTERMOD_SHOWN = 60
+"""Intermodulation products listed on the page; the rest are counted (`check --details` lists all)."""
+
+
+def cosite_path(aircraft_id: str) -> str:
+    return f"aircraft/{aircraft_id}/interference.html"
+
+
+def type_cosite_path(airframe_id: str) -> str:
+    return f"interference/{airframe_id}.html"
+
+
+def cosite_outputs(data: SiteData, aircraft: Aircraft) -> list[Page]:
+    """The aircraft's interference page, when its co-site analysis is loaded."""
+    cosite = data.results.cosite.get(aircraft.id)
+    return [] if cosite is None else [cosite_page(data, aircraft, cosite)]
+
+
+def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> Page:
+    small = data.fleet.policy.cosite_small_margin_db
+    transmitters = sorted({p for p, _, side, _ in cosite.bands if side == "tx"})
+    receivers = sorted({p for p, _, side, _ in cosite.bands if side == "rx"})
+    paths = {(path.tx, path.rx): path for path in cosite.paths}
+    notes = Notes(data.src_text)
+    rows = [{"tx": tx, "cells": [cell(paths.get((tx, rx)), tx == rx, small, notes) for rx in receivers]}
+            for tx in transmitters]
+    products = [item for item in cosite.intermod if not item.excused_by]
+    return page(cosite_path(aircraft.id), "cosite.html", "fleet", f"{aircraft.registration} interference",
+                [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
+                 ("Interference", None)],
+                aircraft=aircraft, receivers=receivers, rows=rows, small_db=small,
+                airframe=data.fleet.airframe_of(aircraft), type_href=type_cosite_path(aircraft.airframe),
+                max_order=data.fleet.policy.cosite_max_harmonic_order,
+                chart=frequency_chart(cosite), intermod=products[:INTERMOD_SHOWN],
+                intermod_more=max(0, len(products) - INTERMOD_SHOWN),
+                intermod_excused=len(cosite.intermod) - len(products),
+                excused=[path for path in cosite.paths if path.excused_by],
+                notes=sorted((number, text) for text, number in notes.numbers.items()))
+
+
+def cell(path: CositePath | None, same: bool, small_db: float, notes: Notes) -> dict[str, Any]:
+    """One matrix cell: its state, the worst margin as `check --details` writes it, and every hit."""
+    if same:
+        return {"state": "self", "text": "—", "hits": ()}
+    if path is None:
+        return {"state": "clear", "text": "·", "hits": ()}
+    if path.excused_by:
+        return {"state": "excused", "text": f"excused: {path.excused_by}", "hits": ()}
+    worst = path.worst
+    margin = worst.margin_db if worst is not None else None
+    state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db
+             else "ok")
+    text = margin_text(worst) if margin is not None else "no level"
+    others = [{"product": hit.product, "channels": hit.channels,
+               "margin": margin_text(hit) if hit.margin_db is not None else "no level"}
+              for hit in path.hits if hit is not worst]
+    return {"state": state, "text": text, "id": f"c-{path.tx}-{path.rx}", "tx": path.tx, "rx": path.rx,
+            "hits": [hit_view(worst, notes)], "others": others}
+
+
+def margin_text(hit: CositeHit) -> str:
+    figure = next(f for f in hit.figures if f.key == FK.COSITE_MARGIN_DB)
+    return format_value(figure)
+
+
+class Notes:
+    """The page's numbered sources, and how it shows a registry line (relative to the data folder)."""
+
+    def __init__(self, src_text):
+        self.numbers: dict[str, int] = {}
+        self.src_text = src_text
+
+    def number(self, source: str) -> int | None:
+        return self.numbers.setdefault(source, len(self.numbers) + 1) if source else None
+
+
+STANDINGS = ("sourced", "common practice, no source", "unverified", "installed radio")
+
+
+def hit_view(hit: CositeHit, notes: Notes) -> dict[str, Any]:
+    """A hit's arithmetic; each figure's source is numbered once per page (`notes`) and shown in the cell
+    by its number and standing, so long source texts are not repeated in every cell."""
+    figures = []
+    for f in hit.figures:
+        number = notes.number(f.source)
+        standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
+        figures.append({"label": f.label, "value": format_value(f),
+                        "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs) if f.key == FK.COSITE_COUPLING_DB
+                        else "", "note": number,
+                        "standing": standing, "src": notes.src_text(f.src) if f.src else ""})
+    return {"product": hit.product, "channels": hit.channels,
+            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figures,
+            "sum": arithmetic(hit)}
+
+
+def arithmetic(hit: CositeHit) -> str:
+    """The margin written out with the cell's numbers: level = P + E − L_tx + C − L_rx; margin."""
+    value = {f.key: f for f in hit.figures}
+    keys = (FK.COSITE_TX_POWER_DBM, FK.COSITE_EMISSION_DBC, FK.COSITE_TX_FEEDER_LOSS_DB, FK.COSITE_COUPLING_DB,
+            FK.COSITE_RX_FEEDER_LOSS_DB, FK.COSITE_LEVEL_DBM, FK.COSITE_THRESHOLD_DBM, FK.COSITE_MARGIN_DB)
+    if any(key not in value or value[key].value is None for key in keys):
+        return ""
+    p, e, ltx, c, lrx, level, threshold, margin = (format_value(value[key]) for key in keys)
+    return (f"level = P + E − L_tx + C − L_rx = {p} + ({e}) − {ltx} + ({c}) − {lrx} = {level}; "
+            f"margin = threshold − level = {threshold} − ({level}) = {margin}")
+
+
+CHART_WIDTH, ROW_HEIGHT, LEFT, TOP = 860, 22, 150, 28
+
+
+def frequency_chart(cosite: AircraftCosite) -> Markup:
+    """Transmit ranges and receive bands on a logarithmic frequency axis, one row per installation and
+    side; the harmonics that land are drawn on their receiver's row."""
+    rows = sorted(cosite.bands, key=lambda row: (row[2], row[0]))
+    if not rows:
+        return Markup("")
+    edges = [f for _, _, _, ranges in rows for band in ranges for f in band]
+    lo, hi = math.log10(min(edges) / 1.5), math.log10(max(edges) * 1.5)
+    x = lambda f: LEFT + (math.log10(f) - lo) / (hi - lo) * (CHART_WIDTH - LEFT - 10)  # noqa: E731
+    height = TOP + ROW_HEIGHT * len(rows) + 10
+    parts = [f'<svg class="cosite-chart" viewBox="0 0 {CHART_WIDTH} {height}" role="img" '
+             f'aria-labelledby="chart-title"><title id="chart-title">Transmit ranges, receive bands and the '
+             f'harmonics that land, frequency in MHz on a logarithmic scale</title>']
+    for decade in range(math.ceil(lo), math.floor(hi) + 1):
+        gx = n(x(10 ** decade))
+        parts.append(f'<line x1="{gx}" y1="{TOP - 6}" x2="{gx}" y2="{height - 10}" class="grid"/>'
+                     f'<text x="{gx}" y="{TOP - 10}" class="tick">{10 ** decade:g} MHz</text>')
+    landing = {}
+    for path in cosite.paths:
+        for hit in path.hits:
+            landing.setdefault(path.rx, []).append((hit, path.tx))
+    for i, (position, service, side, ranges) in enumerate(rows):
+        y = TOP + i * ROW_HEIGHT
+        parts.append(f'<text x="4" y="{n(y + 14)}" class="label">{escape(position)} {side}</text>')
+        for band_lo, band_hi in ranges:
+            width = max(2.0, x(band_hi) - x(band_lo))
+            parts.append(f'<rect x="{n(x(band_lo))}" y="{n(y + 4)}" width="{n(width)}" height="12" class="{side}">'
+                         f'<title>{escape(position)} ({escape(service)}) {side} {band_lo:g}–{band_hi:g} MHz</title></rect>')
+        if side == "rx":
+            for hit, tx in landing.get(position, ()):
+                hx = n(x(hit.product_lo_mhz))
+                bad = "hit-bad" if hit.margin_db is not None and hit.margin_db < 0 else "hit"
+                parts.append(f'<path d="M{hx} {n(y + 2)} l-4 -6 h8 z" class="{bad}"><title>{escape(tx)} '
+                             f'{hit.product} at {hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz</title></path>')
+    parts.append("</svg>")
+    return Markup("".join(parts))
+
+
+def type_cosite_pages(data: SiteData) -> list[Page]:
+    """One page per airframe type: the transmitter → receiver paths every aircraft of the type has, with
+    the worst margin over them and each aircraft's own (from the aircraft summaries, no figures loaded)."""
+    pages = []
+    small = data.fleet.policy.cosite_small_margin_db
+    for airframe in data.fleet.airframes.values():
+        members = [a for a in data.fleet.aircraft.values() if a.airframe == airframe.id]
+        summaries = [data.results.summaries.get(a.id) for a in members]
+        if not members or any(summary is None for summary in summaries):
+            continue
+        cells = [{(c.tx, c.rx): c for c in summary.cosite} for summary in summaries]
+        shared = sorted(set.intersection(*(set(c) for c in cells)))
+        rows = []
+        for key in shared:
+            each = [(aircraft, by_path[key]) for aircraft, by_path in zip(members, cells)]
+            rated = [c.margin_db for _, c in each if c.margin_db is not None]
+            worst = min(rated) if rated else None
+            state = ("excused" if each[0][1].excused_by else "unrated" if worst is None else
+                     "blocking" if worst < 0 else "concern" if worst < small else "ok")
+            rows.append({"tx": key[0], "rx": key[1], "services": f"{each[0][1].tx_service} → {each[0][1].rx_service}",
+                         "state": state, "worst": "—" if worst is None else f"{worst:.4g} dB",
+                         "excused_by": each[0][1].excused_by,
+                         "each": [{"registration": a.registration, "href": cosite_path(a.id),
+                                   "margin": "—" if c.margin_db is None else f"{c.margin_db:.4g} dB",
+                                   "what": c.what} for a, c in each]})
+        pages.append(page(type_cosite_path(airframe.id), "cosite_type.html", "fleet",
+                          f"{airframe.name} interference", [("Fleet", "index.html"), (airframe.name, None)],
+                          airframe=airframe, members=members, rows=rows, small_db=small))
+    return pages

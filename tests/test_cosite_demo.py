@@ -65,7 +65,7 @@ def test_planted_problem_is_one_finding_with_channels_order_and_margin(demo_flee
     assert item.severity == "blocking" and item.unit == "dB" and item.value < 0 and item.limit == 0.0
     assert "channels 121.108–121.258 MHz (19 at 8.333 kHz), 13th harmonic" in item.message
     assert f"margin {item.value:.1f} dB" in item.message
-    assert item.source.endswith("qx-tja.yaml:" + item.source.rsplit(":", 1)[1])  # the pool unit's line
+    assert item.src.endswith("qx-tja.yaml:" + item.src.rsplit(":", 1)[1])  # the pool unit's line
 
 
 def test_small_margin_is_the_lesser_finding(demo_fleet, tja):

@@ -21,12 +21,11 @@ import numpy as np
 import pytest
 
 from registry import pipeline
-from registry.core.errors import Problem
-from registry.core.model import Aircraft
 from registry.core.results import AircraftPart, AircraftSummary, Curve, Figure, PatternResult
 from registry.evaluate import evaluate_fleet
 from registry.incremental import DiskCache, version_folder
 from registry.incremental import codec, store
+from registry.load.partial import AircraftRead
 from registry.load.fleet import Parsed
 from registry.output import record
 from registry.site import plots
@@ -35,7 +34,7 @@ from registry.site.render import AircraftPieces
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 KINDS = {"aircraft": (AircraftPart, ()), "summaries": (AircraftSummary, (record.ShareText,)),
          "patterns": (PatternResult, ()), "files": (Parsed, ()),
-         "models": (tuple[Aircraft | None, list[Problem]], ()), "pieces": (AircraftPieces, ()),
+         "models": (AircraftRead, ()), "pieces": (AircraftPieces, ()),
          "plots": (plots.Drawn, ())}
 """Each namespace of the cache and the type its reader expects (as evaluate, load, render and plots ask)."""
 

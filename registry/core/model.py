@@ -9,7 +9,7 @@ airframe type's `coord_unit`. No physics here.
 from __future__ import annotations
 
 from collections.abc import Iterator, Mapping
-from dataclasses import dataclass, field, fields
+from dataclasses import MISSING, dataclass, field, fields
 from datetime import date
 from pathlib import Path
 from typing import Any
@@ -335,6 +335,9 @@ class Policy(Sourced):
 
 POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name not in ("sources", "src", "locator"))
 """The thresholds a policy file sets, in the order the methods page lists them: Policy's own fields."""
+REQUIRED_POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name in POLICY_KEYS
+                             and item.default is MISSING and item.default_factory is MISSING)
+"""The thresholds the shipped policy must set (the others have a default in `Policy`)."""
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)

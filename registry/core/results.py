@@ -258,7 +258,7 @@ class AircraftSummary(NamedTuple):
     pattern_of: dict[str, str | None]
     findings: tuple[Discrepancy, ...] | None
     figure_uses: dict[FigureUse, int]
-    record: tuple[str, str, str] | None = None
+    record: tuple[str, ...] | None = None
     cosite: tuple[CositeCell, ...] = ()
     """Its co-site paths' worst margins, for the airframe type's interference page (`cosite_cells`)."""
 
@@ -278,7 +278,7 @@ class FleetResults:
     cosite: dict[str, AircraftCosite] = field(default_factory=dict)
     """Each loaded aircraft's co-site analysis, by aircraft id."""
     summaries: dict[str, AircraftSummary] = field(default_factory=dict)
-    records: dict[str, tuple[str, str, str]] = field(default_factory=dict)
+    records: dict[str, tuple[str, ...]] = field(default_factory=dict)
     """Each aircraft's share of the build record as text (record.ShareText), made where it was computed."""
     aircraft_keys: dict[str, str] = field(default_factory=dict)
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""

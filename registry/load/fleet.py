@@ -18,7 +18,7 @@ from registry.load import build, extent, git, inputs, integrity, partial, plausi
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
-from registry.core.model import (POLICY_KEYS, Aircraft, Airframe, AntennaModel, Cable, Fleet, FrozenMap, Installation,
+from registry.core.model import (REQUIRED_POLICY_KEYS, Aircraft, Airframe, AntennaModel, Cable, Fleet, FrozenMap, Installation,
                                  IsolationRule, Policy, Review, Service)
 from registry.load.partial import AircraftRead
 from registry.load.yamlsource import YamlDoc, read_yaml
@@ -261,7 +261,7 @@ class _Run:
                     merged[key] = {**merged.get(key, {}), **value}
                 else:
                     merged[key] = value  # min_isolation_db rules are merged pair by pair below
-        missing = [key for key in POLICY_KEYS if key not in merged]
+        missing = [key for key in REQUIRED_POLICY_KEYS if key not in merged]
         if "default" not in merged.get("feeder_loss_budget_db", {"default": 0}):
             missing.append("feeder_loss_budget_db.default")
         for key in missing:

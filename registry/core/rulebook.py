@@ -22,6 +22,9 @@ RULE_SEVERITY = {
     "antenna-suitability": "concern",
     "measurement-age": "advisory",
     "missing-data": "advisory",
+    "skin-position": "concern",
+    "coverage": "concern",
+    "ground-plane-effect": "concern",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

@@ -83,7 +83,7 @@ EXPECTED = {
         "policy.yaml:3:25: error: feeder_loss_budget_db.vhf_con: found 'vhf_con', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",
     ],
     "review_unknown_rule": [
-        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data (did you mean 'feeder-loss'?)",
+        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, skin-position, coverage, ground-plane-effect (did you mean 'feeder-loss'?)",
     ],
     "serial_not_quoted": [
         'aircraft/qx-fcb.yaml:5:9: error: serial: found 2018, expected text (put it in quotes)',

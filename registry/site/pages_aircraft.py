@@ -6,6 +6,7 @@ from typing import Any
 
 from markupsafe import Markup
 
+from registry.compute.airframe import shape_of, shape_text
 from registry.core.model import Aircraft, Installation
 from registry.core.results import InstallationResult, PairResult
 from registry.site import drawing as sitedrawing
@@ -68,6 +69,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
                 modifications=sorted(aircraft.modifications, key=lambda m: (m.date, m.ref), reverse=True),
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 matrix=severity_matrix(items), src=data.model_src(aircraft),
+                shape={"text": shape_text(airframe), "assumptions": shape_of(airframe).assumptions},
                 change_marks=data.marks(aircraft.id), change_anchor="aircraft",
                 status_kinds=("blocking", "concern", "advisory", "clear"))
 

@@ -79,11 +79,16 @@ def inside_fuselage(shape: AirframeShape, point, scale_m: float) -> bool:
     return w > 0 and (p[1] / w) ** 2 + ((p[2] - c) / (q * w)) ** 2 < 1
 
 
+@lru_cache(maxsize=16)
+def fuselage_only(airframe: Airframe) -> AirframeShape:
+    """The shape without its flat surfaces: where a fuselage antenna stands is a question of the fuselage."""
+    return dataclasses.replace(shape_of(airframe), plates=())
+
+
 @lru_cache(maxsize=4096)
 def skin_point(airframe: Airframe, point: tuple[float, float, float]):
     """The nearest fuselage skin point within 2 m (physics.airframe_shape.SkinPoint) or None (cached)."""
-    hit = locate_on_skin(shape_of(airframe), point, SCALE_M[airframe.coord_unit], 2.0)
-    return hit
+    return locate_on_skin(fuselage_only(airframe), point, SCALE_M[airframe.coord_unit], 2.0)
 
 
 def skin_figures(airframe: Airframe, installation: Installation) -> list[Figure]:

@@ -6,8 +6,8 @@ Method: geometric optics on the three-dimensional shape (physics.shadowing.shado
 blocked when the ray leaves below the skin's tangent plane or enters the fuselage, wing or fin; no
 diffraction. Grid: every STEP_DEG degrees of azimuth and elevation. Shares are of the region's solid
 angle. Shadow grids are cached per airframe type's content, position and attitude (lru_cache), with the
-position first rounded to POSITION_GRID (so aircraft of one type with antennas a few millimetres apart
-share one computation).
+position first rounded to SHADOW_GRID (so aircraft of one type with antennas a few millimetres apart
+share one computation); pair positions to POSITION_GRID.
 """
 from __future__ import annotations
 
@@ -27,8 +27,12 @@ STEP_DEG = 3.0
 """Grid step of the shadow computation, degrees (divides 90)."""
 
 POSITION_GRID = {"in": 1.0, "mm": 20.0}
-"""Positions are rounded to this (airframe unit) before the shadow computation: 1 in or 20 mm moves a
-shadow edge by under 0.3 degree for an obstacle 4 m away (small-angle geometry)."""
+"""Positions are rounded to this (airframe unit) before the pair-coupling computation (1 in or 20 mm)."""
+
+SHADOW_GRID = {"in": 2.0, "mm": 50.0}
+"""Positions are rounded to this (airframe unit) before the shadow computation: 2 in or 50 mm moves a
+shadow edge by under 0.7 degree for an obstacle 4 m away (small-angle geometry), under a quarter of the
+3-degree grid step."""
 
 METHOD = ("geometric optics on the lofted airframe: rays blocked below the skin's tangent plane or by "
           "fuselage, wing and fin (no diffraction); grid every 3°; shares of solid angle")
@@ -72,7 +76,7 @@ def region_text(need: Requirement) -> str:
 def antenna_point(airframe: Airframe, installation: Installation) -> tuple[float, float, float]:
     """The point shadows are computed from (airframe unit): the rounded position moved onto the fuselage
     skin for fuselage antennas, the rounded position itself otherwise."""
-    step = POSITION_GRID[airframe.coord_unit]
+    step = SHADOW_GRID[airframe.coord_unit]
     rounded = tuple(round(v / step) * step for v in point_of(installation))
     if installation.surface in FUSELAGE_SURFACES:
         hit = skin_point(airframe, rounded)

@@ -87,6 +87,7 @@ def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pa
                      "isolation": fmt_figure(pair.figure("pair.isolation_db")),
                      "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
                      "model": fmt_figure(pair.figure("pair.model")) if pair.figure("pair.model") else "",
+                     "no_model": bool(pair.figure("pair.model")) and pair.figure("pair.model").value == "none",
                      "near_field": pair.near_field, "figures": [data.figure_view(f) for f in pair.figures]})
     return rows
 

@@ -23,19 +23,19 @@ from registry.core.results import Figure
 from registry.core.sources import where
 from registry.physics import shadowing
 
-STEP_DEG = 3.0
-"""Grid step of the shadow computation, degrees (divides 90)."""
+STEP_DEG = 5.0
+"""Grid step of the shadow computation, degrees (divides 90): 37 × 72 directions per attitude."""
 
 POSITION_GRID = {"in": 1.0, "mm": 20.0}
 """Positions are rounded to this (airframe unit) before the pair-coupling computation (1 in or 20 mm)."""
 
-SHADOW_GRID = {"in": 2.0, "mm": 50.0}
-"""Positions are rounded to this (airframe unit) before the shadow computation: 2 in or 50 mm moves a
-shadow edge by under 0.7 degree for an obstacle 4 m away (small-angle geometry), under a quarter of the
-3-degree grid step."""
+SHADOW_GRID = {"in": 4.0, "mm": 100.0}
+"""Positions are rounded to this (airframe unit) before the shadow computation: 4 in or 100 mm moves a
+shadow edge by under 1.5 degrees for an obstacle 4 m away (small-angle geometry), under a third of the
+5-degree grid step."""
 
 METHOD = ("geometric optics on the lofted airframe: rays blocked below the skin's tangent plane or by "
-          "fuselage, wing and fin (no diffraction); grid every 3°; shares of solid angle")
+          "fuselage, wing and fin (no diffraction); grid every 5°; shares of solid angle")
 
 
 class Requirement(NamedTuple):

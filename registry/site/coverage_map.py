@@ -43,22 +43,19 @@ def _y(el_deg: float) -> float:
 def _runs(mask: np.ndarray, az_deg: np.ndarray, el_deg: np.ndarray, step: float) -> tuple[str, ...]:
     """One rectangle per run of True cells along each elevation row, as path data."""
     order = np.argsort((az_deg + 180.0) % 360.0)
+    centres = np.array([_x(float(a)) for a in az_deg[order]])
+    half = step / 2 * PX_PER_DEG
     paths = []
     for e, el in enumerate(el_deg):
-        row = mask[e, order]
-        top, bottom = _y(min(el + step / 2, 90.0)), _y(max(el - step / 2, -90.0))
-        k = 0
-        while k < row.size:
-            if not row[k]:
-                k += 1
-                continue
-            start = k
-            while k < row.size and row[k]:
-                k += 1
-            x0 = _x(float(az_deg[order[start]])) - step / 2 * PX_PER_DEG
-            x1 = _x(float(az_deg[order[k - 1]])) + step / 2 * PX_PER_DEG
-            x0, x1 = max(x0, MARGIN), min(x1, MARGIN + 360 * PX_PER_DEG)
-            paths.append(f"M{n(x0)},{n(top)}H{n(x1)}V{n(bottom)}H{n(x0)}Z")
+        row = np.concatenate([[False], mask[e, order], [False]]).astype(np.int8)
+        edges = np.diff(row)
+        starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1
+        if starts.size == 0:
+            continue
+        top, bottom = n(_y(min(el + step / 2, 90.0))), n(_y(max(el - step / 2, -90.0)))
+        for i, j in zip(starts, ends):
+            x0, x1 = max(centres[i] - half, MARGIN), min(centres[j] + half, MARGIN + 360 * PX_PER_DEG)
+            paths.append(f"M{n(x0)},{top}H{n(x1)}V{bottom}H{n(x0)}Z")
     return tuple(paths)
 
 

@@ -290,5 +290,5 @@ def finite_plate_figures(model: AntennaModel, service: Service, radius_m: float,
         Figure(FK.GROUND_SHIFT_VSWR, "VSWR of a match made for infinite ground, on this plate", shift_vswr, "",
                "(1 + |Γ|)/(1 − |Γ|), Γ = (Z_plate − Z_∞)/(Z_plate + Z_∞*)",
                (("limit", f"{policy.vswr_limit_for(service.id):g}"),),
-               "power-wave reflection (Kurokawa, IEEE Trans. MTT-13, 1965, from memory)", src),
+               "power-wave reflection, reference Z_∞* (K. Kurokawa, Power waves and the scattering matrix, IEEE Trans. MTT-13(2), 1965)", src),
     ]

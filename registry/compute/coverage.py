@@ -75,9 +75,14 @@ def region_text(need: Requirement) -> str:
 
 def antenna_point(airframe: Airframe, installation: Installation) -> tuple[float, float, float]:
     """The point shadows are computed from (airframe unit): the rounded position moved onto the fuselage
-    skin for fuselage antennas, the rounded position itself otherwise."""
+    skin for fuselage antennas, the rounded position itself otherwise. A rounded station that falls on a
+    cross section's station is moved a quarter step aft: on the crease between two frustums the ray test
+    sees the neighbouring frustum's surface as an obstacle."""
     step = SHADOW_GRID[airframe.coord_unit]
     rounded = tuple(round(v / step) * step for v in point_of(installation))
+    stations = {s.sta for s in airframe.fuselage.sections}
+    if rounded[0] in stations:  # on the crease between two frustums: taken a quarter step aft of it
+        rounded = (rounded[0] + step / 4, rounded[1], rounded[2])
     if installation.surface in FUSELAGE_SURFACES:
         hit = skin_point(airframe, rounded)
         if hit is not None:

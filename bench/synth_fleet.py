@@ -237,6 +237,20 @@ def feeder_loss_db(fleet, service_id: str, cable_id: str, length_m: float, conne
 # ---- placing extra positions on an airframe ------------------------------------------------------------
 
 
+def onto_skin(location: dict, airframe, surface: str) -> dict:
+    """A fuselage position moved onto the airframe type's three-dimensional skin (the shape the checks use),
+    so that the skin-position check finds nothing to say about sound positions."""
+    from registry.compute.airframe import FUSELAGE_SURFACES, SCALE_M, skin_point
+
+    if surface not in FUSELAGE_SURFACES:
+        return location
+    hit = skin_point(airframe, (location["sta"], location["bl"], location["wl"]))
+    if hit is None:
+        return location
+    sta, bl, wl = (float(v) / SCALE_M[airframe.coord_unit] for v in hit.on_skin_m)
+    return {"sta": sta, "bl": bl, "wl": wl}
+
+
 def place(extra: Extra, airframe, frac: float) -> dict:
     """STA/BL/WL of an extra at `frac` (see Extra), in the airframe's unit."""
     body = airframe.fuselage
@@ -252,7 +266,8 @@ def place(extra: Extra, airframe, frac: float) -> dict:
         return {"sta": body.nose_sta + frac * length, "bl": extra.bl_frac * half_width * 0.3,
                 "wl": body.centreline_wl - 0.15 * body.height}
     wl = top if extra.surface == "top" else bottom
-    return {"sta": body.nose_sta + frac * length, "bl": extra.bl_frac * half_width, "wl": wl}
+    return onto_skin({"sta": body.nose_sta + frac * length, "bl": extra.bl_frac * half_width, "wl": wl},
+                     airframe, extra.surface)
 
 
 def distance_m(a: dict, b: dict, unit: str) -> float:
@@ -336,7 +351,8 @@ def shift(location: dict, airframe, rng: random.Random, surface: str) -> dict:
     if bl != 0.0 and surface in ("top", "bottom"):
         bl += rng.uniform(-0.02, 0.02) * airframe.fuselage.width
     digits = 1 if airframe.coord_unit == "in" else 0
-    return {"sta": rounded(sta, digits), "bl": rounded(bl, digits), "wl": rounded(location["wl"], digits)}
+    moved = onto_skin({"sta": sta, "bl": bl, "wl": location["wl"]}, airframe, surface)
+    return {key: rounded(value, digits) for key, value in moved.items()}
 
 
 def template_installation(rng, fleet, airframe, name: str, variants: list[dict], delivered: date) -> dict:

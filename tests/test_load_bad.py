@@ -128,7 +128,7 @@ EXPECTED = {
         'policy.yaml:2:13: error: vswr_limit: found 1.0e+308, expected a number between 1.01 and 100 (VSWR, the ratio n:1)',
     ],
     "review_unknown_rule": [
-        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, unmodellable, cosite, cosite-small (did you mean 'feeder-loss'?)",
+        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, unmodellable, cosite, cosite-small, skin-position, coverage, ground-plane-effect (did you mean 'feeder-loss'?)",
     ],
     "serial_not_quoted": [
         'aircraft/qx-fcb.yaml:5:9: error: serial: found 2018, expected text (put it in quotes)',

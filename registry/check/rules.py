@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from typing import NamedTuple
 
+from registry.compute.element import HORIZON_LOSS_LIMIT_DB
 from registry.compute.kinds import kind_of
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft, AntennaModel, Cable, Fleet, Installation, Service
@@ -211,10 +212,15 @@ def missing_data(s: Subject) -> list[Discrepancy]:
 
 
 def ground_plane(s: Subject) -> list[Discrepancy]:
-    """A monopole without a conductive ground plane, or with a plate smaller than the policy radius."""
+    """A monopole with no conductive ground: on composite skin with no plate, or a plate under the policy's
+    radius whose finite-plate figures could not be computed. Coupler-tuned elements (the airframe is their
+    counterpoise) and monopoles on metal skin are not held to it; a plate of any size is graded by
+    `ground_plane_effect` instead."""
     result = s.result
     plane, radius, required = (result.figure(k) for k in (FK.GROUND_TYPE, FK.GROUND_RADIUS_M, FK.GROUND_REQUIRED_M))
-    if plane is None or radius.value == "metal skin":
+    if plane is None or radius.value == "metal skin" or s.installation.coupler:
+        return []
+    if result.figure(FK.GROUND_SHIFT_VSWR) is not None:
         return []
     material = result.figure(FK.GROUND_MATERIAL).value
     if isinstance(radius.value, float) and radius.value >= required.value:
@@ -227,6 +233,54 @@ def ground_plane(s: Subject) -> list[Discrepancy]:
                    f"(needs a conductive plane of {required.value:.3f} m radius).")
     return [make("ground-plane", *s.ids, radius.value if isinstance(radius.value, float) else 0.0,
                  required.value, "m", message, radius, required.source)]
+
+
+def ground_plane_effect(s: Subject) -> list[Discrepancy]:
+    """A monopole on a finite plate: the match made for a large ground no longer holds the service's VSWR
+    limit on it, or the plate takes more horizon gain than HORIZON_LOSS_LIMIT_DB."""
+    shift, lost = s.fig(FK.GROUND_SHIFT_VSWR), s.fig(FK.GROUND_HORIZON_LOST_DB)
+    if shift is None or s.installation.coupler:
+        return []
+    limit = s.fleet.policy.vswr_limit_for(s.service.id)
+    radius = s.fig(FK.GROUND_RADIUS_WAVELENGTHS)
+    if shift.value > limit:
+        return [make("ground-plane-effect", *s.ids, shift.value, limit, "",
+                     f"On its {s.fig(FK.GROUND_RADIUS_M).value:.3f} m plate ({radius.value:.2f} λ) the monopole's "
+                     f"input impedance moves from {s.fig(FK.GROUND_Z_REFERENCE_OHM).value} Ω to "
+                     f"{s.fig(FK.GROUND_Z_PLATE_OHM).value} Ω: a match made for a large ground reads VSWR "
+                     f"{shift.value:.2f} against the {limit:g} limit.", shift)]
+    if lost.value > HORIZON_LOSS_LIMIT_DB:
+        return [make("ground-plane-effect", *s.ids, lost.value, HORIZON_LOSS_LIMIT_DB, "dB",
+                     f"On its {radius.value:.2f} λ plate the monopole loses {lost.value:.1f} dB of horizon gain "
+                     f"against an infinite ground (beam peak at {s.fig(FK.GROUND_PEAK_ELEVATION_DEG).value:.0f}°).",
+                     lost)]
+    return []
+
+
+def skin_position(s: Subject) -> list[Discrepancy]:
+    """A fuselage antenna whose recorded position is further from the modelled skin than the tolerance."""
+    distance, tolerance = s.fig(FK.SKIN_DISTANCE_M), s.fig(FK.SKIN_TOLERANCE_M)
+    if tolerance is None or (distance.value is not None and distance.value <= tolerance.value):
+        return []
+    shape = s.fig(FK.SKIN_SHAPE).value
+    where_text = "no fuselage skin within 2 m" if distance.value is None else (
+        f"{distance.value:.3f} m {distance.label.split('(')[-1].rstrip(')')} the skin")
+    return [make("skin-position", *s.ids, distance.value if distance.value is not None else 2.0,
+                 tolerance.value, "m",
+                 f"The recorded position of this {s.installation.surface.replace('_', ' ')} antenna is {where_text} "
+                 f"(shape {shape}); check its STA/BL/WL.", distance)]
+
+
+def coverage(s: Subject) -> list[Discrepancy]:
+    """The share of what the service must see that the airframe leaves clear, under the service's need."""
+    worst, required = s.fig(FK.COVERAGE_WORST_PCT), s.fig(FK.COVERAGE_REQUIRED_PCT)
+    if worst is None or worst.value >= required.value:
+        return []
+    return [make("coverage", *s.ids, worst.value, required.value, "%",
+                 f"From its {s.installation.surface.replace('_', ' ')} position the antenna sees "
+                 f"{worst.value:.0f} % of the {s.fig(FK.COVERAGE_REGION).value} ({s.fig(FK.COVERAGE_ATTITUDE).value}; "
+                 f"{s.fig(FK.COVERAGE_LEVEL_PCT).value:.0f} % in level flight) against the {required.value:g} % "
+                 f"{s.service.name} needs; widest blocked sector: {s.fig(FK.COVERAGE_SECTOR).value}.", worst)]
 
 
 def antenna_suitability(s: Subject) -> list[Discrepancy]:
@@ -262,14 +316,14 @@ def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
     """Isolation below the policy's minimum for the pair's services."""
     isolation = pair.figure(FK.PAIR_ISOLATION_DB)
     minimum = pair.figure(FK.PAIR_MIN_ISOLATION_DB)
-    if isolation is None or minimum is None or isolation.value >= minimum.value:
+    if isolation is None or minimum is None or isolation.value is None or isolation.value >= minimum.value:
         return []
-    distance = pair.figure(FK.PAIR_DISTANCE_M)
-    caveat = " (near field: indicative only)" if pair.near_field else ""
+    distance, model = pair.figure(FK.PAIR_DISTANCE_M), pair.figure(FK.PAIR_MODEL)
+    how = f" ({model.value})" if model is not None else ""
     return [make(
         "isolation", pair.aircraft, f"{pair.position_a}+{pair.position_b}", isolation.value, minimum.value, "dB",
-        f"{pair.position_a} and {pair.position_b} are {distance.value:.2f} m apart: free-space isolation "
-        f"{isolation.value:.1f} dB is under the {minimum.value:g} dB minimum{caveat}.", isolation)]
+        f"{pair.position_a} and {pair.position_b} are {distance.value:.2f} m apart: isolation "
+        f"{isolation.value:.1f} dB{how} is under the {minimum.value:g} dB minimum.", isolation)]
 
 
 def cosite_discrepancies(fleet: Fleet, cosite: AircraftCosite) -> list[Discrepancy]:
@@ -304,5 +358,5 @@ def cosite_finding(rule: str, aircraft: str, pair: str, limit: float, bad: list)
 
 INSTALLATION_RULES = (element_length, band_coverage, vswr_bandwidth, measured_vswr, feeder_loss, impedance_match,
                       cable_frequency, ground_plane, antenna_suitability, measurement_age, missing_data,
-                      unmodellable)
+                      unmodellable, skin_position, coverage, ground_plane_effect)
 """The single-installation rules, in the order their findings are listed (pairs follow)."""

@@ -12,6 +12,8 @@ from datetime import date
 
 from registry.compute import antenna
 from registry.compute.cosite import cosite_result
+from registry.compute.airframe import skin_figures
+from registry.compute.coverage import coverage_figures
 from registry.compute.element import band_figures, ground_plane_figures, length_figures, modelled_vswr
 from registry.compute.feeder import cable_result, feeder_figures, measured_figures
 from registry.compute.pair import pair_results
@@ -44,7 +46,8 @@ def installation_result(fleet: Fleet, aircraft: Aircraft, installation: Installa
     service = fleet.services[installation.service]
     model = fleet.antennas[installation.antenna]
     cable = fleet.cables[installation.feeder.cable]
-    material = fleet.airframe_of(aircraft).material_at(installation.location.sta, installation.surface)
+    airframe = fleet.airframe_of(aircraft)
+    material = airframe.material_at(installation.location.sta, installation.surface)
     figures: list[Figure] = []
     figures += length_figures(installation, model, service)
     figures += band_figures(installation, model, service)
@@ -55,6 +58,8 @@ def installation_result(fleet: Fleet, aircraft: Aircraft, installation: Installa
     figures += measured
     figures += feeder_figures(installation, model, service, cable, fleet.policy, figures)
     figures += ground_plane_figures(installation, model, service, material, fleet.policy)
+    figures += skin_figures(airframe, installation)
+    figures += coverage_figures(airframe, installation, service)
     pattern = antenna.pattern(model, service.design_freq_mhz)
     result = InstallationResult(
         aircraft=aircraft.id,

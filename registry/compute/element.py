@@ -11,7 +11,7 @@ from registry.core import figure_keys as FK
 from registry.compute import antenna as cache
 from registry.compute.kinds import kind_of
 from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
-from registry.physics import impedance, mismatch, wave
+from registry.physics import finite_ground, impedance, mismatch, wave
 from registry.core.results import Curve, Figure
 from registry.core.sources import where
 
@@ -240,9 +240,36 @@ METHOD_MOM = ("thin-wire method of moments, piecewise-sinusoidal Galerkin (Richm
 # --- ground plane ---------------------------------------------------------------------------------------
 
 
+HORIZON_LOSS_LIMIT_DB = 10.0
+"""Horizon gain a plate may lose against an infinite ground before the ground-plane-effect rule reports it.
+Common practice, no source: on any finite plate the rim diffraction takes about 6 dB off the horizon
+gain of the infinite-ground model (the field there is half the image-theory field), so a loss well past
+6 dB means the plate itself, not its finiteness, spoils the horizon."""
+
+FINITE_GROUND_METHOD = ("moment method for a body of revolution (Mautz and Harrington, monopole at the centre "
+                        "of a disc as in Weiner et al., MITRE ESD-TR-86-241, 1986, from memory); checked against "
+                        "NEC-2 wire-grid discs from 0.25 to 3 λ")
+
+
+@functools.lru_cache(maxsize=256)
+def _on_disc(height_m: float, radius_m: float, wire_radius_m: float, freq_hz: float):
+    """finite_ground.monopole_on_disc, cached per content: (horizon dBi, peak elevation deg, Z_in)."""
+    res = finite_ground.monopole_on_disc(height_m, radius_m, wire_radius_m, freq_hz)
+    return res.horizon_gain_dbi, res.peak_elevation_deg, complex(res.z_in_ohm)
+
+
+@functools.lru_cache(maxsize=256)
+def _on_infinite_ground(kind: str, geometry: tuple, freq_hz: float) -> complex:
+    return complex(impedance.solve_wire_antenna(kind, geometry, [freq_hz]).z_in_ohm[0])
+
+
 def ground_plane_figures(installation: Installation, model: AntennaModel, service: Service,
                          material: str | None, policy: Policy) -> list[Figure]:
-    """For monopoles: what the element stands on and whether it reaches the policy's radius."""
+    """For monopoles: what the element stands on and, on a plate, what the plate's finite size does to
+    its horizon gain, beam tilt and input impedance (finite_ground, at the design frequency).
+
+    A coupler-tuned element is resonated by its coupler and uses the airframe as its counterpoise: the
+    quarter-wave radius test does not apply to it (at HF λ/4 is longer than the aircraft)."""
     if not kind_of(model.kind).needs_ground_plane:
         return []
     low_mhz = min(low for low, _ in service.bands_mhz)
@@ -256,14 +283,56 @@ def ground_plane_figures(installation: Installation, model: AntennaModel, servic
         radius = "metal skin"
     else:
         radius = 0.0
-    return [
+    figures = [
         Figure(FK.GROUND_MATERIAL, "Skin material at the base", material or "unknown (no zone covers it)", "",
                src=where(installation, "location")),
         Figure(FK.GROUND_TYPE, "Ground plane", plane_type, "", src=src),
         Figure(FK.GROUND_RADIUS_M, "Ground-plane radius", radius, "m" if isinstance(radius, float) else "", src=src),
-        Figure(FK.GROUND_REQUIRED_M, "Required radius at the lowest service frequency", required_m, "m",
-               "k · λ(f_low)", (("k", f"{policy.ground_plane_min_radius_wavelengths:g} λ"),
-                                ("f_low", f"{low_mhz:g} MHz")), "common practice, no source (λ/4 radius)"),
     ]
+    if installation.coupler:
+        return figures + [Figure(
+            FK.GROUND_REQUIRED_M, "Required radius", "not applicable: coupler-tuned element", "",
+            source="the coupler resonates the element and the airframe is its counterpoise (common practice, "
+                   "no source)", src=where(installation, "coupler"))]
+    figures.append(Figure(
+        FK.GROUND_REQUIRED_M, "Required radius at the lowest service frequency", required_m, "m", "k · λ(f_low)",
+        (("k", f"{policy.ground_plane_min_radius_wavelengths:g} λ"), ("f_low", f"{low_mhz:g} MHz")),
+        "common practice, no source (λ/4 radius)"))
+    if isinstance(radius, float) and radius > 0 and "element_length_m" in model.geometry:
+        figures += finite_plate_figures(model, service, radius, src, policy)
+    return figures
 
 
+def finite_plate_figures(model: AntennaModel, service: Service, radius_m: float, src: str,
+                         policy: Policy) -> list[Figure]:
+    """Horizon gain, beam tilt and input impedance on the plate against the infinite-ground model."""
+    freq_hz = service.design_freq_mhz * MHZ
+    height = float(model.geometry["element_length_m"])
+    diameter = float(model.geometry.get("element_diameter_m", 0.006))
+    horizon, peak_el, z_plate = _on_disc(height, radius_m, diameter / 2, freq_hz)
+    infinite = cache.gain_toward_dbi(model, service.design_freq_mhz, math.pi / 2, 0.0)
+    z_ref = _on_infinite_ground(*cache.physics_geometry(model), freq_hz)
+    gamma = abs((z_plate - z_ref) / (z_plate + z_ref.conjugate()))
+    shift_vswr = (1 + gamma) / (1 - gamma) if gamma < 1 else math.inf
+    inputs = (("h", f"{height:.3f} m"), ("a (plate radius)", f"{radius_m:.3f} m"),
+              ("f", f"{service.design_freq_mhz:g} MHz"))
+    z_text = lambda z: f"{z.real:.1f} {'+' if z.imag >= 0 else '−'} j{abs(z.imag):.1f}"  # noqa: E731
+    return [
+        Figure(FK.GROUND_RADIUS_WAVELENGTHS, "Plate radius in wavelengths", radius_m / wave.wavelength_m(freq_hz),
+               "λ", "a / λ(f_design)", inputs, src=src),
+        Figure(FK.GROUND_HORIZON_DBI, "Horizon gain on the plate", horizon, "dBi", "D(θ = 90°)", inputs,
+               FINITE_GROUND_METHOD, src),
+        Figure(FK.GROUND_PEAK_ELEVATION_DEG, "Beam peak elevation on the plate", peak_el, "°", "", inputs,
+               FINITE_GROUND_METHOD, src),
+        Figure(FK.GROUND_HORIZON_LOST_DB, "Horizon gain lost against an infinite ground", infinite - horizon, "dB",
+               "G_∞(90°) − G_plate(90°)", (("G_∞(90°)", f"{infinite:.2f} dBi (image theory)"),),
+               FINITE_GROUND_METHOD, src),
+        Figure(FK.GROUND_Z_PLATE_OHM, "Input impedance on the plate", z_text(z_plate), "Ω", "", inputs,
+               FINITE_GROUND_METHOD, src),
+        Figure(FK.GROUND_Z_REFERENCE_OHM, "Input impedance on an infinite ground", z_text(z_ref), "Ω", "", inputs,
+               METHOD_MOM, src),
+        Figure(FK.GROUND_SHIFT_VSWR, "VSWR of a match made for infinite ground, on this plate", shift_vswr, "",
+               "(1 + |Γ|)/(1 − |Γ|), Γ = (Z_plate − Z_∞)/(Z_plate + Z_∞*)",
+               (("limit", f"{policy.vswr_limit_for(service.id):g}"),),
+               "power-wave reflection, reference Z_∞* (K. Kurokawa, Power waves and the scattering matrix, IEEE Trans. MTT-13(2), 1965)", src),
+    ]

@@ -177,20 +177,37 @@ class Aircraft(Sourced):
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
+class Section(Sourced):
+    """One fuselage cross section: an ellipse at `sta` centred on (BL 0, `centre_wl`)."""
+
+    sta: float
+    centre_wl: float
+    half_width: float
+    half_height: float
+
+
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Fuselage(Sourced):
+    """The outline (length, width, height, centreline) and, when the file gives them, the cross sections
+    along the length (`sections`, in increasing STA) that the three-dimensional shape is lofted from."""
+
     nose_sta: float
     tail_sta: float
     width: float
     height: float
     centreline_wl: float
+    sections: tuple[Section, ...] = ()
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Wing(Sourced):
+    """`wl`: the wing plane's waterline when the file gives it (else a mid wing is assumed)."""
+
     root_le_sta: float
     root_chord: float
     span: float
     sweep_deg: float
+    wl: float | None = None
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -295,6 +312,8 @@ class Service(Sourced):
     suppression_line: str | None = None
     sources: FrozenMap = field(default_factory=FrozenMap)
     """Co-site figure key → its standing and document ('sourced: …', 'unverified: …', ...)."""
+    must_see: FrozenMap | None = None
+    """What the service's antenna must see past the airframe (region, elevation, attitudes, share, source)."""
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)

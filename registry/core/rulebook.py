@@ -25,6 +25,9 @@ RULE_SEVERITY = {
     "unmodellable": "concern",
     "cosite": "blocking",
     "cosite-small": "concern",
+    "skin-position": "concern",
+    "coverage": "concern",
+    "ground-plane-effect": "concern",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

@@ -12,7 +12,7 @@ from typing import Any, Callable
 from registry.core.errors import Problem, Src, parse_path
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, FrozenMap,
                                  Fuselage, GroundPlane, Installation, Locator, Location, Measured,
-                                 Modification, RadioFigures, Review, Service, Wing, Zone, freeze)
+                                 Modification, RadioFigures, Review, Section, Service, Wing, Zone, freeze)
 from registry.core.units import per_100ft_to_per_100m
 from registry.load import integrity
 from registry.load.yamlsource import YamlDoc
@@ -68,13 +68,16 @@ def band_pairs(pairs: list[list[float]]) -> tuple[tuple[float, float], ...]:
 
 def airframe(doc: Doc) -> Airframe:
     data = doc.data
-    numbers = lambda mapping: {key: float(value) for key, value in mapping.items()}  # noqa: E731
+    numbers = lambda mapping: {key: float(value) for key, value in mapping.items()  # noqa: E731
+                               if key != "sections"}
+    sections = tuple(Section(**doc.at("fuselage", "sections", n), **numbers(item))
+                     for n, item in enumerate(data["fuselage"].get("sections", ())))
     return Airframe(
         **doc.at(),
         id=data["id"],
         name=data["name"],
         coord_unit=data["coord_unit"],
-        fuselage=Fuselage(**doc.at("fuselage"), **numbers(data["fuselage"])),
+        fuselage=Fuselage(**doc.at("fuselage"), **numbers(data["fuselage"]), sections=sections),
         wing=Wing(**doc.at("wing"), **numbers(data["wing"])) if "wing" in data else None,
         fin=Fin(**doc.at("fin"), **numbers(data["fin"])) if "fin" in data else None,
         zones=tuple(Zone(**doc.at("zones", n), name=item["name"], sta_from=float(item["sta_from"]),
@@ -133,6 +136,7 @@ def services(doc: Doc, shipped: bool) -> list[Service]:
             source=item.get("source", ""),
             shipped=shipped,
             **cosite_fields(item, bands),
+            must_see=freeze(item["must_see"]) if "must_see" in item else None,
         ))
     return services
 

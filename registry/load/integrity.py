@@ -78,6 +78,7 @@ def check_airframes(airframes: list[Airframe]) -> list[Problem]:
         if not body.nose_sta < body.tail_sta:
             problems.append(problem(body, "tail_sta", f"{body.tail_sta:g}, not beyond nose_sta {body.nose_sta:g}",
                                     "a tail STA greater than the nose STA"))
+        problems += sections(body.sections)
         for n, zone in enumerate(airframe.zones):
             if not zone.sta_from < zone.sta_to:
                 problems.append(problem(zone, "sta_to", f"{zone.sta_to:g}, not beyond sta_from {zone.sta_from:g}",
@@ -89,6 +90,19 @@ def check_airframes(airframes: list[Airframe]) -> list[Problem]:
                     problems.append(problem(zone, "sta_from", f"stations overlapping the zone '{other.name}' "
                                                               f"(line {other.src.line})",
                                             "zones for the same surfaces that do not overlap"))
+    return problems
+
+
+def sections(items) -> list[Problem]:
+    """Fuselage cross sections in increasing STA, no two neighbours both of zero width."""
+    problems = []
+    for before, section in zip(items, items[1:]):
+        if not section.sta > before.sta:
+            problems.append(problem(section, "sta", f"{section.sta:g}, not beyond the section before ({before.sta:g})",
+                                    "sections in increasing STA"))
+        elif before.half_width + section.half_width <= 0:
+            problems.append(problem(section, "half_width", "0 here and in the section before",
+                                    "no two neighbouring sections of zero width"))
     return problems
 
 

@@ -129,7 +129,7 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
         if not matches(craft, [craft.installations[pair.position_a].service,
                                craft.installations[pair.position_b].service], aircraft, service):
             continue
-        note = "  (near field: indicative only)" if pair.near_field else ""
+        note = "  (inside the far field)" if pair.near_field else ""
         lines.append(f"{craft.registration} {pair.position_a} + {pair.position_b}{note}")
         for figure in pair.figures:
             lines.append(f"  {figure.label:<52} {format_value(figure)}")

@@ -204,7 +204,10 @@ def locate_on_skin(shape: AirframeShape, point, scale_m: float, tolerance_m: flo
     ellipses); plate distance: perpendicular to the plane, the foot inside the polygon.
     """
     p = to_metres(point, scale_m)
-    hits = [_fuselage_skin(shape, p)] + [_plate_skin(pl, p) for pl in shape.plates]
+    near = [pl for pl in shape.plates  # a foot inside the polygon within tolerance implies p inside the
+            if np.all(p >= pl.vertices_m.min(axis=0) - tolerance_m)  # box grown by the tolerance
+            and np.all(p <= pl.vertices_m.max(axis=0) + tolerance_m)]
+    hits = [_fuselage_skin(shape, p)] + [_plate_skin(pl, p) for pl in near]
     hits = [h for h in hits if h is not None and h.distance_m <= tolerance_m]
     return min(hits, key=lambda h: h.distance_m) if hits else None
 

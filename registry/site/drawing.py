@@ -8,9 +8,12 @@ from the few dimensions the registry holds; antenna positions are exact.
 """
 from __future__ import annotations
 
+import dataclasses
 import math
 import re
 from dataclasses import dataclass
+
+import numpy as np
 
 from registry.core.model import Airframe
 from registry.site.outline import Frame, composite_paths, extent, frame_of, plan_outline, side_outline
@@ -71,6 +74,7 @@ class View:
     axis_label: str
     axis_label_x: str
     axis_label_y: str
+    sectors: tuple[str, ...] = ()          # path d of blocked azimuth sectors of a selected antenna (plan)
 
 
 @dataclass(frozen=True)
@@ -249,9 +253,23 @@ def side_view(airframe: Airframe, markers: list[Marker], f: Frame, parts: Parts,
                 **sta_scale(f, airframe.coord_unit))
 
 
-def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> Drawing:
+def sector_paths(f: Frame, sta: float, bl: float, sectors) -> tuple[str, ...]:
+    """Wedges in plan coordinates (x = STA, y = −BL) from an antenna at (sta, bl), one per blocked azimuth
+    run (start_deg, width_deg), azimuth from the nose positive to the right; radius a quarter of the
+    fuselage length."""
+    radius = 0.25 * f.length
+    paths = []
+    for start, width in sectors:
+        angles = np.radians(start + np.linspace(0.0, width, max(2, int(width // 3) + 2)))
+        points = " L".join(f"{n(sta - radius * math.cos(a))},{n(-bl - radius * math.sin(a))}" for a in angles)
+        paths.append(f"M{n(sta)},{n(-bl)} L{points} Z")
+    return tuple(paths)
+
+
+def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str, sectors=None) -> Drawing:
     """Plan and side view of `airframe` with `markers`; `ident` makes the clip-path ids unique.
-    The plan view on the left, the side view on the right, both with an STA scale."""
+    The plan view on the left, the side view on the right, both with an STA scale. `sectors`:
+    (sta, bl, ((start_deg, width_deg), ...)) of a selected antenna, drawn as wedges in the plan view."""
     f = frame_of(airframe)
     plan = view_parts(airframe, markers, f, "plan")
     side = view_parts(airframe, markers, f, "side")
@@ -265,7 +283,10 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str) -> D
     side_shift_x = view_width + f.gap
     total_top = min(plan_box[0], side_box[0] + side_shift_y)
     total_bottom = max(plan_box[1], side_box[1] + side_shift_y)
-    views = (plan_view(airframe, markers, f, plan, (left, right), ident),
+    plan_v = plan_view(airframe, markers, f, plan, (left, right), ident)
+    if sectors:
+        plan_v = dataclasses.replace(plan_v, sectors=sector_paths(f, *sectors))
+    views = (plan_v,
              side_view(airframe, markers, f, side, (left, right), ident, (side_shift_x, side_shift_y)))
     return Drawing(
         view_box=f"{n(left)} {n(total_top)} {n(2 * view_width + f.gap)} {n(total_bottom - total_top)}",

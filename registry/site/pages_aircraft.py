@@ -6,9 +6,11 @@ from typing import Any
 
 from markupsafe import Markup
 
+from registry.compute.airframe import shape_of, shape_text
 from registry.core.model import Aircraft, Installation
 from registry.core.results import InstallationResult, PairResult
 from registry.site import drawing as sitedrawing
+from registry.site.coverage_map import blocked_sectors, coverage_map
 from registry.site import plots
 from registry.site.context import SiteData
 from registry.site.format import bands_text, fmt_figure, location_text, notes_html, words
@@ -67,6 +69,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
                 modifications=sorted(aircraft.modifications, key=lambda m: (m.date, m.ref), reverse=True),
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 matrix=severity_matrix(items), src=data.model_src(aircraft),
+                shape={"text": shape_text(airframe), "assumptions": shape_of(airframe).assumptions},
                 change_marks=data.marks(aircraft.id), change_anchor="aircraft",
                 status_kinds=("blocking", "concern", "advisory", "clear"))
 
@@ -83,6 +86,8 @@ def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pa
                      "distance": fmt_figure(pair.figure("pair.distance_m")),
                      "isolation": fmt_figure(pair.figure("pair.isolation_db")),
                      "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
+                     "model": fmt_figure(pair.figure("pair.model")) if pair.figure("pair.model") else "",
+                     "no_model": bool(pair.figure("pair.model")) and pair.figure("pair.model").value == "none",
                      "near_field": pair.near_field, "figures": [data.figure_view(f) for f in pair.figures]})
     return rows
 
@@ -101,6 +106,24 @@ def result_views(data: SiteData, aircraft: Aircraft, installation: Installation,
         vswr = {"src": vswr_plot_path(key), "alt": plots.vswr_alt(result, title)}
     return {"groups": figure_groups(data, figures), "computed": result is not None, "pattern": pattern,
             "vswr": vswr, "breakdown": feeder_breakdown(figures)}
+
+
+def coverage_views(data: SiteData, aircraft: Aircraft, installation: Installation, service) -> dict[str, Any]:
+    """The coverage map and the airframe drawing with this antenna's blocked sectors."""
+    airframe = data.fleet.airframe_of(aircraft)
+    cmap = coverage_map(airframe, installation, service)
+    if cmap is None:
+        return {"cmap": None, "drawing": None}
+    row = installation_row(data, aircraft, installation)
+    loc = installation.location
+    marker = sitedrawing.Marker(
+        position=installation.position, sta=loc.sta, bl=loc.bl, wl=loc.wl, surface=installation.surface,
+        status=row["status"], href="#coverage",
+        tip_lines=(f"{installation.position} · {row['service']}", location_text(loc, airframe.coord_unit, " "),
+                   f"{words(installation.surface)} · {STATUS_LABELS[row['status']]}"))
+    sectors = (loc.sta, loc.bl, blocked_sectors(airframe, installation, service))
+    drawing = sitedrawing.airframe_drawing(airframe, [marker], f"{anchor(aircraft.id)}-cov", sectors)
+    return {"cmap": cmap, "drawing": drawing}
 
 
 def installation_page(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs) -> Page:
@@ -124,6 +147,7 @@ def installation_page(data: SiteData, aircraft: Aircraft, installation: Installa
                 zone=airframe.zone_at(installation.location.sta, installation.surface),
                 **result_views(data, aircraft, installation, result),
                 pairs=pair_rows(data, aircraft, installation, pairs_of),
+                **coverage_views(data, aircraft, installation, service),
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 notes=Markup(notes_html(installation.notes)), src=data.model_src(installation),
                 sweep_name=measured.sweep.name if measured and measured.sweep else "")

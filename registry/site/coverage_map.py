@@ -1,0 +1,112 @@
+"""The coverage map of one installation: an azimuth/elevation chart of what the airframe blocks from it.
+
+Only numbers here; site_templates/partials/coverage_map.html turns them into inline SVG (readable without
+JavaScript). Chart coordinates: x = azimuth from the nose, -180 (left, behind) .. +180 (right, behind),
+nose in the middle, PX_PER_DEG pixels per degree; y = elevation, +90 at the top.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from registry.compute.coverage import map_grids, region_text, requirement
+from registry.core.model import Airframe, Installation, Service
+from registry.site.svg import n
+
+PX_PER_DEG = 2.0
+MARGIN = 34.0
+
+
+@dataclass(frozen=True)
+class CoverageMap:
+    width: str
+    height: str
+    level: tuple[str, ...]       # path d: cells blocked in level flight
+    attitude: tuple[str, ...]    # path d: cells blocked only at a bank or pitch the service names
+    region: tuple[str, ...]      # path d: the cells the service must see (its outline)
+    x_ticks: tuple[tuple[str, str], ...]
+    y_ticks: tuple[tuple[str, str], ...]
+    chart: tuple[str, str, str, str]   # x, y, width, height of the chart area
+    region_text: str
+    alt: str
+
+
+def _x(az_deg: float) -> float:
+    return MARGIN + ((az_deg + 180.0) % 360.0) * PX_PER_DEG
+
+
+def _y(el_deg: float) -> float:
+    return MARGIN / 2 + (90.0 - el_deg) * PX_PER_DEG
+
+
+def _runs(mask: np.ndarray, az_deg: np.ndarray, el_deg: np.ndarray, step: float) -> tuple[str, ...]:
+    """One rectangle per run of True cells along each elevation row, as path data."""
+    order = np.argsort((az_deg + 180.0) % 360.0)
+    centres = np.array([_x(float(a)) for a in az_deg[order]])
+    half = step / 2 * PX_PER_DEG
+    paths = []
+    for e, el in enumerate(el_deg):
+        row = np.concatenate([[False], mask[e, order], [False]]).astype(np.int8)
+        edges = np.diff(row)
+        starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1
+        if starts.size == 0:
+            continue
+        top, bottom = n(_y(min(el + step / 2, 90.0))), n(_y(max(el - step / 2, -90.0)))
+        for i, j in zip(starts, ends):
+            x0, x1 = max(centres[i] - half, MARGIN), min(centres[j] + half, MARGIN + 360 * PX_PER_DEG)
+            paths.append(f"M{n(x0)},{top}H{n(x1)}V{bottom}H{n(x0)}Z")
+    return tuple(paths)
+
+
+def coverage_map(airframe: Airframe, installation: Installation, service: Service | None) -> CoverageMap | None:
+    """The map of an installation whose service states what it must see, else None."""
+    if service is None or requirement(service) is None:
+        return None
+    level, any_blocked, region = map_grids(airframe, installation, service)
+    step = level.step_deg
+    width = 360 * PX_PER_DEG
+    height = 180 * PX_PER_DEG
+    x_ticks = tuple((n(_x(az) if az != 180 else MARGIN + width), label) for az, label in
+                    ((-180, "tail"), (-90, "left"), (0, "nose"), (90, "right"), (180, "tail")))
+    y_ticks = tuple((n(_y(el)), f"{el:+d}°" if el else "0°") for el in (90, 60, 30, 0, -30, -60, -90))
+    blocked_pct = 100.0 * float(level.blocked.mean())
+    alt = (f"Coverage map of {installation.position}: directions the airframe blocks in level flight "
+           f"({blocked_pct:.0f} % of the grid cells) and at the bank and pitch the service names, over the "
+           f"{region_text(requirement(service))} the service must see.")
+    return CoverageMap(
+        width=n(width + 2 * MARGIN), height=n(height + 1.5 * MARGIN),
+        level=_runs(level.blocked, level.az_deg, level.el_deg, step),
+        attitude=_runs(any_blocked & ~level.blocked, level.az_deg, level.el_deg, step),
+        region=_runs(np.asarray(region), level.az_deg, level.el_deg, step),
+        x_ticks=x_ticks, y_ticks=y_ticks, chart=(n(MARGIN), n(_y(90)), n(width), n(height)),
+        region_text=region_text(requirement(service)), alt=alt)
+
+
+def blocked_sectors(airframe: Airframe, installation: Installation, service: Service | None,
+                    fraction: float = 0.5) -> tuple[tuple[float, float], ...]:
+    """Azimuth runs (start_deg, width_deg) where at least `fraction` of the required region is blocked in
+    level flight (the same measure as the coverage figure's worst sector), for the airframe drawing."""
+    if service is None or requirement(service) is None:
+        return ()
+    level, _, region = map_grids(airframe, installation, service)
+    region = np.asarray(region)
+    weight = np.cos(np.radians(level.el_deg))[:, None] * region
+    col = weight.sum(axis=0)
+    frac = np.where(col > 0, (weight * level.blocked).sum(axis=0) / np.where(col > 0, col, 1.0), 0.0)
+    bad = frac >= fraction
+    step = level.step_deg
+    if bad.all():
+        return ((0.0, 360.0),)
+    runs, k = [], 0
+    start = int(np.flatnonzero(~bad)[0]) if (~bad).any() else 0
+    cells = [(start + i) % bad.size for i in range(bad.size)]
+    while k < len(cells):
+        if not bad[cells[k]]:
+            k += 1
+            continue
+        first = k
+        while k < len(cells) and bad[cells[k]]:
+            k += 1
+        runs.append((float(level.az_deg[cells[first]]) - step / 2, (k - first) * step))
+    return tuple(runs)

@@ -299,7 +299,11 @@ def ground_plane_figures(installation: Installation, model: AntennaModel, servic
         (("k", f"{policy.ground_plane_min_radius_wavelengths:g} λ"), ("f_low", f"{low_mhz:g} MHz")),
         "common practice, no source (λ/4 radius)"))
     if isinstance(radius, float) and radius > 0 and "element_length_m" in model.geometry:
-        figures += finite_plate_figures(model, service, radius, src, policy)
+        try:
+            figures += finite_plate_figures(model, service, radius, src, policy)
+        except impedance.Unmodellable as problem:
+            figures.append(Figure(FK.GROUND_PLATE_NOT_MODELLED, "Effect of the finite plate", f"not modelled: {problem}",
+                                  "", source=FINITE_GROUND_METHOD, src=src))
     return figures
 
 

@@ -20,7 +20,8 @@ from registry.core.model import AntennaModel, Fleet, Installation
 from registry.compute.airframe import shape_of, SCALE_M
 from registry.compute.coverage import POSITION_GRID
 from registry.physics import coupling
-from registry.physics.pair_coupling import PairAntenna, pair_coupling
+from registry.physics.pair_coupling import PairAntenna, PairCoupling, pair_coupling
+from registry.physics.segmentation import Unmodellable
 from registry.core.results import Figure, PairResult
 from registry.core.sources import where
 
@@ -88,7 +89,10 @@ def pair_antenna(fleet: Fleet, installation: Installation, point, toward, freq_m
 @lru_cache(maxsize=16384)
 def _pair_antenna(model: AntennaModel, axes, point, toward, freq_mhz: float, unit: str) -> PairAntenna:
     direction = coupling.direction_vector(point, toward, unit)
-    gain = cache.gain_toward_dbi(model, freq_mhz, *np.deg2rad(coupling.antenna_angles_deg(direction, *axes)))
+    try:
+        gain = cache.gain_toward_dbi(model, freq_mhz, *np.deg2rad(coupling.antenna_angles_deg(direction, *axes)))
+    except Unmodellable:
+        gain = math.nan  # no pattern: Friis cannot be used for this pair
     height = radius = None
     if kind_of(model.kind).needs_ground_plane and "element_length_m" in model.geometry:
         height = float(model.geometry["element_length_m"])
@@ -99,8 +103,12 @@ def _pair_antenna(model: AntennaModel, axes, point, toward, freq_mhz: float, uni
 
 @lru_cache(maxsize=8192)
 def _coupling(airframe, a: PairAntenna, b: PairAntenna, freq_mhz: float):
-    """physics.pair_coupling, cached per airframe content, the two antennas and the frequency."""
-    return pair_coupling(shape_of(airframe), a, b, SCALE_M[airframe.coord_unit], freq_mhz * MHZ)
+    """physics.pair_coupling, cached per airframe content, the two antennas and the frequency; a pair the
+    thin-wire model cannot take gets no figure, with the reason."""
+    try:
+        return pair_coupling(shape_of(airframe), a, b, SCALE_M[airframe.coord_unit], freq_mhz * MHZ)
+    except Unmodellable as error:
+        return PairCoupling(None, "none", f"the moment method cannot model this pair: {error}")
 
 
 def _rounded(installation: Installation, step: float) -> tuple[float, float, float]:

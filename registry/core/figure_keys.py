@@ -105,6 +105,7 @@ GROUND_RADIUS_WAVELENGTHS = "ground.radius_wavelengths"
 GROUND_Z_PLATE_OHM = "ground.z_plate_ohm"
 GROUND_Z_REFERENCE_OHM = "ground.z_reference_ohm"
 GROUND_SHIFT_VSWR = "ground.shift_vswr"
+GROUND_PLATE_NOT_MODELLED = "ground.plate_not_modelled"
 
 PAIR_COUPLING_DB = "pair.coupling_db"
 PAIR_MODEL = "pair.model"

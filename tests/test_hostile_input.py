@@ -325,3 +325,14 @@ def test_extreme_valid_numbers_never_crash_check(one_aircraft, capsys, data):
     for text in (out, err):
         assert "Traceback" not in text and "internal error" not in text
         assert "Warning" not in text and not re.search(r"\b(inf|nan)\b", text, re.IGNORECASE)
+
+
+def test_no_nan_or_infinity_in_the_demo_record():
+    """A figure that has no number (a pattern without side lobes, a cut above half power all round) says
+    why in words: the build record holds no NaN or infinity (issue: no inf or NaN reaches the record)."""
+    from registry import pipeline
+    from registry.output import record
+
+    text = record.to_text(pipeline.run(DEMO, as_of=date(2026, 12, 2), workers=1))
+    assert not re.search(r'"(nan|-?inf)"|\bNaN\b|\bInfinity\b', text)
+    assert "none: neither cut has a side lobe" in text

@@ -50,13 +50,16 @@ def _pattern(kind: str, geometry: tuple, freq_mhz: float) -> PatternResult:
     figures = [
         Figure(FK.PATTERN_DIRECTIVITY_DBI, "Peak directivity", peak, "dBi", "D = 4π U_max / P_rad",
                source=f"{method}; numerical integration over the sphere"),
-        Figure(FK.PATTERN_HPBW_E_DEG, "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°",
-               HALF_POWER_FORMULA, source=method),
-        Figure(FK.PATTERN_HPBW_H_DEG, "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°",
-               HALF_POWER_FORMULA, source=method),
-        Figure(FK.PATTERN_FRONT_TO_BACK_DB, "Front-to-back ratio", m.front_to_back_db, "dB", source=method),
-        Figure(FK.PATTERN_FIRST_SIDELOBE_DB, "First sidelobe level", m.first_sidelobe_db, "dB", source=method),
-        Figure(FK.PATTERN_AZIMUTH_RIPPLE_DB, "Azimuth ripple", m.azimuth_ripple_db, "dB", source=method),
+        _metric(FK.PATTERN_HPBW_E_DEG, "Half-power beamwidth, E-plane", m.hpbw_e_deg, "°",
+                "none: the E-plane cut stays above half power all round", HALF_POWER_FORMULA, method),
+        _metric(FK.PATTERN_HPBW_H_DEG, "Half-power beamwidth, H-plane", m.hpbw_h_deg, "°",
+                "none: the H-plane cut stays above half power all round", HALF_POWER_FORMULA, method),
+        _metric(FK.PATTERN_FRONT_TO_BACK_DB, "Front-to-back ratio", m.front_to_back_db, "dB",
+                "not defined for this pattern", "", method),
+        _metric(FK.PATTERN_FIRST_SIDELOBE_DB, "First sidelobe level", m.first_sidelobe_db, "dB",
+                "none: neither cut has a side lobe", "", method),
+        _metric(FK.PATTERN_AZIMUTH_RIPPLE_DB, "Azimuth ripple", m.azimuth_ripple_db, "dB",
+                "not computed: the kind is not meant to be omnidirectional", "", method),
     ]
     if raw.segments:
         _, _, seg = impedance.choose_segments(kind, geometry, freq_mhz * MHZ, freq_mhz * MHZ, freq_mhz * MHZ)
@@ -165,3 +168,11 @@ def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_
         slopes.append((complex(z3[1]), complex((z3[2] - z3[0]) / (2 * h * MHZ * 2 * np.pi))))
     seg_figure = segments_figure(FK.VSWR_SEGMENTS, sweep.segments, sweep.segmentation)
     return WireImpedance(z_all[:n], resonance_hz / MHZ, float(z_all[n].real), tuple(slopes), seg_figure)
+
+
+def _metric(key: str, label: str, value: float, unit: str, why: str, formula: str, method: str) -> Figure:
+    """A pattern figure: its number when it is finite, else the words `why` (no NaN reaches a page,
+    the record or the terminal)."""
+    if math.isfinite(value):
+        return Figure(key, label, value, unit, formula, source=method)
+    return Figure(key, label, why, "", formula, source=method)

@@ -88,6 +88,14 @@ def _unmodelled_pattern(key: str, kind: str, freq_mhz: float, reason: str) -> Pa
                          metrics=(note,))
 
 
+STOPPED_WORDS = {
+    "segment length limit": "segments may not be shorter than 4 wire radii (the thin-wire kernel's limit)",
+    "segment budget": "the segment budget of the solver is reached",
+    "refinement limit": "the refinement limit is reached",
+}
+"""Why a segmentation stopped short of convergence, in words (physics.segmentation's reasons)."""
+
+
 def segments_figure(key: str, segments: tuple[int, ...], seg) -> Figure:
     """The segment count on each element and how it was reached (seg: physics Segmentation or None)."""
     counts = ", ".join(str(n) for n in segments)
@@ -97,7 +105,10 @@ def segments_figure(key: str, segments: tuple[int, ...], seg) -> Figure:
         how = (f"converged: |Z| changed {100 * seg.change:.2f} % at the last of {seg.refinements} "
                f"refinement(s) at {seg.freq_hz / MHZ:g} MHz")
     else:
-        how = f"not converged ({seg.stopped_by}) after {seg.refinements} refinement(s)"
+        why = STOPPED_WORDS.get(seg.stopped_by, seg.stopped_by)
+        last = (f"; |Z| changed {100 * seg.change:.2f} % at the last of {seg.refinements} refinement(s)"
+                if math.isfinite(seg.change) else "; no refinement was possible")
+        how = f"not converged to 1 %: {why}{last}"
     label = "Segments per element" if len(segments) > 1 else "Segments"
     return Figure(key, label, f"{counts}; {how}", "", "refined from 24 per wavelength until |Z| changes < 1 %",
                   source="common practice for thin-wire moment methods, checked against NEC-2 (segmentation.py)")

@@ -19,7 +19,7 @@ from pathlib import Path
 
 from registry import __version__
 from registry.core.errors import EXIT_DATA, EXIT_FINDINGS, EXIT_INTERNAL, EXIT_OK, AerialbookError
-from registry.core.results import SEVERITIES
+from registry.core.rulebook import SEVERITIES
 from registry.output.safe_text import json_for_terminal, terminal_text
 
 EXIT_OPEN = EXIT_FINDINGS

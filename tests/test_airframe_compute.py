@@ -18,7 +18,7 @@ from registry.compute.aircraft import compute_aircraft, installation_result
 from registry.compute.airframe import shape_of
 from registry.core import figure_keys as FK
 from registry.core.errors import DataError
-from registry.core.model import FrozenMap
+from registry.core.base import FrozenMap
 from registry.load.fleet import load_fleet
 
 AS_OF = date(2026, 12, 2)

@@ -12,7 +12,8 @@ import pytest
 from registry.check import reviews as checks
 from registry.compute.element import uncovered_mhz
 from registry.core.errors import Src
-from registry.core.model import FrozenMap, Review
+from registry.core.base import FrozenMap
+from registry.core.model import Review
 from registry.core.results import Discrepancy
 
 

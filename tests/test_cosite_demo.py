@@ -18,7 +18,7 @@ from registry import cli
 from registry.check.rules import cosite_discrepancies
 from registry.compute.aircraft import compute_aircraft
 from registry.core import figure_keys as FK
-from registry.core.model import FrozenMap
+from registry.core.base import FrozenMap
 from registry.output import record
 from registry.output.compare import compare_figures
 from registry.output.comparison import Tolerance

@@ -4,7 +4,6 @@ The reference is a plain build with no cache and one process; every faster path 
 bytes (common practice for reproducible builds, no source). Hard links keep an unchanged file's inode,
 which is how "not rewritten" is observed (POSIX link(2)).
 """
-import filecmp
 import shutil
 from pathlib import Path
 

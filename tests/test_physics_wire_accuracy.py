@@ -11,7 +11,6 @@ fewer where a segment would be shorter than 4 radii (the extended thin-wire kern
 Tolerances (from the brief, named beside each test): dipoles R and |Z| within 5 %, resonant length 1 %;
 Yagis gain 0.3 dB, feed |Z| 5 %, front-to-back 1.5 dB.
 """
-import numpy as np
 import pytest
 from scipy.optimize import brentq
 

@@ -18,8 +18,9 @@ from registry.site.format import fmt, notes_html
 from registry.site.info import BuildInfo, build_info
 from registry.site.paths import safe_name
 from registry.core.errors import Src
-from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, FrozenMap, Fuselage,
-                            Installation, Location, Measured, Modification, Policy, Service, Wing, Zone)
+from registry.core.base import FrozenMap
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fleet, Fuselage,
+                                 Installation, Location, Measured, Modification, Policy, Service, Wing, Zone)
 from registry.core.results import (CableResult, Curve, Discrepancy, Figure, FleetResults, InstallationResult, PairResult,
                               PatternResult)
 

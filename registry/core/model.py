@@ -13,7 +13,7 @@ from dataclasses import MISSING, dataclass, field, fields
 from datetime import date
 from pathlib import Path
 
-from registry.core.base import FrozenMap, Locator, Sourced, freeze  # noqa: F401 (the model's own names)
+from registry.core.base import FrozenMap, Sourced
 
 SURFACES = ("top", "bottom", "fin", "nose", "tail", "wing_left", "wing_right", "side_left", "side_right")
 

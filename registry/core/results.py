@@ -12,7 +12,6 @@ from typing import NamedTuple
 
 import numpy as np
 
-from registry.core.rulebook import ALL_STATES, OPEN_STATES, REVIEW_STATES, SEVERITIES  # noqa: F401 (re-exported)
 
 
 class Figure(NamedTuple):

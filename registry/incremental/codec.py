@@ -41,7 +41,8 @@ from typing import Any, NamedTuple
 import numpy as np
 
 from registry.core.errors import Src
-from registry.core.model import Aircraft, FrozenMap, Installation
+from registry.core.base import FrozenMap
+from registry.core.model import Aircraft, Installation
 
 FIELD_HINTS: dict[type, dict[str, Any]] = {Aircraft: {"installations": Mapping[str, Installation]}}
 """Field hints narrower than the class's own (a FrozenMap's values are not in its hint)."""

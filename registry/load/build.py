@@ -10,9 +10,10 @@ from pathlib import Path
 from typing import Any, Callable
 
 from registry.core.errors import Problem, Src, parse_path
-from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, FrozenMap,
-                                 Fuselage, GroundPlane, Installation, Locator, Location, Measured,
-                                 Modification, RadioFigures, Review, Section, Service, Wing, Zone, freeze)
+from registry.core.base import FrozenMap, Locator, freeze
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fuselage, GroundPlane,
+                                 Installation, Location, Measured, Modification, RadioFigures, Review,
+                                 Section, Service, Wing, Zone)
 from registry.core.units import per_100ft_to_per_100m
 from registry.load import integrity
 from registry.load.yamlsource import YamlDoc

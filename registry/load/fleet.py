@@ -18,8 +18,9 @@ from registry.load import build, extent, git, inputs, integrity, partial, plausi
 from registry.load import schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
-from registry.core.model import (REQUIRED_POLICY_KEYS, Aircraft, Airframe, AntennaModel, Cable, Fleet, FrozenMap, Installation,
-                                 IsolationRule, Policy, Review, Service)
+from registry.core.base import FrozenMap
+from registry.core.model import (REQUIRED_POLICY_KEYS, Aircraft, Airframe, AntennaModel, Cable, Fleet,
+                                 Installation, IsolationRule, Policy, Review, Service)
 from registry.load.partial import AircraftRead
 from registry.load.yamlsource import YamlDoc, read_yaml
 

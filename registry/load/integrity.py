@@ -13,8 +13,9 @@ from typing import Iterable
 
 from registry.core.errors import Problem
 from registry.core.rulebook import RULES
-from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule, Policy,
-                            Review, Service, Sourced)
+from registry.core.base import Sourced
+from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Installation, IsolationRule,
+                                 Policy, Review, Service)
 from registry.load import sweepcheck
 from registry.load.schemacheck import suggest
 

@@ -8,7 +8,8 @@ from collections import Counter
 from dataclasses import asdict
 
 from registry.core.model import Fleet
-from registry.core.results import ALL_STATES, SEVERITIES, Discrepancy, Figure, FleetResults
+from registry.core.results import Discrepancy, Figure, FleetResults
+from registry.core.rulebook import ALL_STATES, SEVERITIES
 from registry.output.safe_text import json_for_terminal, spreadsheet_cell, terminal_line
 
 FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",

@@ -13,7 +13,8 @@ from markupsafe import Markup
 
 from registry.output.comparison import Comparison
 from registry.core.model import Fleet
-from registry.core.results import OPEN_STATES, Discrepancy, Figure, FleetResults
+from registry.core.results import Discrepancy, Figure, FleetResults
+from registry.core.rulebook import OPEN_STATES
 from registry.site.format import fmt
 from registry.site.info import BuildInfo
 from registry.site.labels import severity_rank

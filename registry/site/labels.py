@@ -1,7 +1,7 @@
 """Words the pages show for the register's states, severities and figure groups."""
 from __future__ import annotations
 
-from registry.core.results import SEVERITIES
+from registry.core.rulebook import SEVERITIES
 
 SEVERITY_LABELS = {"blocking": "Blocking", "concern": "Concern", "advisory": "Advisory"}
 STATUS_LABELS = {**SEVERITY_LABELS, "clear": "No open findings"}

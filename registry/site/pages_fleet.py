@@ -6,7 +6,8 @@ from collections.abc import Mapping
 from typing import Any
 
 from registry.core.model import Aircraft
-from registry.core.results import ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy
+from registry.core.results import Discrepancy
+from registry.core.rulebook import ALL_STATES, OPEN_STATES, SEVERITIES
 from registry.site import search as sitesearch
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT

@@ -8,7 +8,8 @@ from collections import Counter, defaultdict
 from typing import Any, Iterable
 
 from registry.core.model import Aircraft, Installation
-from registry.core.results import ALL_STATES, OPEN_STATES, SEVERITIES, Discrepancy, Figure, PatternResult
+from registry.core.results import Discrepancy, Figure, PatternResult
+from registry.core.rulebook import ALL_STATES, OPEN_STATES, SEVERITIES
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT, exact, fmt, words
 from registry.site.labels import FIGURE_GROUPS

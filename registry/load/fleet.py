@@ -94,6 +94,7 @@ class _Run:
         self.cache = DiskCache(cache_dir, "files", Parsed)
         self.models = DiskCache(cache_dir, "models", AircraftRead)
         self.workers = workers
+        self.file_keys: dict[str, str | None] = {}
         self.problems: list[Problem] = []
         self.partial: list[Aircraft] = []  # built from files with problems, for checking only
         self.loose: list[Installation] = []
@@ -151,6 +152,7 @@ class _Run:
         built again (a fleet has a thousand of them). The others are read in `workers` processes."""
         files = self.folder_files("aircraft")
         keys = [_file_key("aircraft-model", file) if self.models.folder is not None else None for file in files]
+        self.file_keys = {str(file): key for file, key in zip(files, keys)}
         built = cached_map(_read_aircraft, files, keys, self.models, self.workers)
         models = []
         for read in built:
@@ -190,7 +192,8 @@ class _Run:
         if self.problems:
             raise DataError(self.problems)
         sweeps = inputs.read_sweeps(inputs.sweep_files(aircraft))
-        keys = inputs.aircraft_keys(aircraft, inputs.shared_key(self.data_dir, self.shipped_dir), sweeps) \
+        keys = inputs.aircraft_keys(aircraft, inputs.shared_key(self.data_dir, self.shipped_dir), sweeps,
+                                    self.file_keys) \
             if self.cache.folder is not None else {}
         return Fleet(
             **fleet_doc.at(),

@@ -49,11 +49,14 @@ def _regular_inside(file: Path, data_dir: Path) -> bool:
     return target.is_file() and target.is_relative_to(data_dir.resolve())
 
 
-def aircraft_keys(aircraft: list[Aircraft], shared: str, sweeps: dict[str, str]) -> dict[str, str]:
-    """Key of each aircraft's inputs: its own file, the sweep files it names, and the shared files."""
+def aircraft_keys(aircraft: list[Aircraft], shared: str, sweeps: dict[str, str],
+                  file_keys: dict[str, str | None]) -> dict[str, str]:
+    """Key of each aircraft's inputs: its own file (by the key the loader made of its bytes, `file_keys`
+    by path, so the file is not read again), the sweep files it names, and the shared files."""
     keys = {}
     for craft in aircraft:
-        parts: list[str | bytes] = [shared, craft.src.path, Path(craft.src.path).read_bytes()]
+        own = file_keys.get(craft.src.path)
+        parts: list[str | bytes] = [shared, craft.src.path, own if own else Path(craft.src.path).read_bytes()]
         for installation in craft.installations.values():
             if installation.measured is not None and installation.measured.sweep is not None:
                 path = str(installation.measured.sweep)

@@ -6,19 +6,26 @@ the cache; this module puts them together. An aircraft whose inputs (`Fleet.inpu
 are unchanged is taken from the cache; the others are shared out over worker processes. The result is
 the same whichever path each aircraft took.
 
-Kept per aircraft, under one key: its full figures (`aircraft/`), and apart its summary (`summaries/`:
-findings before reviews, pattern keys, figure counts, record text), so that a rebuild reads only the
-summary of an aircraft whose pages it does not render again. Patterns are kept once each (`patterns/`).
+Kept per aircraft, under its key: its summary (`summaries/`: findings before reviews, pattern keys,
+figure counts, record text), all a rebuild needs of an aircraft whose pages it does not render again.
+Its full figures are not kept: reading them back cost about as much as computing them again, which is
+what happens when a page needs them (`FleetResults.load`). Patterns are kept once each (`patterns/`).
+
+A build without a comparison hands each aircraft's full figures to its pages in the worker that
+computed them (`compute(..., then=...)`), so they never cross between processes at all.
 """
 from __future__ import annotations
 
 import functools
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
+from typing import Any, NamedTuple
 
 from registry.check.rules import aircraft_discrepancies
-from registry.compute.aircraft import cable_results, compute_aircraft
+from registry.compute.aircraft import cable_results, compute_aircraft, shared_figures
+from registry.compute.antenna import pattern
 from registry.core.model import Aircraft, Fleet
 from registry.core.progress import QUIET, Progress
 from registry.core.results import (AircraftPart, AircraftSummary, FleetResults, PatternResult, cosite_cells,
@@ -31,14 +38,12 @@ from registry.output import record
 class Stores:
     """The cache namespaces this stage reads and fills (each keeps nothing when the cache is off)."""
 
-    parts: DiskCache
     summaries: DiskCache
     patterns: DiskCache
 
     @classmethod
     def at(cls, cache_dir: Path | None) -> Stores:
-        return cls(DiskCache(cache_dir, "aircraft", AircraftPart),
-                   DiskCache(cache_dir, "summaries", AircraftSummary, also=(record.ShareText,)),
+        return cls(DiskCache(cache_dir, "summaries", AircraftSummary, also=(record.ShareText,)),
                    DiskCache(cache_dir, "patterns", PatternResult))
 
 
@@ -56,79 +61,131 @@ def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Ai
     return part, summary, patterns
 
 
+class Plan(NamedTuple):
+    """A fleet's evaluation under way: the results so far, the stores, and the aircraft still to compute
+    ((aircraft id, key) pairs)."""
+
+    fleet: Fleet
+    as_of: date
+    results: FleetResults
+    stores: Stores
+    known: dict[str, PatternResult]
+    parts: dict[str, AircraftPart]
+    todo: list[tuple[str, str]]
+    lazy: bool
+    model_patterns: dict[str, set[str]]
+    """Each antenna model's pattern keys, over every aircraft."""
+
+
+Then = Callable[[Aircraft, AircraftPart, AircraftSummary], Any]
+"""What a worker does with an aircraft it has just evaluated, before it lets go of its full figures
+(the site renders the aircraft's pages there); whatever it returns is handed back to the parent."""
+
+
 def evaluate_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, workers: int = 1,
                    progress: Progress = QUIET, lazy: bool = False) -> FleetResults:
     """All figures and rule findings of the fleet. With `lazy`, an unchanged aircraft contributes its
     summary only; its full figures stay in the cache until `FleetResults.load` asks for them."""
-    results = FleetResults(cables=cable_results(fleet))
-    stores = Stores.at(cache_dir)
-    known: dict[str, PatternResult] = {}  # patterns by content key, each read or computed once
-    parts: dict[str, AircraftPart] = {}
-    todo = _reuse(fleet, as_of, stores, results, parts, known, lazy)
-    _compute(fleet, as_of, stores, results, parts, known, todo, workers, progress, lazy)
-    _merge(fleet, results, parts, known)
-    results.loader = functools.partial(_load_parts, fleet, as_of, stores.parts)
-    return results
+    plan = prepare(fleet, as_of, cache_dir, lazy)
+    compute(plan, workers, progress)
+    return finish(plan)
 
 
-def _reuse(fleet: Fleet, as_of: date, stores: Stores, results: FleetResults, parts: dict[str, AircraftPart],
-           known: dict[str, PatternResult], lazy: bool) -> list[tuple[str, str]]:
-    """Take each unchanged aircraft from the cache; the (aircraft id, key) of those still to compute."""
+def prepare(fleet: Fleet, as_of: date, cache_dir: Path | None = None, lazy: bool = False) -> Plan:
+    """Take every unchanged aircraft from the cache, and work out in this process what the aircraft still
+    to compute share (patterns, modelled impedances), so that workers forked afterwards inherit it. Every
+    pattern the fleet shows is then in `results.patterns`, named after the first model that uses it."""
+    plan = Plan(fleet, as_of, FleetResults(cables=cable_results(fleet)), Stores.at(cache_dir), {}, {}, [], lazy, {})
+    plan.todo.extend(_reuse(fleet, as_of, plan.stores, plan.results, plan.known, lazy))
+    for pattern_key, pattern in shared_figures(fleet, [aircraft_id for aircraft_id, _ in plan.todo]).items():
+        if pattern_key not in plan.known:
+            plan.known[pattern_key] = pattern
+            plan.stores.patterns.put(pattern_key, pattern)
+    for aircraft, installation in fleet.installations():
+        pattern_key = _pattern_key(plan, aircraft, installation)
+        if pattern_key:
+            plan.model_patterns.setdefault(installation.antenna, set()).add(pattern_key)
+        if pattern_key and pattern_key in plan.known and pattern_key not in plan.results.patterns:
+            plan.results.patterns[pattern_key] = replace(plan.known[pattern_key], antenna=installation.antenna)
+    return plan
+
+
+def _pattern_key(plan: Plan, aircraft: Aircraft, installation) -> str | None:
+    """The content key of an installation's pattern: from its aircraft's cached summary, or computed
+    (each distinct pattern is in the per-process cache by now)."""
+    summary = plan.results.summaries.get(aircraft.id)
+    if summary is not None:
+        return summary.pattern_of.get(installation.position)
+    return pattern(plan.fleet.antennas[installation.antenna],
+                   plan.fleet.services[installation.service].design_freq_mhz).key
+
+
+def finish(plan: Plan) -> FleetResults:
+    """The results in fleet order, with a loader for the full figures left in the cache."""
+    _merge(plan.fleet, plan.results, plan.parts, plan.known)
+    plan.results.loader = functools.partial(_load_parts, plan.fleet, plan.as_of)
+    return plan.results
+
+
+def _reuse(fleet: Fleet, as_of: date, stores: Stores, results: FleetResults, known: dict[str, PatternResult],
+           lazy: bool) -> list[tuple[str, str]]:
+    """With `lazy`, take each unchanged aircraft's summary from the cache; the (aircraft id, key) of
+    those still to compute (every aircraft without `lazy`: their full figures are wanted)."""
     todo = []
     for aircraft in fleet.aircraft.values():
         key = key_of(fleet.input_keys[aircraft.id], as_of.isoformat()) if aircraft.id in fleet.input_keys else ""
         if key:
             results.aircraft_keys[aircraft.id] = key
-        summary = stores.summaries.get(key) if key else None
+        summary = stores.summaries.get(key) if key and lazy else None
         usable = (isinstance(summary, AircraftSummary)
                   and all(_known_pattern(pattern_key, known, stores.patterns)
                           for pattern_key in set(summary.pattern_of.values()) if pattern_key))
-        part = stores.parts.get(key) if usable and not lazy else None
-        if not usable or (part is None and not lazy):  # not computed before, or gone from the cache
+        if not usable:  # not computed before, or gone from the cache
             todo.append((aircraft.id, key))
             continue
         results.summaries[aircraft.id] = summary
-        if part is None:
-            results.unloaded.add(aircraft.id)
-        else:
-            parts[aircraft.id] = part
+        results.unloaded.add(aircraft.id)
     return todo
 
 
-def _compute(fleet: Fleet, as_of: date, stores: Stores, results: FleetResults, parts: dict[str, AircraftPart],
-             known: dict[str, PatternResult], todo: list[tuple[str, str]], workers: int, progress: Progress,
-             lazy: bool) -> None:
-    """Evaluate the aircraft in `todo` over `workers` processes. With `lazy` and a cache, a worker puts
-    an aircraft's full figures straight into the cache and hands back its summary only; each process
-    hands back each pattern the parent lacks once."""
-    sent = set(known)
+def compute(plan: Plan, workers: int, progress: Progress = QUIET, then: Then | None = None) -> dict[str, Any]:
+    """Evaluate the aircraft still to compute over `workers` processes. With `lazy` and a cache, a worker
+    hands back an aircraft's summary only (its full figures are computed again if a page needs them);
+    each process hands back each pattern the parent lacks once. With `then`, a worker runs it on each
+    aircraft it has evaluated and hands back what it returns instead of the full figures: by aircraft id."""
+    fleet, as_of, stores, results = plan.fleet, plan.as_of, plan.stores, plan.results
+    sent = set(plan.known)
 
-    def one(job: tuple[str, str]) -> tuple[AircraftPart | None, AircraftSummary, dict[str, PatternResult]]:
+    def one(job: tuple[str, str]) -> tuple[AircraftPart | None, AircraftSummary, dict[str, PatternResult], Any]:
         aircraft_id, key = job
-        part, summary, patterns = evaluate_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)
+        aircraft = fleet.aircraft[aircraft_id]
+        part, summary, patterns = evaluate_aircraft(fleet, aircraft, as_of)
         fresh = {pattern_key: pattern for pattern_key, pattern in patterns.items() if pattern_key not in sent}
         sent.update(fresh)
-        if key:
-            stores.parts.put(key, part)
-            if lazy:
-                return None, summary, fresh
-        return part, summary, fresh
+        if then is not None:
+            return None, summary, fresh, then(aircraft, part, summary)
+        if key and plan.lazy:
+            return None, summary, fresh, None
+        return part, summary, fresh, None
 
-    progress.stage("computing aircraft", len(todo))
-    computed = ordered_map(one, todo, workers, progress)
+    progress.stage("computing aircraft", len(plan.todo))
+    done: dict[str, Any] = {}
+    computed = ordered_map(one, plan.todo, workers, progress)
     # the generator first, so that zip runs it to its end and its worker pool is closed
-    for (part, summary, patterns), (aircraft_id, key) in zip(computed, todo):
+    for (part, summary, patterns, extra), (aircraft_id, key) in zip(computed, plan.todo):
         if part is None:
             results.unloaded.add(aircraft_id)
         else:
-            parts[aircraft_id] = part
+            plan.parts[aircraft_id] = part
         results.summaries[aircraft_id] = summary
+        done[aircraft_id] = extra
         for pattern_key, pattern in patterns.items():
-            if pattern_key not in known:
-                known[pattern_key] = pattern
+            if pattern_key not in plan.known:
+                plan.known[pattern_key] = pattern
                 stores.patterns.put(pattern_key, pattern)
         if key:
             stores.summaries.put(key, summary)
+    return done
 
 
 def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],
@@ -150,12 +207,10 @@ def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],
                 results.patterns[pattern_key] = replace(known[pattern_key], antenna=installation.antenna)
 
 
-def _load_parts(fleet: Fleet, as_of: date, store: DiskCache, results: FleetResults, aircraft_ids: list[str]) -> None:
-    """`FleetResults.loader`: aircraft's full figures from the cache, or computed again if they are gone."""
+def _load_parts(fleet: Fleet, as_of: date, results: FleetResults, aircraft_ids: list[str]) -> None:
+    """`FleetResults.loader`: aircraft's full figures, computed again."""
     for aircraft_id in aircraft_ids:
-        part = store.get(results.aircraft_keys.get(aircraft_id, "")) if store.folder is not None else None
-        if part is None:
-            part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
+        part = compute_aircraft(fleet, fleet.aircraft[aircraft_id], as_of)[0]
         results.installations.update(part.installations)
         results.pairs += part.pairs
         if part.cosite is not None:

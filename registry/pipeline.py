@@ -12,7 +12,7 @@ from pathlib import Path
 from typing import NamedTuple
 
 from registry.check import reviews
-from registry.evaluate import evaluate_fleet
+from registry import evaluate
 from registry.output.compare import compare
 from registry.output.sides import Side
 from registry.site import plots
@@ -59,9 +59,54 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
         fleet = load(data_dir, cache_dir, workers)
         progress.advance()
         as_of = as_of or as_of_date(data_dir)
-        results = evaluate_fleet(fleet, as_of, cache_dir, workers, progress, lazy=lazy)
-        found = reviews.check_fleet((finding for aircraft_id in fleet.aircraft
-                                     for finding in results.summaries[aircraft_id].findings), fleet.reviews)
+        results = evaluate.evaluate_fleet(fleet, as_of, cache_dir, workers, progress, lazy=lazy)
+        return _outcome(fleet, as_of, results)
+
+
+def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incremental: render.Incremental,
+                        write, workers: int, progress: Progress):
+    """Compute, check and render each aircraft in one go, in the worker that computed it: its full
+    figures never cross between processes or through the cache. Possible without a comparison, since
+    then an aircraft's pages show nothing of the other aircraft."""
+    fleet = plan.fleet
+    site = render.start_site(fleet, plan.results, info, None, plots.PlotStore(cache_root), incremental,
+                             write, workers, plan.model_patterns)
+
+    def pages(aircraft, part, summary):
+        return site.aircraft.render_fresh(aircraft, part, reviews.check_fleet(summary.findings, fleet.reviews))
+
+    with collector_paused():
+        rendered = evaluate.compute(plan, workers, progress, then=pages)
+        results = evaluate.finish(plan)
+    pieces = {}
+    for aircraft_id, (entry, made) in rendered.items():
+        site.aircraft.keep(aircraft_id, entry, made)
+        pieces[aircraft_id] = made
+    return _outcome(fleet, plan.as_of, results), site, pieces
+
+
+def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache_root: Path | None, naive: bool,
+                         incremental: render.Incremental, write, workers: int, progress: Progress):
+    """Compute and check the whole fleet, then start the site: the comparison with `baseline` needs every
+    aircraft's record before any page can be rendered."""
+    fleet = plan.fleet
+    with collector_paused():
+        evaluate.compute(plan, workers, progress)
+        results = evaluate.finish(plan)
+    outcome = _outcome(fleet, plan.as_of, results)
+    comparison = None
+    if baseline is not None:
+        comparison = compare(baseline.record, json.loads(record.to_text(outcome)), old_label=baseline.label,
+                             new_label=f"registry {fleet.data_dir}")
+    site = render.start_site(fleet, results, info, comparison, plots.PlotStore(cache_root, naive), incremental,
+                             write, workers)
+    return outcome, site, {}
+
+
+def _outcome(fleet: Fleet, as_of: date, results: FleetResults) -> Outcome:
+    """The findings (reviews applied) and stale reviews of computed results."""
+    found = reviews.check_fleet((finding for aircraft_id in fleet.aircraft
+                                 for finding in results.summaries[aircraft_id].findings), fleet.reviews)
     return Outcome(fleet, as_of, results, found, reviews.stale_reviews(found, fleet.reviews))
 
 
@@ -89,33 +134,37 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
     cache_root = version_folder(cache_dir) if cache_dir is not None else None
+    incremental = render.Incremental({} if naive else publish.previous_aircraft(out_dir), {},
+                                     DiskCache(None if naive else cache_root, "pieces", render.AircraftPieces))
+    workers = workers or os.cpu_count() or 1
     try:
-        outcome = run(data_dir, as_of=as_of, cache_dir=cache_root, workers=workers, progress=progress, lazy=True)
-        built = record.to_text(outcome)
-        outcome.results.records.clear()  # joined into `built`: not held twice
-        comparison = (compare(baseline.record, json.loads(built), old_label=baseline.label,
-                                   new_label=f"registry {data_dir}") if baseline is not None else None)
-        incremental = render.Incremental({} if naive else publish.previous_aircraft(out_dir), {},
-                                         DiskCache(None if naive else cache_root, "pieces",
-                                                   render.AircraftPieces))
+        with collector_paused():
+            progress.stage("reading the registry", 1)
+            fleet = load(data_dir, cache_root, workers)
+            plan = evaluate.prepare(fleet, as_of, cache_root, lazy=True)
+            progress.advance()
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()
 
             def write(rel_path: str, content: str | bytes) -> None:
                 publish.place(stage, target, rel_path, content, render.REUSE)
 
-            write(record.RECORD_NAME, built)  # first, and then let go: 100 MB and more for a large fleet
-            del built
-            pages = render.render_site(outcome.fleet, outcome.results, outcome.discrepancies, info, comparison,
-                                       plots.PlotStore(cache_root, naive), incremental,
-                                       writer=write, workers=workers or os.cpu_count() or 1, progress=progress)
+            if baseline is None and not naive:
+                outcome, site, pieces = _compute_and_render(plan, info, cache_root, incremental, write, workers,
+                                                            progress)
+            else:
+                outcome, site, pieces = _compute_then_render(plan, info, baseline, cache_root, naive, incremental,
+                                                             write, workers, progress)
+            write(record.RECORD_NAME, record.to_text(outcome))
+            outcome.results.records.clear()  # written: not held twice
+            pages = render.finish_site(site, outcome.discrepancies, pieces, workers, progress)
             for rel_path, content in pages.items():
                 write(rel_path, content)
             publish.write_manifest(stage, {"aircraft": incremental.current, "site_key": key})
             progress.advance()
             progress.finish()
     finally:
-        collector_released()  # what `run` froze goes back to the collector (`collector_paused`)
+        collector_released()  # what `collector_paused` froze goes back to the collector
     if cache_dir is not None:
         prune(cache_dir)  # entries of earlier code can never be read again
     return Published(out_dir, True)

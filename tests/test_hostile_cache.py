@@ -32,7 +32,7 @@ from registry.site import plots
 from registry.site.render import AircraftPieces
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
-KINDS = {"aircraft": (AircraftPart, ()), "summaries": (AircraftSummary, (record.ShareText,)),
+KINDS = {"summaries": (AircraftSummary, (record.ShareText,)),
          "patterns": (PatternResult, ()), "files": (Parsed, ()),
          "models": (AircraftRead, ()), "pieces": (AircraftPieces, ()),
          "plots": (plots.Drawn, ())}
@@ -131,7 +131,7 @@ def test_garbage_truncated_and_linked_entries_give_the_plain_build(cache, tmp_pa
 def test_wrong_types_with_correct_checksums_give_the_plain_build(cache, tmp_path, reference):
     pattern = entries(cache, "patterns")[0]
     pattern_payload = store.checked_payload(pattern.stem, pattern.read_bytes())
-    for namespace in ("aircraft", "summaries", "files", "models", "pieces", "plots"):
+    for namespace in ("summaries", "files", "models", "pieces", "plots"):
         for path in entries(cache, namespace)[:3]:
             path.write_bytes(signed(path.stem, pattern_payload))  # a PatternResult where another type belongs
     summary = entries(cache, "summaries")[3]  # the right type, one field of the wrong type inside
@@ -151,8 +151,8 @@ def test_a_pickle_in_the_cache_runs_nothing(cache, tmp_path, reference):
             path.write_bytes(payload)  # as the pickle store wrote it
         for path in entries(cache, namespace)[2:4]:
             path.write_bytes(signed(path.stem, payload))  # with a correct header and checksum
-    (version_folder(cache) / "aircraft" / "aa").mkdir(exist_ok=True)
-    (version_folder(cache) / "aircraft" / "aa" / ("a" * 64 + ".pickle")).write_bytes(payload)
+    (version_folder(cache) / "summaries" / "aa").mkdir(exist_ok=True)
+    (version_folder(cache) / "summaries" / "aa" / ("a" * 64 + ".pickle")).write_bytes(payload)
     assert rebuild(cache, tmp_path) == reference
     assert not trap.exists()
 
@@ -232,20 +232,22 @@ def test_malformed_payloads_with_correct_checksums_are_misses(tmp_path, payload)
 
 def test_evaluation_reads_a_forged_figure_field_as_a_miss(tmp_path, demo_fleet):
     # entries of the right type with a correct checksum, but a Figure whose value is a list inside:
-    # the record check refuses them and the aircraft are computed again, to the same figures
+    # the record check refuses them and the patterns are computed again, to the same figures
     as_of = pipeline.as_of_date(DEMO)
-    first = evaluate_fleet(demo_fleet, as_of, cache_dir=tmp_path, workers=1)
-    for path in sorted((tmp_path / "aircraft").rglob("*" + store.SUFFIX)):
-        part = codec.loads(store.checked_payload(path.stem, path.read_bytes()), AircraftPart)
-        (position, result), *_ = part.installations.items()
-        bad = result.figures[0]._replace(value=[1.0])
-        part.installations[position] = dataclasses.replace(result, figures=(bad, *result.figures[1:]))
-        path.write_bytes(signed(path.stem, codec.dumps(part, AircraftPart)))
+    first = evaluate_fleet(demo_fleet, as_of, cache_dir=tmp_path, workers=1, lazy=True)
+    forged = sorted((tmp_path / "patterns").rglob("*" + store.SUFFIX))
+    assert forged
+    for path in forged:
+        pattern = codec.loads(store.checked_payload(path.stem, path.read_bytes()), PatternResult)
+        bad = pattern.metrics[0]._replace(value=[1.0])
+        path.write_bytes(signed(path.stem, codec.dumps(dataclasses.replace(pattern, metrics=(bad, *pattern.metrics[1:])),
+                                                       PatternResult)))
         with pytest.raises(codec.BadEntry, match="Figure.value"):
-            codec.loads(store.checked_payload(path.stem, path.read_bytes()), AircraftPart)
-    again = evaluate_fleet(demo_fleet, as_of, cache_dir=tmp_path, workers=1)
-    assert sorted(again.installations) == sorted(first.installations)
-    assert all(again.installations[key].figures == first.installations[key].figures for key in first.installations)
+            codec.loads(store.checked_payload(path.stem, path.read_bytes()), PatternResult)
+    again = evaluate_fleet(demo_fleet, as_of, cache_dir=tmp_path, workers=1, lazy=True)
+    assert sorted(again.patterns) == sorted(first.patterns)
+    assert all(again.patterns[key].metrics == first.patterns[key].metrics for key in first.patterns)
+
 
 
 @functools.lru_cache(maxsize=1)

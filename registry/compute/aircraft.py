@@ -40,6 +40,29 @@ def compute_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Air
     return part, patterns
 
 
+def shared_figures(fleet: Fleet, aircraft_ids: list[str]) -> dict[str, PatternResult]:
+    """Work out, in this process, what installations share by content: each (antenna model, service,
+    cable) combination's modelled impedance and each pattern, kept by the per-process caches of
+    `antenna.py` (so that processes forked afterwards inherit them instead of each computing them again).
+    The patterns, by content key."""
+    patterns: dict[str, PatternResult] = {}
+    seen = set()
+    for aircraft_id in aircraft_ids:
+        for installation in fleet.aircraft[aircraft_id].installations.values():
+            combination = (installation.antenna, installation.service, installation.feeder.cable,
+                           bool(installation.coupler))
+            if combination in seen:
+                continue
+            seen.add(combination)
+            model, service = fleet.antennas[installation.antenna], fleet.services[installation.service]
+            length_figures(installation, fleet.antennas[installation.antenna], fleet.services[installation.service])
+            if not installation.coupler:
+                modelled_vswr(model, service, fleet.cables[installation.feeder.cable], fleet.policy)
+            found = antenna.pattern(model, service.design_freq_mhz)
+            patterns.setdefault(found.key, found)
+    return patterns
+
+
 def installation_result(fleet: Fleet, aircraft: Aircraft, installation: Installation,
                         as_of: date) -> tuple[InstallationResult, PatternResult]:
     """Every figure of one installation, and its antenna's pattern at the service's design frequency."""

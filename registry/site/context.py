@@ -4,9 +4,9 @@ from __future__ import annotations
 
 
 from collections import defaultdict
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
-from typing import Any, Mapping, NamedTuple
+from typing import Any, Iterable, Mapping, NamedTuple
 
 import jinja2
 from markupsafe import Markup
@@ -62,6 +62,7 @@ class SiteData:
     build: BuildInfo
     comparison: Comparison | None
     by_position: Mapping[tuple[str, str], list[Discrepancy]]
+    by_aircraft: Mapping[str, list[Discrepancy]]
     reviews_of: Mapping[str, list]          # by aircraft id, in the reviews' (sorted) order
     model_patterns: Mapping[str, set[str]]  # antenna model id -> pattern keys of its installations
     pattern_alts: Mapping[str, str]         # pattern plot path -> alt text
@@ -119,17 +120,39 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
     reviews_of: dict[str, list] = defaultdict(list)
     for name, review in fleet.reviews.items():
         reviews_of[name.split("/", 1)[0]].append(review)
-    ordered = tuple(sorted(discrepancies, key=lambda d: (severity_rank(d.severity), d.id)))
+    ordered = tuple(sorted(discrepancies, key=findings_order))
     by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
-    for item in ordered:
-        for position in item.position.split("+"):
-            by_position[(item.aircraft, position)].append(item)
+    by_aircraft: dict[str, list[Discrepancy]] = defaultdict(list)
+    place_findings(by_position, by_aircraft, ordered)
     data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
     return SiteData(fleet=fleet, results=results, discrepancies=ordered, build=build, comparison=comparison,
-                    by_position=by_position, reviews_of=reviews_of, model_patterns=model_patterns,
+                    by_position=by_position, by_aircraft=by_aircraft, reviews_of=reviews_of, model_patterns=model_patterns,
                     pattern_alts=pattern_alts, figure_cells=FigureCells(env),
                     src_prefixes=(data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/",
                                   PACKAGE_PREFIX))
+
+
+def with_findings(data: SiteData, discrepancies: Iterable[Discrepancy]) -> SiteData:
+    """The same context with the fleet's findings in it."""
+    ordered = tuple(sorted(discrepancies, key=findings_order))
+    by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
+    by_aircraft: dict[str, list[Discrepancy]] = defaultdict(list)
+    place_findings(by_position, by_aircraft, ordered)
+    return replace(data, discrepancies=ordered, by_position=by_position, by_aircraft=by_aircraft)
+
+
+def place_findings(by_position: dict[tuple[str, str], list[Discrepancy]], by_aircraft: dict[str, list[Discrepancy]],
+                   ordered: Iterable[Discrepancy]) -> None:
+    """File findings (most severe first, then by id) under their aircraft and each of their positions."""
+    for item in ordered:
+        by_aircraft[item.aircraft].append(item)
+        for position in item.position.split("+"):
+            by_position[(item.aircraft, position)].append(item)
+
+
+def findings_order(item: Discrepancy) -> tuple[int, str]:
+    """Most severe first, then by id: the order of findings on every page."""
+    return severity_rank(item.severity), item.id
 
 
 class AircraftPieces(NamedTuple):

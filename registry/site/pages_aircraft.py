@@ -62,7 +62,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
                        location_text(loc, airframe.coord_unit, " "),
                        f"{words(installation.surface)} · {STATUS_LABELS[row['status']]}")))
     drawing = sitedrawing.airframe_drawing(airframe, markers, anchor(aircraft.id))
-    items = [d for d in data.discrepancies if d.aircraft == aircraft.id]
+    items = data.by_aircraft.get(aircraft.id, [])
     return page(page_path, "aircraft.html", "fleet", aircraft.registration,
                 [("Fleet", "index.html"), (aircraft.registration, None)],
                 aircraft=aircraft, airframe=airframe, installations=rows, drawing=drawing,

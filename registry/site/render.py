@@ -24,8 +24,9 @@ from registry.site.changes import changes_page
 from registry.incremental import DiskCache, key_of
 from registry.core.progress import QUIET, Progress
 from registry.core.model import Aircraft, Fleet
-from registry.core.results import Discrepancy, FleetResults
-from registry.site.context import AircraftPieces, SiteData, patterns_by_model, site_data
+from registry.core.results import AircraftPart, Discrepancy, FleetResults, PairResult
+from registry.site.context import (AircraftPieces, SiteData, findings_order, patterns_by_model, place_findings,
+                                   site_data, with_findings)
 from registry.site.environment import CHANGES_NAV, NAV_ITEMS, environment, static_files
 from registry.site.format import plain_text
 from registry.site.info import BuildInfo
@@ -68,19 +69,53 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
     again: its files are given as REUSE. With a `writer` and several `workers`, the aircraft pages are
     rendered in forked processes that hand each file straight to `writer(path, content)`; the returned
     dict then holds the other files only."""
+    site = start_site(fleet, results, build_info, comparison, plot_store, incremental, writer, workers)
+    return finish_site(site, discrepancies, {}, workers, progress)
+
+
+@dataclass
+class SiteRun:
+    """A site being rendered: the context every page shares (without the findings until `finish_site`),
+    the files made so far, and the aircraft pages' renderer."""
+
+    data: SiteData
+    put: Renderer
+    store: plots.PlotStore
+    aircraft: AircraftRun
+    files: dict[str, str | bytes]
+
+
+def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, comparison: Comparison | None = None,
+               plot_store: plots.PlotStore | None = None, incremental: Incremental | None = None,
+               writer: FileWriter | None = None, workers: int = 1,
+               model_patterns: dict[str, set[str]] | None = None) -> SiteRun:
+    """What the pages share, made once: the environment, the pattern plots (every pattern must be in
+    `results.patterns`; `model_patterns` gives each antenna model's, when not every aircraft has its
+    figures or summary yet), the static files. The aircraft pages can be rendered from here on, one by
+    one as their figures come (`AircraftRun.render_fresh`)."""
     env = environment()
     store = plot_store or plots.PlotStore()
-    model_patterns = patterns_by_model(fleet, results)
+    model_patterns = patterns_by_model(fleet, results) if model_patterns is None else model_patterns
     patterns = plot_files.pattern_plots(results, model_patterns, store, workers)
-    data = site_data(fleet, results, list(discrepancies), build_info, comparison, env, model_patterns,
+    data = site_data(fleet, results, [], build_info, comparison, env, model_patterns,
                      {path: drawn.alt for path, drawn in patterns.items()})
     put = Renderer(env, shared_context(data), store)
     files: dict[str, str | bytes] = dict(static_files())
     files.update((path, drawn.svg) for path, drawn in patterns.items())
-    files.update(put([fleet_page(data)]))
-    pieces = AircraftRun(data, env, put, incremental).render_all(files, writer, workers, progress)
+    return SiteRun(data, put, store, AircraftRun(data, env, put, incremental, writer), files)
+
+
+def finish_site(site: SiteRun, discrepancies: Iterable[Discrepancy], pieces: dict[str, AircraftPieces],
+                workers: int = 1, progress: Progress = QUIET) -> dict[str, str | bytes]:
+    """The rest of the site once every finding is known: the aircraft pages not rendered yet (`pieces`
+    holds those that were), the fleet page and the fleet-wide pages."""
+    data = with_findings(site.data, discrepancies)
+    site.aircraft.data = data
+    files = site.files
+    files.update(site.put([fleet_page(data)]))
+    pieces.update(site.aircraft.render_all(files, workers, progress, skip=set(pieces)))
     progress.stage("rendering fleet pages", 1)
-    files.update(put(fleet_wide_pages(data, pieces, store)))
+    files.update(site.put(fleet_wide_pages(data, pieces, site.store)))
     return dict(sorted(files.items()))
 
 
@@ -112,31 +147,57 @@ class AircraftRun:
     build's pages of an aircraft when nothing they show has changed. Remembers, per process, the page
     keys it worked out and the co-site pairs by installation."""
 
-    def __init__(self, data: SiteData, env: jinja2.Environment, put: Renderer, incremental: Incremental | None):
+    def __init__(self, data: SiteData, env: jinja2.Environment, put: Renderer, incremental: Incremental | None,
+                 writer: FileWriter | None = None):
         self.data = data
         self.put = put
         self.incremental = incremental
+        self.writer = writer
         self.use_rows = env.get_template("partials/use_rows.html").module
         self.page_keys: dict[str, str] = {}
         self.pairs_of: dict[tuple[str, str], list] = defaultdict(list)  # filled once the figures are loaded
 
-    def render_all(self, files: dict[str, str | bytes], writer: FileWriter | None, workers: int,
-                   progress: Progress) -> dict[str, AircraftPieces]:
-        """Every aircraft's pages (reused ones given as REUSE in `files`); each aircraft's pieces."""
+    def render_all(self, files: dict[str, str | bytes], workers: int, progress: Progress,
+                   skip: set[str] = frozenset()) -> dict[str, AircraftPieces]:
+        """Every aircraft's pages but those in `skip` (reused ones given as REUSE in `files`); each
+        aircraft's pieces."""
         pieces: dict[str, AircraftPieces] = {}
         todo = [aircraft for aircraft in self.data.fleet.aircraft.values()
-                if not self.reuse(aircraft, files, pieces)]
+                if aircraft.id not in skip and not self.reuse(aircraft, files, pieces)]
         progress.stage("rendering aircraft", len(todo))
         # in worker processes only when their pages can be written from there; the generator first in
         # zip, so that it is run to its end and its workers are closed
-        entries = ordered_map(lambda aircraft: self.render(aircraft, files, writer),
-                              todo, workers if writer else 1, progress)
+        entries = ordered_map(lambda aircraft: self.render(aircraft, files),
+                              todo, workers if self.writer else 1, progress)
         for (entry, made), aircraft in zip(entries, todo):
             pieces[aircraft.id] = made
-            if entry is not None:
-                self.incremental.current[aircraft.id] = entry
-                self.incremental.pieces.put(entry["key"], made)
+            self.keep(aircraft.id, entry, made)
         return pieces
+
+    def keep(self, aircraft_id: str, entry: dict[str, Any] | None, made: AircraftPieces) -> None:
+        """Remember an aircraft's rendered pages and pieces for the next build (in the parent)."""
+        if entry is not None:
+            self.incremental.current[aircraft_id] = entry
+            self.incremental.pieces.put(entry["key"], made)
+
+    def render_fresh(self, aircraft: Aircraft, part: AircraftPart, findings: list[Discrepancy]
+                     ) -> tuple[dict[str, Any] | None, AircraftPieces]:
+        """An aircraft's pages from the figures it was just given and its findings (reviews applied),
+        before the rest of the fleet is known; then lets go of them. Its pages show nothing of other
+        aircraft, so they come out as `render_all` would make them."""
+        results = self.data.results
+        results.installations.update(part.installations)
+        if part.cosite is not None:
+            results.cosite[aircraft.id] = part.cosite
+        place_findings(self.data.by_position, self.data.by_aircraft, sorted(findings, key=findings_order))
+        try:
+            return self.render(aircraft, {}, part.pairs)
+        finally:
+            results.unload(aircraft.id, aircraft.installations)
+            results.unloaded.discard(aircraft.id)
+            self.data.by_aircraft.pop(aircraft.id, None)
+            for position in aircraft.installations:
+                self.data.by_position.pop((aircraft.id, position), None)
 
     def reuse(self, aircraft: Aircraft, files: dict[str, str | bytes], pieces: dict[str, AircraftPieces]) -> bool:
         """True (and the files given as REUSE) when the previous build's pages of this aircraft show what
@@ -156,16 +217,16 @@ class AircraftRun:
         self.incremental.current[aircraft.id] = before
         return True
 
-    def render(self, aircraft: Aircraft, files: dict[str, str | bytes], writer: FileWriter | None
+    def render(self, aircraft: Aircraft, files: dict[str, str | bytes], pairs: list[PairResult] | None = None
                ) -> tuple[dict[str, Any] | None, AircraftPieces]:
-        """The aircraft's pages, handed to `writer` (or put in `files` without one); its entry for the
+        """The aircraft's pages, handed to the writer (or put in `files` without one); its entry for the
         next build's reuse and its pieces of the fleet-wide pages. Runs in the parent or in a forked
-        worker alike."""
+        worker alike. `pairs`: the aircraft's pairs when they are not in the results."""
         results = self.data.results
         read_here = results.load([aircraft.id])  # its full figures, from the cache if need be
-        if read_here or not self.pairs_of:
+        if pairs is not None or read_here or not self.pairs_of:
             self.pairs_of.clear()
-            for pair in sorted(results.pairs, key=lambda p: (p.position_a, p.position_b)):
+            for pair in sorted(results.pairs if pairs is None else pairs, key=lambda p: (p.position_a, p.position_b)):
                 self.pairs_of[(pair.aircraft, pair.position_a)].append(pair)
                 self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
         outputs = aircraft_outputs(self.data, aircraft, self.pairs_of) + cosite_outputs(self.data, aircraft)
@@ -175,11 +236,11 @@ class AircraftRun:
             self.incremental.current[aircraft.id] = {"key": key, "files": output_paths(outputs)}
         if read_here:  # let go again: a worker renders hundreds of aircraft
             results.unload(aircraft.id, aircraft.installations)
-        if writer is None:
+        if self.writer is None:
             files.update(produced)
         else:
             for path, content in produced.items():
-                writer(path, content)
+                self.writer(path, content)
         entry = self.incremental.current.get(aircraft.id) if self.incremental is not None else None
         return entry, self.pieces_of(aircraft)
 

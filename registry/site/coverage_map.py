@@ -22,9 +22,9 @@ MARGIN = 34.0
 class CoverageMap:
     width: str
     height: str
-    level: tuple[str, ...]       # path d: cells blocked in level flight
-    attitude: tuple[str, ...]    # path d: cells blocked only at a bank or pitch the service names
-    region: tuple[str, ...]      # path d: the cells the service must see (its outline)
+    level: str       # path d: cells blocked in level flight
+    attitude: str    # path d: cells blocked only at a bank or pitch the service names
+    region: str      # path d: the cells the service must see
     x_ticks: tuple[tuple[str, str], ...]
     y_ticks: tuple[tuple[str, str], ...]
     chart: tuple[str, str, str, str]   # x, y, width, height of the chart area
@@ -40,23 +40,25 @@ def _y(el_deg: float) -> float:
     return MARGIN / 2 + (90.0 - el_deg) * PX_PER_DEG
 
 
-def _runs(mask: np.ndarray, az_deg: np.ndarray, el_deg: np.ndarray, step: float) -> tuple[str, ...]:
-    """One rectangle per run of True cells along each elevation row, as path data."""
+def _runs(mask: np.ndarray, az_deg: np.ndarray, el_deg: np.ndarray, step: float) -> str:
+    """One rectangle per run of True cells along each elevation row, as the data of one path."""
     order = np.argsort((az_deg + 180.0) % 360.0)
-    centres = np.array([_x(float(a)) for a in az_deg[order]])
+    centres = MARGIN + ((az_deg[order] + 180.0) % 360.0) * PX_PER_DEG
     half = step / 2 * PX_PER_DEG
+    lefts = np.maximum(centres - half, MARGIN)
+    rights = np.minimum(centres + half, MARGIN + 360 * PX_PER_DEG)
+    padded = np.zeros((mask.shape[0], mask.shape[1] + 2), dtype=np.int8)
+    padded[:, 1:-1] = mask[:, order]
+    edges = np.diff(padded, axis=1)
     paths = []
-    for e, el in enumerate(el_deg):
-        row = np.concatenate([[False], mask[e, order], [False]]).astype(np.int8)
-        edges = np.diff(row)
-        starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1
-        if starts.size == 0:
-            continue
+    for e in np.flatnonzero((edges == 1).any(axis=1)):
+        el = float(el_deg[e])
+        starts, ends = np.flatnonzero(edges[e] == 1), np.flatnonzero(edges[e] == -1) - 1
         top, bottom = n(_y(min(el + step / 2, 90.0))), n(_y(max(el - step / 2, -90.0)))
         for i, j in zip(starts, ends):
-            x0, x1 = max(centres[i] - half, MARGIN), min(centres[j] + half, MARGIN + 360 * PX_PER_DEG)
-            paths.append(f"M{n(x0)},{top}H{n(x1)}V{bottom}H{n(x0)}Z")
-    return tuple(paths)
+            x0, x1 = n(lefts[i]), n(rights[j])
+            paths.append(f"M{x0},{top}H{x1}V{bottom}H{x0}Z")
+    return "".join(paths)
 
 
 def coverage_map(airframe: Airframe, installation: Installation, service: Service | None) -> CoverageMap | None:

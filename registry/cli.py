@@ -54,6 +54,11 @@ def add_check_and_build(commands) -> None:
     check.add_argument("--severity", action="append", choices=SEVERITIES, help="only this severity; repeatable")
     check.add_argument("--details", action="store_true",
                        help="also print every computed figure of every installation (text format)")
+    check.add_argument("--cache", metavar="DIR",
+                       help="folder that keeps parsed files and each aircraft's findings between runs, shared "
+                            "with build, safe to delete (default: $AERIALBOOK_CACHE_DIR, else .aerialbook-cache "
+                            "in the current folder, where build keeps it for the default site folder)")
+    check.add_argument("--no-cache", action="store_true", help="compute everything afresh, keep nothing")
 
     build = commands.add_parser("build", help="publish the registry as a static site")
     build.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",
@@ -126,7 +131,10 @@ def run(args: argparse.Namespace) -> int:
         return EXIT_OK
     data_dir = Path(args.data_dir)
     if args.command == "check":
-        return run_check(args, pipeline.run(data_dir))
+        cache_dir = None if args.no_cache else Path(args.cache or os.environ.get("AERIALBOOK_CACHE_DIR")
+                                                   or ".aerialbook-cache")
+        # the figures themselves are computed only for --details; the findings come from the cache
+        return run_check(args, pipeline.run(data_dir, cache_dir=cache_dir, lazy=not args.details))
     if args.command == "build":
         baseline = None
         if args.compare:

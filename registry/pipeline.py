@@ -49,18 +49,23 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     """Load, compute and check: every figure and every discrepancy of the registry.
 
     `as_of` overrides the date measurement ages are counted to (`build.py diff` computes both sides
-    of a comparison as of one date). `cache_dir` keeps what depends only on content between runs;
-    `workers` processes share the computation (default: one per core). With `lazy`, the full figures
-    of an aircraft unchanged since the cache last saw it stay there until a page needs them
-    (`FleetResults.load`); its summary stands in for them."""
-    with collector_paused():
-        progress.stage("reading the registry", 1)
-        workers = workers or os.cpu_count() or 1
-        fleet = load(data_dir, cache_dir, workers)
-        progress.advance()
-        as_of = as_of or as_of_date(data_dir)
-        results = evaluate.evaluate_fleet(fleet, as_of, cache_dir, workers, progress, lazy=lazy)
-        return _outcome(fleet, as_of, results)
+    of a comparison as of one date). `cache_dir` keeps what depends only on content between runs (the
+    same folder `build` uses); `workers` processes share the computation (default: one per core). With
+    `lazy`, an aircraft unchanged since the cache last saw it contributes its summary (findings, record)
+    only; `FleetResults.load` computes its full figures if they are wanted."""
+    cache_root = version_folder(cache_dir) if cache_dir is not None else None
+    try:
+        with collector_paused():
+            progress.stage("reading the registry", 1)
+            workers = workers or os.cpu_count() or 1
+            fleet = load(data_dir, cache_root, workers)
+            progress.advance()
+            as_of = as_of or as_of_date(data_dir)
+            results = evaluate.evaluate_fleet(fleet, as_of, cache_root, workers, progress, lazy=lazy)
+            return _outcome(fleet, as_of, results)
+    finally:
+        if cache_dir is not None:
+            prune(cache_dir)  # entries of earlier code can never be read again
 
 
 def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incremental: render.Incremental,

@@ -8,6 +8,15 @@ import pytest
 DEMO_DATA = Path(__file__).resolve().parent.parent / "fleet_data"
 
 
+@pytest.fixture(scope="session", autouse=True)
+def cache_outside_the_checkout(tmp_path_factory):
+    """`build.py check` and `build` keep a cache folder by default: in a test session, one temporary
+    folder instead of `.aerialbook-cache` in the working directory."""
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setenv("AERIALBOOK_CACHE_DIR", str(tmp_path_factory.mktemp("cache")))
+        yield
+
+
 @pytest.fixture(scope="session")
 def demo_data() -> Path:
     return DEMO_DATA

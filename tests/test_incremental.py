@@ -4,6 +4,7 @@ The reference is a plain build with no cache and one process; every faster path 
 bytes (common practice for reproducible builds, no source). Hard links keep an unchanged file's inode,
 which is how "not rewritten" is observed (POSIX link(2)).
 """
+import json
 import shutil
 from pathlib import Path
 
@@ -164,3 +165,18 @@ def test_cache_entries_of_earlier_code_are_removed(tmp_path):
     pipeline.build(DEMO, tmp_path / "site", cache_dir=cache, workers=1)
     assert sorted(entry.name for entry in cache.iterdir()) == sorted(["notes", diskcache.version_folder(cache).name])
     assert (diskcache.version_folder(cache) / "summaries").is_dir()
+
+
+def test_check_reads_the_findings_from_the_cache_and_says_the_same(tmp_path, capsys, monkeypatch):
+    # a cold check fills the cache, a warm one reads each aircraft's findings from it: both say what a
+    # check that keeps nothing says, with the same exit code (the gate: common practice, no source)
+    from registry import cli
+
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1764806400")
+    said = []
+    for extra in (["--no-cache"], ["--cache", str(tmp_path / "c")], ["--cache", str(tmp_path / "c")]):
+        code = cli.main(["check", str(DEMO), "--format", "json", *extra])
+        said.append((code, capsys.readouterr().out))
+    assert said[0] == said[1] == said[2]
+    assert said[0][0] == 1 and json.loads(said[0][1])["discrepancies"]
+    assert any((diskcache.version_folder(tmp_path / "c") / "summaries").rglob("*.entry"))

@@ -10,6 +10,13 @@ At each size (number of aircraft) a registry is generated with bench/synth_fleet
   no change   the same command again, nothing changed
   one changed one aircraft's feeder length edited in the generated data, then the same command again
 
+and, for the build stage, the other two jobs on the same fleet:
+
+  check cold  `check DATA --no-cache`: load, compute and check everything, keep nothing
+  check warm  `check DATA` after the builds: the findings of unchanged aircraft from the build's cache
+  diff same   `diff A B` of two identical build records (the cold build's record and a copy)
+  diff one    `diff A OUT`: the cold build's record against the build with one aircraft changed
+
 with the child's peak memory (ru_maxrss of that child, from os.wait4, and the peak summed RSS of the
 child's whole process tree, sampled), the site's size (bytes and files) and the cold cost per
 installation. At the smallest size it also times a naive cold build with AERIALBOOK_NAIVE=1 (no content
@@ -72,6 +79,10 @@ class SizeResult:
     no_change: Run | None = None
     one_changed: Run | None = None
     naive: Run | None = None
+    check_cold: Run | None = None
+    check_warm: Run | None = None
+    diff_same: Run | None = None
+    diff_one: Run | None = None
     site_bytes: int | None = None
     site_files: int | None = None
     ms_per_installation: float | None = None
@@ -161,8 +172,10 @@ def stage_command(stage: str, data: Path, out: Path) -> list[str]:
 
 
 def accepted(stage: str, run: Run) -> bool:
-    """build: exit 0; check: 0, or 1 (open blocking discrepancies: the planted faults)."""
-    return run.ok and run.exit_code in ((0,) if stage == "build" else (0, 1))
+    """build: exit 0; check: 0, or 1 (open blocking discrepancies: the planted faults); diff: 0 (the
+    same) for "diff same", 1 (they differ) for "diff one"."""
+    expected = {"build": (0,), "check": (0, 1), "diff same": (0,), "diff one": (1,)}[stage]
+    return run.ok and run.exit_code in expected
 
 
 def clear_caches(folders: list[Path]) -> list[str]:
@@ -203,13 +216,15 @@ def measure_size(n: int, args, work: Path, env: dict[str, str], caches: list[Pat
     result = SizeResult(n, made.installations, args.stage, round(time.perf_counter() - started, 2))
     command = stage_command(args.stage, data, out)
 
-    def step(name: str, extra_env: dict[str, str] | None = None) -> Run | None:
+    def step(name: str, extra_env: dict[str, str] | None = None, other: list[str] | None = None,
+             stage: str = args.stage) -> Run | None:
         print(f"  {n} aircraft: {name} ...", end="", flush=True)
-        run = run_measured(command, {**env, **(extra_env or {})}, args.timeout, logs / f"{n}-{name}.log")
-        verdict = ("timed out" if run.timed_out else f"{run.seconds:.2f} s" if accepted(args.stage, run)
+        run = run_measured(other or command, {**env, **(extra_env or {})}, args.timeout,
+                           logs / f"{n}-{name.replace(' ', '-')}.log")
+        verdict = ("timed out" if run.timed_out else f"{run.seconds:.2f} s" if accepted(stage, run)
                    else f"failed (exit {run.exit_code})")
         print(f" {verdict}", flush=True)
-        if not accepted(args.stage, run):
+        if not accepted(stage, run):
             result.error = (f"{name}: " + (f"timed out after {args.timeout} s (tree peak so far "
                                             f"{fmt(run.tree_peak_mb, '.0f')} MB)" if run.timed_out
                                             else f"exit {run.exit_code}\n{run.log_tail}"))
@@ -224,6 +239,9 @@ def measure_size(n: int, args, work: Path, env: dict[str, str], caches: list[Pat
     result.ms_per_installation = round(1000 * result.cold.seconds / made.installations, 2)
     if args.stage == "build":
         result.site_bytes, result.site_files = site_size(out)
+        cold_record, same_record = work / f"record-{n}-cold.json", work / f"record-{n}-copy.json"
+        shutil.copyfile(out / "record.json", cold_record)
+        shutil.copyfile(cold_record, same_record)
     result.no_change = step("no-change")
     if result.no_change is None:
         return result
@@ -231,6 +249,13 @@ def measure_size(n: int, args, work: Path, env: dict[str, str], caches: list[Pat
     result.one_changed = step("one-changed")
     if result.one_changed is None:
         return result
+    if args.stage == "build":
+        tool = [sys.executable, str(ROOT / "build.py")]
+        result.check_cold = step("check cold", other=tool + ["check", str(data), "--no-cache"], stage="check")
+        result.check_warm = step("check warm", other=tool + ["check", str(data)], stage="check")
+        result.diff_same = step("diff same", other=tool + ["diff", str(cold_record), str(same_record)],
+                                stage="diff same")
+        result.diff_one = step("diff one", other=tool + ["diff", str(cold_record), str(out)], stage="diff one")
     if with_naive:
         shutil.rmtree(out, ignore_errors=True)
         clear_caches(caches + [data / ".cache"])
@@ -264,6 +289,16 @@ def table(results: list[SizeResult], stage: str) -> str:
             f"{fmt(r.ms_per_installation, '.1f'):>8}")
         if r.error:
             lines.append(f"{'':>8} stopped: {r.error.splitlines()[0]}")
+    if any(r.check_cold or r.diff_same for r in results):
+        head = (f"{'aircraft':>8} {'check cold s':>12} {'check warm s':>12} {'diff same s':>11} {'diff one s':>10} "
+                f"{'max MB':>7}")
+        lines += ["", "check and diff", head, "-" * len(head)]
+        for r in results:
+            runs = [r.check_cold, r.check_warm, r.diff_same, r.diff_one]
+            rss = max((run.max_rss_mb for run in runs if run and run.max_rss_mb), default=None)
+            lines.append(f"{r.aircraft:>8} " + " ".join(
+                f"{fmt(run and run.seconds):>{width}}" for run, width in zip(runs, (12, 12, 11, 10)))
+                + f" {fmt(rss, '.0f'):>7}")
     return "\n".join(lines)
 
 

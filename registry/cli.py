@@ -121,10 +121,10 @@ def main(argv: list[str]) -> int:
 
 
 def run(args: argparse.Namespace) -> int:
-    from registry import pipeline
-
     if args.command == "diff":
         return run_diff(args)
+    from registry import pipeline
+
     if args.command == "serve":
         from registry import serve
         serve.serve(Path(args.data_dir), Path(args.out), port=args.port)
@@ -186,7 +186,6 @@ def run_check(args: argparse.Namespace, outcome) -> int:
 def run_diff(args: argparse.Namespace) -> int:
     from datetime import date
 
-    from registry import pipeline
     from registry.output import compare, compare_text
     from registry.output import sides as sides_
     from registry.output.comparison import Tolerance
@@ -210,13 +209,25 @@ def run_diff(args: argparse.Namespace) -> int:
     old_spec, new_spec = sides
     kinds = [sides_.side_kind(spec) for spec in sides]
     git_dir = Path(args.data) if args.data else Path(new_spec) if kinds[1] == "registry" else Path("fleet_data")
-    new = sides_.read_side(new_spec, run=pipeline.run, git_data_dir=git_dir, as_of=as_of)
-    old = sides_.read_side(old_spec, run=pipeline.run, git_data_dir=git_dir,
-                         as_of=as_of or date.fromisoformat(new.record["as_of"]))
+    pair = sides_.read_record_pair(old_spec, new_spec)
+    if pair is not None:
+        old, new = pair
+    else:
+        new = sides_.read_side(new_spec, run=run_registry, git_data_dir=git_dir, as_of=as_of)
+        old = sides_.read_side(old_spec, run=run_registry, git_data_dir=git_dir,
+                               as_of=as_of or date.fromisoformat(new.record["as_of"]))
     comparison = compare.compare(old.record, new.record, Tolerance(args.rel_tol, args.abs_tol), old.label, new.label)
     sys.stdout.write(json_for_terminal(compare_text.as_json(comparison)) if args.format == "json"
                      else terminal_text(compare_text.as_text(comparison)))
     return EXIT_OK if comparison.same else EXIT_DIFFERENT
+
+
+def run_registry(*args, **kwargs):
+    """`pipeline.run`, imported only when a side of a comparison is a registry to compute: comparing two
+    build records needs none of the computation's modules."""
+    from registry import pipeline
+
+    return pipeline.run(*args, **kwargs)
 
 
 def report_error(error: Exception, debug: bool) -> int:

@@ -127,14 +127,17 @@ def test_a_file_that_is_not_json_is_refused_with_its_line(tmp_path):
 
 def test_record_text_is_the_canonical_encoding_whatever_the_aircraft_ids(tmp_path):
     # The record is joined from each aircraft's pre-encoded share; it must come out exactly as one
-    # sorted, compact json.dumps of the whole would (Python json module documentation, sort_keys).
+    # sorted, compact json.dumps of the whole would (Python json module documentation, sort_keys), but
+    # for the line breaks between aircraft (outside strings: JSON escapes a line break inside one).
     # "qx-fca-2" sorts after "qx-fca" as an id but before it as a key prefix ("-" < "/").
     data = copy_registry(tmp_path / "reg")
     source = (data / "aircraft" / "qx-fca.yaml").read_text(encoding="utf-8")
     twin = source.replace("id: qx-fca", "id: qx-fca-2").replace("registration: QX-FCA", "registration: QX-FCZ")
     (data / "aircraft" / "qx-fca-2.yaml").write_text(twin, encoding="utf-8")
     text = record.to_text(pipeline.run(data, cache_dir=tmp_path / "cache"))
-    assert record.dumps(json.loads(text)) == text
+    assert record.dumps(json.loads(text)) == text.replace("\n", "") + "\n"
+    aircraft = len(json.loads(text)["registry"]["aircraft"])
+    assert text.count("\n") >= 3 * aircraft  # each aircraft's share of the per-aircraft maps on its own line
     installations = list(json.loads(text)["figures"]["installations"])
     assert any(key.startswith("qx-fca-2/") for key in installations)
     assert installations == sorted(installations)

@@ -166,7 +166,10 @@ def to_record(outcome) -> dict[str, Any]:
 
 
 def to_text(outcome) -> str:
-    """The record of one pipeline run (`pipeline.Outcome`) as the JSON text `dumps` would give.
+    """The record of one pipeline run (`pipeline.Outcome`) as the JSON text `dumps` would give, but for
+    line breaks: each aircraft's share of a per-aircraft map (the registry's aircraft, the installation,
+    pair and co-site figures) is on a line of its own, so that two records can be compared aircraft by
+    aircraft without parsing what both hold alike (`record_lines`).
 
     Each aircraft's share is taken as text (`ShareText`, made where it was computed) and joined in the
     order `dumps` sorts keys: registry.aircraft by id, and the installation and pair maps (keys
@@ -197,7 +200,7 @@ def to_text(outcome) -> str:
         "as_of": _json(outcome.as_of.isoformat()),
         "fleet": _json({"operator": fleet.operator, "title": fleet.title}),
         "registry": _object({
-            "aircraft": _object({aircraft_id: share.aircraft for aircraft_id, share in shares.items()}),
+            "aircraft": _lines({aircraft_id: share.aircraft for aircraft_id, share in shares.items()}),
             "airframes": _json({key: plain(value, data_dir) for key, value in fleet.airframes.items()}),
             "antennas": _json({key: plain(value, data_dir) for key, value in fleet.antennas.items()}),
             "cables": _json({key: plain(value, data_dir) for key, value in fleet.cables.items()}),
@@ -240,9 +243,15 @@ def _object(members: Mapping[str, str | Chunks]) -> Chunks:
 
 
 def _joined(members: Iterable[str]) -> Chunks:
-    """A JSON object from runs of already encoded, already ordered members ("" for none)."""
+    """A JSON object from runs of already encoded, already ordered members ("" for none), one aircraft's
+    run on each line (`record_lines`)."""
     runs = [run for run in members if run]
-    return ["{", *(run if n == 0 else "," + run for n, run in enumerate(runs)), "}"]
+    return ["{\n", ",\n".join(runs), "\n}"]
+
+
+def _lines(members: Mapping[str, str]) -> Chunks:
+    """A JSON object from already encoded values keyed by aircraft id, one member on each line."""
+    return _joined(_json(key) + ":" + members[key] for key in sorted(members))
 
 
 def dumps(record: Mapping[str, Any]) -> str:
@@ -293,15 +302,21 @@ def validate(record: Any, where: str) -> dict[str, Any]:
     return record
 
 
-def read(path: Path) -> dict[str, Any]:
-    """A record file, checked against the schema; RecordError if it cannot be used."""
+def read_text(path: Path) -> str:
+    """A record file's text; RecordError if it cannot be read."""
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        return path.read_text(encoding="utf-8")
     except FileNotFoundError:
         raise RecordError(f"{path}: no such file") from None
     except (OSError, UnicodeDecodeError) as error:
         raise RecordError(f"{path}: cannot be read ({error})") from None
+
+
+def read(path: Path) -> dict[str, Any]:
+    """A record file, checked against the schema; RecordError if it cannot be used."""
+    path = Path(path)
+    text = read_text(path)
     try:
         data = json.loads(text)
     except json.JSONDecodeError as error:

@@ -18,6 +18,7 @@ from typing import Any
 
 from registry.load.git import git as run_git
 from registry.output import record as build_record
+from registry.output import record_lines
 from registry.output.record import RecordError
 
 GIT_PREFIX = "git:"
@@ -60,6 +61,23 @@ def read_side(spec: str, *, run: Callable[..., Any], git_data_dir: Path | str = 
         side = Side(f"record {spec}", read_record(Path(spec)))
     check_depth(side.record, side.label)
     return side
+
+
+def read_record_pair(old_spec: str, new_spec: str) -> tuple[Side, Side] | None:
+    """Both sides, when both name record files or built sites whose records are in this version's
+    layout, with the aircraft alike on both sides left out of both (`record_lines`): the comparison
+    finds the same changes in a fraction of the time. None otherwise."""
+    if any(side_kind(spec) not in ("site", "record") for spec in (old_spec, new_spec)):
+        return None
+    paths = [Path(spec) / build_record.RECORD_NAME if side_kind(spec) == "site" else Path(spec)
+             for spec in (old_spec, new_spec)]
+    pair = record_lines.trimmed_pair(*(build_record.read_text(path) for path in paths), *map(str, paths))
+    if pair is None:
+        return None
+    sides = tuple(Side(f"{side_kind(spec)} {spec}", record) for spec, record in zip((old_spec, new_spec), pair))
+    for side in sides:
+        check_depth(side.record, side.label)
+    return sides
 
 
 def read_record(path: Path) -> dict[str, Any]:

@@ -50,11 +50,28 @@ def table_to_db_per_100m(loss_values, per: str):
     raise ValueError(f"attenuation table unit must be '100m' or '100ft', got '{per}'")
 
 
+def nnls2(a_matrix: np.ndarray, y: np.ndarray) -> np.ndarray:
+    """argmin ‖A·x − y‖² over x ≥ 0 for a two-column A (non-negative least squares, Lawson and Hanson,
+    Solving Least Squares Problems, 1974, ch. 23): the problem is convex, so the optimum is the
+    unconstrained least-squares solution when it is non-negative, else the best of the two faces x₁ = 0
+    and x₂ = 0, each a one-variable fit clamped at zero."""
+    x, *_ = np.linalg.lstsq(a_matrix, y, rcond=None)
+    if np.all(x >= 0):
+        return x
+    faces = []
+    for j in range(2):
+        column = a_matrix[:, j]
+        on_face = np.zeros(2)
+        on_face[j] = max(float(column @ y) / float(column @ column), 0.0) if column @ column > 0 else 0.0
+        faces.append((float(np.sum((y - a_matrix @ on_face) ** 2)), j, on_face))
+    return min(faces, key=lambda face: face[:2])[2]
+
+
 def fit_attenuation(freqs_hz, loss_db_per_100m) -> AttenuationFit:
     """Least-squares fit of a sqrt(f) + b f (a, b >= 0) to an attenuation table (dB/100 m vs Hz).
 
-    Needs at least two distinct frequencies. Non-negative least squares (scipy.optimize.nnls) keeps
-    both terms physical, so the fit cannot predict a negative loss.
+    Needs at least two distinct frequencies. Non-negative least squares (`nnls2`) keeps both terms
+    physical, so the fit cannot predict a negative loss.
     """
     f = np.asarray(freqs_hz, dtype=float)
     y = np.asarray(loss_db_per_100m, dtype=float)
@@ -66,9 +83,7 @@ def fit_attenuation(freqs_hz, loss_db_per_100m) -> AttenuationFit:
         raise ValueError("table frequencies must be positive and losses non-negative")
     # scale columns for conditioning
     s1, s2 = np.sqrt(f.max()), f.max()
-    from scipy.optimize import nnls  # imported when first needed: a build from the cache never loads scipy
-
-    coef, _ = nnls(np.column_stack([np.sqrt(f) / s1, f / s2]), y)
+    coef = nnls2(np.column_stack([np.sqrt(f) / s1, f / s2]), y)
     a, b = coef[0] / s1, coef[1] / s2
     resid = y - (a * np.sqrt(f) + b * f)
     return AttenuationFit(float(a), float(b), float(np.sqrt(np.mean(resid**2))), float(np.max(np.abs(resid))),

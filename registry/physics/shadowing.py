@@ -192,8 +192,8 @@ def ground_region(grid: ShadowGrid, max_elevation_deg: float = 0.0) -> np.ndarra
 
 
 def horizon_region(grid: ShadowGrid, half_width_deg: float) -> np.ndarray:
-    """Region mask: |elevation| <= half_width_deg, all round in azimuth."""
-    return np.broadcast_to((np.abs(grid.el_deg) <= half_width_deg)[:, None], grid.blocked.shape)
+    """Region mask: |elevation| <= half_width_deg, all round in azimuth (0: the horizon row alone)."""
+    return np.broadcast_to((np.abs(grid.el_deg) <= half_width_deg + 1e-9)[:, None], grid.blocked.shape)
 
 
 def coverage_percent(grid: ShadowGrid, region: np.ndarray) -> float:
@@ -203,6 +203,20 @@ def coverage_percent(grid: ShadowGrid, region: np.ndarray) -> float:
     if total <= 0:
         raise ValueError("the region is empty on this grid")
     return 100.0 * float((w * ~grid.blocked).sum()) / total
+
+
+def azimuth_seen_percent(grid: ShadowGrid, region: np.ndarray) -> float:
+    """Percentage (0..100) of the azimuths in which at least one cell of the region is clear.
+
+    For a band about the horizon: seen[a] = any over e of (region[e, a] and not blocked[e, a]); the share
+    is sum(seen) / (number of azimuths that hold region cells), every azimuth cell weighing the same
+    (they all span the same angle). An azimuth whose band is wholly behind the airframe is not seen.
+    """
+    holds = np.asarray(region).any(axis=0)
+    if not holds.any():
+        raise ValueError("the region is empty on this grid")
+    seen = (np.asarray(region) & ~grid.blocked).any(axis=0)
+    return 100.0 * float(seen[holds].sum()) / float(holds.sum())
 
 
 def blocked_solid_angle_sr(grid: ShadowGrid, region=None) -> float:

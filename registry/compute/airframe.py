@@ -18,7 +18,7 @@ from registry.core import figure_keys as FK
 from registry.core.model import Airframe, Installation
 from registry.core.results import Figure
 from registry.core.sources import where
-from registry.physics.airframe_outline import shape_from_outline, with_tailplane
+from registry.physics.airframe_outline import shape_from_outline, with_fin, with_tailplane
 from registry.physics.airframe_shape import AirframeShape, fuselage_at, locate_on_skin, to_metres
 
 SCALE_M = {"in": 0.0254, "mm": 0.001}
@@ -59,8 +59,9 @@ def fuselage_shape(airframe: Airframe) -> AirframeShape:
         notes += (f"wing plane at WL {airframe.wing.wl if wing_wl is not None else airframe.fuselage.centreline_wl:g}"
                   f"{'' if wing_wl is not None else ' (assumed: a mid wing)'}, no dihedral, tip chord 0.35 x root, "
                   "thickness 0.12 x root chord (assumed)",)
-    return dataclasses.replace(shape, sta_m=arrays[0], centre_wl_m=arrays[1], half_width_m=arrays[2],
-                               half_height_m=arrays[3], from_outline=False, assumptions=notes)
+    lofted = dataclasses.replace(shape, sta_m=arrays[0], centre_wl_m=arrays[1], half_width_m=arrays[2],
+                                 half_height_m=arrays[3], from_outline=False, assumptions=notes)
+    return with_fin(lofted, airframe.fin, scale)  # the fin stood again on the lofted crown
 
 
 def shape_text(airframe: Airframe) -> str:

@@ -62,12 +62,39 @@ def _wing_faces(wing, fus_half_width, wl, taper, thickness_ratio, scale_m):
     return faces
 
 
-def _fin_faces(fin, crown_wl, taper, thickness_ratio, scale_m):
+def crown_wl(shape: AirframeShape, x: float) -> float:
+    """WL (metres) of the fuselage's crown c + q w at station x (metres): the lower of the two segments'
+    values at a section's station (so a surface standing on it leaves no gap), the end value beyond the ends."""
+    ends = shape.sta_m
+    values = []
+    for probe in (x - 1e-9, x, x + 1e-9):
+        local = fuselage_at(shape, float(min(max(probe, ends[0]), ends[-1])))
+        w, _, c, _, q = local
+        values.append(c + q * w)
+    return min(values)
+
+
+def with_fin(shape: AirframeShape, fin, scale_m: float, *, taper: float = 0.6, thickness_ratio: float = 0.12
+             ) -> AirframeShape:
+    """The shape with its fin (a slab in the plane BL 0) standing on the fuselage's crown: the root edge
+    follows the crown line c(x) + q w(x) through every section station under it, the tip is `height`
+    above the crown at the root's leading edge, swept by sweep_deg (airframe unit in, metres in the shape).
+    Any fin already in the shape is replaced. None: the shape as it is."""
+    if fin is None:
+        return shape
     le, chord, height, sweep = (_get(fin, k) for k in ("root_le_sta", "root_chord", "height", "sweep_deg"))
+    te = le + chord
+    inner = [x / scale_m for x in shape.sta_m if le * scale_m < x < te * scale_m]
+    root = [(x, 0.0, crown_wl(shape, x * scale_m) / scale_m) for x in [le, *inner, te]]
+    tip_wl = root[0][2] + height
     tip_le = le + height * math.tan(math.radians(sweep))
-    verts = [(le, 0.0, crown_wl), (le + chord, 0.0, crown_wl), (tip_le + taper * chord, 0.0, crown_wl + height),
-             (tip_le, 0.0, crown_wl + height)]
-    return slab("fin", verts, thickness_ratio * chord, scale_m)
+    verts = root + [(tip_le + taper * chord, 0.0, tip_wl), (tip_le, 0.0, tip_wl)]
+    faces = slab("fin", verts, thickness_ratio * chord, scale_m)
+    note = (f"fin tip chord {taper:g} x root, thickness {thickness_ratio:g} x root chord, root on the fuselage's "
+            "crown (assumed)")
+    notes = tuple(a for a in shape.assumptions if not a.startswith("fin tip chord")) + (note,)
+    return dataclasses.replace(shape, plates=tuple(p for p in shape.plates if p.group != "fin") + faces,
+                               assumptions=notes)
 
 
 def shape_from_outline(fus, scale_m: float, wing=None, fin=None, *, nose_diameters: float = 1.5,
@@ -97,11 +124,8 @@ def shape_from_outline(fus, scale_m: float, wing=None, fin=None, *, nose_diamete
         faces += _wing_faces(wing, width / 2, wl, wing_taper, thickness_ratio, scale_m)
         notes.append(f"wing plane at WL {wl:g}, no dihedral, tip chord {wing_taper:g} x root, thickness "
                      f"{thickness_ratio:g} x root chord (assumed)")
-    if fin is not None:
-        faces += _fin_faces(fin, cl + height / 2, fin_taper, thickness_ratio, scale_m)
-        notes.append(f"fin tip chord {fin_taper:g} x root, thickness {thickness_ratio:g} x root chord, root on the "
-                     "crown line (assumed)")
-    return fuselage(x, c, w, h, scale_m, plates=faces, from_outline=True, assumptions=notes)
+    shape = fuselage(x, c, w, h, scale_m, plates=faces, from_outline=True, assumptions=notes)
+    return with_fin(shape, fin, scale_m, taper=fin_taper, thickness_ratio=thickness_ratio)
 
 
 def tailplane_root_bl(shape: AirframeShape, tail, scale_m: float) -> float:

@@ -25,7 +25,8 @@ from registry.compute import coverage as cov
 from registry.compute.airframe import shape_of
 from registry.core import figure_keys as FK
 from registry.load.fleet import load_fleet
-from registry.physics.airframe_outline import NO_TAILPLANE, shape_from_outline, tailplane_root_bl, with_tailplane
+from registry.physics.airframe_outline import (NO_TAILPLANE, shape_from_outline, tailplane_root_bl, with_fin,
+                                            with_tailplane)
 from registry.physics.airframe_shape import fuselage
 from registry.physics.shadowing import azimuth_seen_percent, blocked_solid_angle_sr, horizon_region, shadow_grid
 
@@ -113,3 +114,16 @@ def test_policy_names_the_attitudes_and_a_fleet_file_overrides_them(tmp_path):
     assert radalt.attitudes == ((0.0, 0.0), (20.0, 0.0), (-20.0, 0.0), (0.0, 10.0), (0.0, -10.0))
     assert radalt.attitude_src.startswith(str(ROOT / "registry/data/policy.yaml"))
     assert vhf.attitudes == ((0.0, 0.0),) and vhf.region == "horizon"
+
+
+def test_fin_root_follows_the_lofted_crown():
+    # sections: crown c + w (circular, q = 1) falls from 3.5 at STA 30 to 2.6 at STA 50 (linear between)
+    cone = fuselage([0.0, 30.0, 40.0, 50.0], [2.0, 2.0, 1.9, 1.8], [1.5, 1.5, 1.15, 0.8], [1.5, 1.5, 1.15, 0.8], 1.0)
+    fin = {"root_le_sta": 35.0, "root_chord": 12.0, "height": 4.0, "sweep_deg": 30.0}
+    shape = with_fin(cone, fin, 1.0, thickness_ratio=1e-3)
+    upper = next(p for p in shape.plates if p.name == "fin upper").vertices_m
+    root = upper[np.abs(upper[:, 2] - (3.5 - 0.9 * 5 / 20 + 4.0)) > 1e-6]  # all but the two tip corners
+    crown = np.interp(root[:, 0], [0.0, 30.0, 50.0], [3.5, 3.5, 2.6])
+    assert sorted(root[:, 0].round(9)) == [35.0, 40.0, 47.0]
+    assert np.allclose(root[:, 2], crown, atol=1e-9)
+    assert any("root on the fuselage's crown" in a for a in shape.assumptions)

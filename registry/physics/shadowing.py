@@ -21,6 +21,7 @@ which sums to 4 pi over the grid.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -116,9 +117,9 @@ def _cone_filter(vertices_m: np.ndarray, p: np.ndarray, d: np.ndarray, idx: np.n
     """The indices among idx of the rays inside the cone from p holding the vertices' bounding sphere
     (a pre-filter that never drops a hit: every point of a convex hull lies inside that sphere)."""
     centre = vertices_m.mean(axis=0)
-    radius = float(np.max(np.linalg.norm(vertices_m - centre, axis=1))) * (1 + 1e-9)
+    radius = math.sqrt(float(((vertices_m - centre) ** 2).sum(axis=1).max())) * (1 + 1e-9)
     to_c = centre - p
-    dist = float(np.linalg.norm(to_c))
+    dist = math.sqrt(float(to_c @ to_c))
     if dist <= radius:
         return idx
     return idx[d[idx] @ (to_c / dist) >= np.sqrt(1 - (radius / dist) ** 2) - 1e-12]

@@ -157,7 +157,7 @@ def with_tailplane(shape: AirframeShape, tail, scale_m: float, *, taper: float =
         return shape
     le, chord, span, sweep, wl = (_get(tail, k) for k in ("root_le_sta", "root_chord", "span", "sweep_deg", "wl"))
     root = tailplane_root_bl(shape, tail, scale_m)
-    if not span / 2 > root:
+    if not span / 2 - root > 1e-3 * chord:  # no tailplane outside the fuselage (or a sliver without area)
         return dataclasses.replace(shape, assumptions=tuple(a for a in shape.assumptions if a != NO_TAILPLANE) + (
             f"tailplane not modelled: its span {span:g} does not reach beyond the fuselage's side (BL {root:.4g})",))
     tip_le = le + (span / 2 - root) * math.tan(math.radians(sweep))

@@ -291,6 +291,33 @@ def sound_skin(extra: Extra, airframe, location: dict, fleet) -> bool:
     return all(airframe.material_at(location["sta"] + d, extra.surface) == "metal" for d in (-margin, 0, margin))
 
 
+def sees_enough(extra: Extra, airframe, location: dict, fleet) -> bool:
+    """The coverage rule's own test: the position, and every corner of the spread `shift` may move it by,
+    leaves clear what the service must see at every attitude the policy names (so a horizon service is
+    not put on the nose's or the tail cone's slope)."""
+    from types import SimpleNamespace
+
+    from registry.compute import coverage
+
+    need = coverage.requirement(fleet.services[extra.service])
+    if need is None:
+        return True
+    length = airframe.fuselage.tail_sta - airframe.fuselage.nose_sta
+    d_sta = 0.003 * length
+    d_bl = 0.02 * airframe.fuselage.width if location["bl"] != 0.0 else 0.0
+    for ds in (-d_sta, 0.0, d_sta):
+        for db in (-d_bl, 0.0, d_bl):
+            moved = onto_skin({"sta": location["sta"] + ds, "bl": location["bl"] + db, "wl": location["wl"]},
+                              airframe, extra.surface)
+            point = coverage.antenna_point(airframe, SimpleNamespace(location=SimpleNamespace(**moved),
+                                                                     surface=extra.surface))
+            for bank, pitch in need.attitudes:
+                grid = coverage.grid_at(airframe, point, bank, pitch)
+                if coverage.share_clear(grid, coverage.region_mask(grid, need), need) < need.min_pct:
+                    return False
+    return True
+
+
 def layout(airframe_id: str, installations: int, demo: Demo) -> list[tuple[str, object]]:
     """The type's positions: ("template", name) or ("extra", (Extra, nominal location)), `installations` long."""
     fleet = demo.fleet
@@ -313,7 +340,8 @@ def layout(airframe_id: str, installations: int, demo: Demo) -> list[tuple[str, 
             if not 0.02 <= frac <= 0.9:
                 continue
             location = place(extra, airframe, frac)
-            if clear_of(location, extra.service, placed, fleet, unit) and sound_skin(extra, airframe, location, fleet):
+            if clear_of(location, extra.service, placed, fleet, unit) and sound_skin(extra, airframe, location, fleet) \
+                    and sees_enough(extra, airframe, location, fleet):
                 placed.append((location, extra.service))
                 out.append(("extra", (extra, location)))
                 break

@@ -33,8 +33,8 @@ def demo_day(monkeypatch):
     monkeypatch.setenv("SOURCE_DATE_EPOCH", DEMO_DAY_EPOCH)
 
 
-def test_planted_table_lists_thirteen_problems():
-    assert len(planted_ids()) == 13
+def test_planted_table_lists_fourteen_problems():
+    assert len(planted_ids()) == 14
 
 
 def test_check_finds_exactly_the_planted_problems(capsys):

@@ -109,6 +109,10 @@ EXPECTED = {
     "missing_required": [
         'fleet.yaml:2:1: error: operator: found nothing, expected a value (the key is required)',
     ],
+    "must_see_with_bank": [
+        # the bank and pitch the coverage rule checks belong to the policy (coverage_bank_deg), not to a service
+        "services.yaml:18:73: error: services[1].must_see.bank_deg: found an unknown key 'bank_deg', expected one of region, elevation_deg, min_covered_pct, source",
+    ],
     "negative_length": [
         'aircraft/qx-fcb.yaml:13:17: error: installations[0].feeder.length_m: found -3.5, expected a length between 0.01 and 300 metres',
     ],
@@ -138,6 +142,10 @@ EXPECTED = {
     ],
     "syntax_error": [
         'fleet.yaml:2:20: error: (file): found invalid YAML (mapping values are not allowed here), expected well-formed YAML (check the indentation, colons and quotes here or just above)',
+    ],
+    "tailplane_without_wl": [
+        'airframes/fx-20.yaml:21:1: error: tailplane.wl: found nothing, expected a value (the key is required)',
+        "airframes/fx-20.yaml:24:9: error: tailplane.span: found 'wide', expected a number",
     ],
     "tab_indentation": [
         'services.yaml:4:1: error: (file): found a tab in the indentation, expected spaces (YAML does not allow tabs for indentation)',

@@ -3,7 +3,8 @@ antenna sits on it.
 
 `shape_of(airframe)` lofts the fuselage through the file's cross sections when it gives them, else derives
 it from the outline (length, width, height) and lists what it had to assume (physics.airframe_outline);
-wing and fin are thin slabs from their outlines. It is cached per airframe type's content
+wing, fin and tailplane are thin slabs from their outlines (no tailplane when the file gives none). It is
+cached per airframe type's content
 (functools.lru_cache on the frozen model object), so a fleet of one type builds it once per process.
 """
 from __future__ import annotations
@@ -17,7 +18,7 @@ from registry.core import figure_keys as FK
 from registry.core.model import Airframe, Installation
 from registry.core.results import Figure
 from registry.core.sources import where
-from registry.physics.airframe_outline import shape_from_outline
+from registry.physics.airframe_outline import shape_from_outline, with_fin, with_tailplane
 from registry.physics.airframe_shape import AirframeShape, fuselage_at, locate_on_skin, to_metres
 
 SCALE_M = {"in": 0.0254, "mm": 0.001}
@@ -32,12 +33,19 @@ FUSELAGE_SURFACES = ("top", "bottom", "side_left", "side_right", "tail")
 """Surfaces whose antennas stand on the fuselage skin. Fin, wing and nose antennas sit in fin caps, wing
 tips and radomes the outline does not describe, so their positions are not held to the skin."""
 
-SHAPE_METHOD = "elliptic sections lofted by straight frustums; wing and fin as thin slabs (geometry, no source needed)"
+SHAPE_METHOD = ("elliptic sections lofted by straight frustums; wing, fin and tailplane as thin slabs (geometry, "
+                "no source needed)")
 
 
 @lru_cache(maxsize=16)
 def shape_of(airframe: Airframe) -> AirframeShape:
-    """The airframe type's three-dimensional shape in metres (cached per content)."""
+    """The airframe type's three-dimensional shape in metres (cached per content): the fuselage, wing and
+    fin, and the tailplane when the file gives one (its root on the lofted fuselage's side)."""
+    return with_tailplane(fuselage_shape(airframe), airframe.tailplane, SCALE_M[airframe.coord_unit])
+
+
+def fuselage_shape(airframe: Airframe) -> AirframeShape:
+    """The fuselage (lofted through the file's sections, or derived from the outline) with wing and fin."""
     scale = SCALE_M[airframe.coord_unit]
     wing_wl = airframe.wing.wl if airframe.wing is not None else None
     shape = shape_from_outline(airframe.fuselage, scale, airframe.wing, airframe.fin, wing_wl=wing_wl)
@@ -51,8 +59,9 @@ def shape_of(airframe: Airframe) -> AirframeShape:
         notes += (f"wing plane at WL {airframe.wing.wl if wing_wl is not None else airframe.fuselage.centreline_wl:g}"
                   f"{'' if wing_wl is not None else ' (assumed: a mid wing)'}, no dihedral, tip chord 0.35 x root, "
                   "thickness 0.12 x root chord (assumed)",)
-    return dataclasses.replace(shape, sta_m=arrays[0], centre_wl_m=arrays[1], half_width_m=arrays[2],
-                               half_height_m=arrays[3], from_outline=False, assumptions=notes)
+    lofted = dataclasses.replace(shape, sta_m=arrays[0], centre_wl_m=arrays[1], half_width_m=arrays[2],
+                                 half_height_m=arrays[3], from_outline=False, assumptions=notes)
+    return with_fin(lofted, airframe.fin, scale)  # the fin stood again on the lofted crown
 
 
 def shape_text(airframe: Airframe) -> str:

@@ -1,6 +1,7 @@
 """Coverage past the airframe: which directions the airframe blocks from an antenna, against what its
-service must see (the service table's `must_see`), in level flight and at the requirement's bank and
-pitch angles.
+service must see (the service table's `must_see`), in level flight and at the bank and pitch angles the
+policy names for that kind of region (policy `coverage_bank_deg`, `coverage_pitch_deg`; the loader puts
+them on the service as `Service.attitudes`).
 
 Method: geometric optics on the three-dimensional shape (physics.shadowing.shadow_grid): a direction is
 blocked when the ray leaves below the skin's tangent plane or enters the fuselage, wing or fin; no
@@ -35,7 +36,7 @@ shadow edge by under 1.5 degrees for an obstacle 4 m away (small-angle geometry)
 5-degree grid step."""
 
 METHOD = ("geometric optics on the lofted airframe: rays blocked below the skin's tangent plane or by "
-          "fuselage, wing and fin (no diffraction); grid every 5°; shares of solid angle")
+          "fuselage, wing, fin and tailplane (no diffraction); grid every 5°; shares of solid angle")
 
 
 class Requirement(NamedTuple):
@@ -44,19 +45,26 @@ class Requirement(NamedTuple):
     min_pct: float
     attitudes: tuple[tuple[float, float], ...]
     source: str
+    attitude_source: str = ""
+    """Where the bank and pitch come from (the policy's sources), '' when level flight only."""
+    attitude_src: str = ""
+    """The policy line of the bank and pitch (`file:line`), '' when the policy names none."""
 
 
 def requirement(service: Service) -> Requirement | None:
-    """The service's `must_see` as a Requirement, with level flight and each named bank and pitch."""
+    """The service's `must_see` as a Requirement, with level flight and the policy's bank (either wing
+    down) and pitch (nose up and down) for the region, when they are not zero."""
     need = service.must_see
     if need is None:
         return None
-    bank, pitch = float(need.get("bank_deg", 0.0)), float(need.get("pitch_deg", 0.0))
+    held = service.attitudes
+    bank, pitch = (held.bank_deg, held.pitch_deg) if held is not None else (0.0, 0.0)
     attitudes = [(0.0, 0.0)]
     attitudes += [(b, 0.0) for b in (bank, -bank) if bank]
     attitudes += [(0.0, p) for p in (pitch, -pitch) if pitch]
     return Requirement(need["region"], float(need["elevation_deg"]), float(need["min_covered_pct"]),
-                       tuple(attitudes), need["source"])
+                       tuple(attitudes), need["source"], held.source if held is not None else "",
+                       f"{held.src.path}:{held.src.line}" if held is not None else "")
 
 
 def region_mask(grid: shadowing.ShadowGrid, need: Requirement) -> np.ndarray:
@@ -70,7 +78,26 @@ def region_mask(grid: shadowing.ShadowGrid, need: Requirement) -> np.ndarray:
 def region_text(need: Requirement) -> str:
     return {"sky": f"sky at or above {need.elevation_deg:g}° elevation",
             "ground": f"below {need.elevation_deg:g}° elevation (towards the ground)",
-            "horizon": f"within ±{abs(need.elevation_deg):g}° of the horizon, all round"}[need.region]
+            "horizon": f"horizon all round (an azimuth counts as seen when a direction within "
+                       f"±{abs(need.elevation_deg):g}° of the horizon is clear)"}[need.region]
+
+
+def share_clear(grid: shadowing.ShadowGrid, mask: np.ndarray, need: Requirement) -> float:
+    """The share the requirement counts, per cent: of the region's solid angle (sky, ground), or of the
+    azimuths in which some direction of the band about the horizon is clear (horizon)."""
+    if need.region == "horizon":
+        return shadowing.azimuth_seen_percent(grid, mask)
+    return shadowing.coverage_percent(grid, mask)
+
+
+SHARE_FORMULA = {
+    "horizon": "Σ_az [any clear cell within the band at az] / number of azimuths",
+    "sky": "Σ Ω(clear cells in region) / Σ Ω(region), Ω = Δaz·(sin(el+s/2) − sin(el−s/2))",
+    "ground": "Σ Ω(clear cells in region) / Σ Ω(region), Ω = Δaz·(sin(el+s/2) − sin(el−s/2))",
+}
+SECTOR_RULE = {"horizon": (1.0, "azimuths where every direction of the band is blocked"),
+               "sky": (0.5, "azimuths where at least half the region's solid angle is blocked"),
+               "ground": (0.5, "azimuths where at least half the region's solid angle is blocked")}
 
 
 def antenna_point(airframe: Airframe, installation: Installation) -> tuple[float, float, float]:
@@ -124,10 +151,11 @@ def coverage_figures(airframe: Airframe, installation: Installation, service: Se
     for bank, pitch in need.attitudes:
         grid = grid_at(airframe, point, bank, pitch)
         mask = region_mask(grid, need)
-        results.append((shadowing.coverage_percent(grid, mask), bank, pitch, grid, mask))
+        results.append((share_clear(grid, mask, need), bank, pitch, grid, mask))
     level = results[0][0]
     worst_pct, bank, pitch, grid, mask = min(results, key=lambda r: r[0])
-    sector = shadowing.worst_blocked_sector(grid, mask)
+    fraction, sector_rule = SECTOR_RULE[need.region]
+    sector = shadowing.worst_blocked_sector(grid, mask, fraction)
     src, req_src = where(installation, "location"), where(service, "must_see")
     inputs = (("region", region_text(need)), ("point (STA, BL, WL)", ", ".join(f"{v:.1f}" for v in point)),
               ("attitudes", "; ".join(attitude_text(b, p) for b, p in need.attitudes)))
@@ -135,14 +163,15 @@ def coverage_figures(airframe: Airframe, installation: Installation, service: Se
         Figure(FK.COVERAGE_REGION, "Directions the service must see", region_text(need), "",
                source=need.source, src=req_src),
         Figure(FK.COVERAGE_LEVEL_PCT, "Share of them clear in level flight", level, "%",
-               "Σ Ω(clear cells in region) / Σ Ω(region), Ω = Δaz·(sin(el+s/2) − sin(el−s/2))", inputs,
-               METHOD, src),
+               SHARE_FORMULA[need.region], inputs, METHOD, src),
         Figure(FK.COVERAGE_WORST_PCT, "Share clear at the worst attitude", worst_pct, "%",
                "min over the attitudes of the share clear", (("worst attitude", attitude_text(bank, pitch)),),
                METHOD, src),
-        Figure(FK.COVERAGE_ATTITUDE, "Worst attitude", attitude_text(bank, pitch), "", src=req_src),
+        Figure(FK.COVERAGE_ATTITUDE, "Worst attitude", attitude_text(bank, pitch), "",
+               source=need.attitude_source or "level flight only: the policy names no bank or pitch for this region",
+               src=need.attitude_src or req_src),
         Figure(FK.COVERAGE_SECTOR, "Widest blocked sector there", sector_text(sector), "",
-               "azimuths where at least half the region's solid angle is blocked", source=METHOD, src=src),
+               sector_rule, source=METHOD, src=src),
         Figure(FK.COVERAGE_REQUIRED_PCT, "Least share the service needs clear", need.min_pct, "%",
                source=need.source, src=req_src),
     ]

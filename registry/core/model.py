@@ -147,6 +147,18 @@ class Fin(Sourced):
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
+class Tailplane(Sourced):
+    """The horizontal stabiliser as a thin surface: root leading edge, root chord, span tip to tip,
+    leading-edge sweep and the waterline of its plane (a low tail on the tail cone, or a T-tail)."""
+
+    root_le_sta: float
+    root_chord: float
+    span: float
+    sweep_deg: float
+    wl: float
+
+
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Zone(Sourced):
     """Skin material over stations [sta_from, sta_to); `surfaces` empty means every surface."""
 
@@ -169,6 +181,7 @@ class Airframe(Sourced):
     zones: tuple[Zone, ...]
     wing: Wing | None = None
     fin: Fin | None = None
+    tailplane: Tailplane | None = None
 
     def zone_at(self, sta: float, surface: str) -> Zone | None:
         """The zone covering `sta` on `surface`: one that lists the surface wins over one for every surface."""
@@ -214,6 +227,16 @@ class Cable(Sourced):
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
+class Attitudes(Sourced):
+    """The bank and pitch angles (degrees) the coverage rule checks besides level flight, for one kind of
+    must_see region: the policy's coverage_bank_deg and coverage_pitch_deg; `src` is the policy's line."""
+
+    bank_deg: float
+    pitch_deg: float
+    source: str = ""
+
+
+@dataclass(frozen=True, kw_only=True, slots=True)
 class Service(Sourced):
     """A radio service; `design_freq_mhz` is the declared one or the centre of the first band.
     `shipped` is true when the entry comes from the package's table rather than the fleet's file."""
@@ -241,7 +264,9 @@ class Service(Sourced):
     sources: FrozenMap = field(default_factory=FrozenMap)
     """Co-site figure key → its standing and document ('sourced: …', 'unverified: …', ...)."""
     must_see: FrozenMap | None = None
-    """What the service's antenna must see past the airframe (region, elevation, attitudes, share, source)."""
+    """What the service's antenna must see past the airframe (region, elevation, share, source)."""
+    attitudes: Attitudes | None = None
+    """The bank and pitch its must_see is also held at: the policy's, filled in by the loader."""
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -267,6 +292,10 @@ class Policy(Sourced):
     sources: FrozenMap = field(default_factory=FrozenMap)
     cosite_max_harmonic_order: int = 15
     cosite_small_margin_db: float = 6.0
+    coverage_bank_deg: FrozenMap = field(default_factory=FrozenMap)
+    """Bank angle (degrees, each way) the coverage rule checks, by must_see region (sky, ground, horizon)."""
+    coverage_pitch_deg: FrozenMap = field(default_factory=FrozenMap)
+    """Pitch angle (degrees, nose up and down) the coverage rule checks, by must_see region."""
 
     def vswr_limit_for(self, service: str) -> float:
         return self.vswr_limit_by_service.get(service, self.vswr_limit)

@@ -5,6 +5,7 @@ location, so later stages can point at the YAML line a figure came from.
 """
 from __future__ import annotations
 
+import dataclasses
 from datetime import date
 from pathlib import Path
 from typing import Any, Callable
@@ -14,6 +15,7 @@ from registry.core.base import FrozenMap, Locator, freeze
 from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fuselage, GroundPlane,
                                  Installation, Location, Measured, Modification, RadioFigures, Review,
                                  Section, Service, Wing, Zone)
+from registry.core.model import Attitudes, Policy, Tailplane
 from registry.core.units import per_100ft_to_per_100m
 from registry.load import integrity
 from registry.load.yamlsource import YamlDoc
@@ -81,6 +83,7 @@ def airframe(doc: Doc) -> Airframe:
         fuselage=Fuselage(**doc.at("fuselage"), **numbers(data["fuselage"]), sections=sections),
         wing=Wing(**doc.at("wing"), **numbers(data["wing"])) if "wing" in data else None,
         fin=Fin(**doc.at("fin"), **numbers(data["fin"])) if "fin" in data else None,
+        tailplane=Tailplane(**doc.at("tailplane"), **numbers(data["tailplane"])) if "tailplane" in data else None,
         zones=tuple(Zone(**doc.at("zones", n), name=item["name"], sta_from=float(item["sta_from"]),
                          sta_to=float(item["sta_to"]), material=item["material"],
                          surfaces=tuple(item.get("surfaces", ())))
@@ -140,6 +143,18 @@ def services(doc: Doc, shipped: bool) -> list[Service]:
             must_see=freeze(item["must_see"]) if "must_see" in item else None,
         ))
     return services
+
+
+def with_attitudes(service: Service, policy: Policy) -> Service:
+    """The service with the bank and pitch the policy names for its must_see region (none without must_see)."""
+    if service.must_see is None:
+        return service
+    region = service.must_see["region"]
+    keys = ("coverage_bank_deg", "coverage_pitch_deg")
+    source = "; ".join(dict.fromkeys(str(policy.sources[key]) for key in keys if key in policy.sources))
+    return dataclasses.replace(service, attitudes=Attitudes(
+        src=policy.where(f"coverage_bank_deg.{region}"), bank_deg=float(policy.coverage_bank_deg.get(region, 0.0)),
+        pitch_deg=float(policy.coverage_pitch_deg.get(region, 0.0)), source=source))
 
 
 def cosite_fields(item: dict[str, Any], bands: tuple[tuple[float, float], ...]) -> dict[str, Any]:

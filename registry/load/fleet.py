@@ -27,6 +27,7 @@ from registry.load.yamlsource import YamlDoc, read_yaml
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
 _COSITE_POLICY = {"cosite_max_harmonic_order": int, "cosite_small_margin_db": float}
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
+_COVERAGE_POLICY = ("coverage_bank_deg", "coverage_pitch_deg")  # maps by must_see region, merged key by key
 
 
 def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir: Path | None = None,
@@ -185,6 +186,8 @@ class _Run:
             if cables_doc else None
         services = self.services(shipped_services, fleet_services)
         policy = self.policy(shipped_policy, fleet_policy)
+        if services is not None and policy is not None:
+            services = [build.with_attitudes(service, policy) for service in services]
         reviews = [build.review(reviews_doc, n, item) for n, item in enumerate(reviews_doc.data["reviews"])] \
             if reviews_doc else []
 
@@ -261,7 +264,7 @@ class _Run:
         merged: dict[str, Any] = {}
         for doc in reversed(layers):
             for key, value in doc.data.items():
-                if key in _MERGED_POLICY_MAPS:
+                if key in _MERGED_POLICY_MAPS + _COVERAGE_POLICY:
                     merged[key] = {**merged.get(key, {}), **value}
                 else:
                     merged[key] = value  # min_isolation_db rules are merged pair by pair below
@@ -295,4 +298,5 @@ class _Run:
             min_isolation_db=tuple(rules[pair] for pair in sorted(rules)),
             sources=FrozenMap(merged.get("sources", {})),
             **{key: kind(merged[key]) for key, kind in _COSITE_POLICY.items() if key in merged},
+            **{key: FrozenMap({k: float(v) for k, v in merged[key].items()}) for key in _COVERAGE_POLICY if key in merged},
         )

@@ -4,8 +4,9 @@ Fields read (all in the airframe's coord_unit, which scale_m converts to metres)
   fuselage: nose_sta, tail_sta, width, height, centreline_wl
   wing (optional): root_le_sta, root_chord, span, sweep_deg
   fin (optional): root_le_sta, root_chord, height, sweep_deg
-The outline does not give the nose and tail-cone shapes, the wing's waterline, taper and thickness, the
-fin's taper and thickness, nor any tailplane. What is assumed instead is returned in the shape's
+  tailplane (optional, added by `with_tailplane`): root_le_sta, root_chord, span, sweep_deg, wl
+The outline does not give the nose and tail-cone shapes, the wing's waterline, taper and thickness, nor
+the fin's and tailplane's taper and thickness. A file without a tailplane gets none (it is not guessed). What is assumed instead is returned in the shape's
 `assumptions`, word for word, so a page can print it beside every figure that uses the shape; the
 values are common practice for transport aircraft, no source, and each is an argument to override.
 """
@@ -15,7 +16,11 @@ import math
 
 import numpy as np
 
-from registry.physics.airframe_shape import AirframeShape, TIP_FRACTION, fuselage, slab
+import dataclasses
+
+from registry.physics.airframe_shape import AirframeShape, TIP_FRACTION, fuselage, fuselage_at, slab
+
+NO_TAILPLANE = "no tailplane: the airframe file gives none, so none is modelled (a tailplane would block part of the aft sky and horizon)"
 
 
 def _get(obj, name: str) -> float:
@@ -57,12 +62,39 @@ def _wing_faces(wing, fus_half_width, wl, taper, thickness_ratio, scale_m):
     return faces
 
 
-def _fin_faces(fin, crown_wl, taper, thickness_ratio, scale_m):
+def crown_wl(shape: AirframeShape, x: float) -> float:
+    """WL (metres) of the fuselage's crown c + q w at station x (metres): the lower of the two segments'
+    values at a section's station (so a surface standing on it leaves no gap), the end value beyond the ends."""
+    ends = shape.sta_m
+    values = []
+    for probe in (x - 1e-9, x, x + 1e-9):
+        local = fuselage_at(shape, float(min(max(probe, ends[0]), ends[-1])))
+        w, _, c, _, q = local
+        values.append(c + q * w)
+    return min(values)
+
+
+def with_fin(shape: AirframeShape, fin, scale_m: float, *, taper: float = 0.6, thickness_ratio: float = 0.12
+             ) -> AirframeShape:
+    """The shape with its fin (a slab in the plane BL 0) standing on the fuselage's crown: the root edge
+    follows the crown line c(x) + q w(x) through every section station under it, the tip is `height`
+    above the crown at the root's leading edge, swept by sweep_deg (airframe unit in, metres in the shape).
+    Any fin already in the shape is replaced. None: the shape as it is."""
+    if fin is None:
+        return shape
     le, chord, height, sweep = (_get(fin, k) for k in ("root_le_sta", "root_chord", "height", "sweep_deg"))
+    te = le + chord
+    inner = [x / scale_m for x in shape.sta_m if le * scale_m < x < te * scale_m]
+    root = [(x, 0.0, crown_wl(shape, x * scale_m) / scale_m) for x in [le, *inner, te]]
+    tip_wl = root[0][2] + height
     tip_le = le + height * math.tan(math.radians(sweep))
-    verts = [(le, 0.0, crown_wl), (le + chord, 0.0, crown_wl), (tip_le + taper * chord, 0.0, crown_wl + height),
-             (tip_le, 0.0, crown_wl + height)]
-    return slab("fin", verts, thickness_ratio * chord, scale_m)
+    verts = root + [(tip_le + taper * chord, 0.0, tip_wl), (tip_le, 0.0, tip_wl)]
+    faces = slab("fin", verts, thickness_ratio * chord, scale_m)
+    note = (f"fin tip chord {taper:g} x root, thickness {thickness_ratio:g} x root chord, root on the fuselage's "
+            "crown (assumed)")
+    notes = tuple(a for a in shape.assumptions if not a.startswith("fin tip chord")) + (note,)
+    return dataclasses.replace(shape, plates=tuple(p for p in shape.plates if p.group != "fin") + faces,
+                               assumptions=notes)
 
 
 def shape_from_outline(fus, scale_m: float, wing=None, fin=None, *, nose_diameters: float = 1.5,
@@ -73,7 +105,7 @@ def shape_from_outline(fus, scale_m: float, wing=None, fin=None, *, nose_diamete
     fus, wing, fin: mappings or objects with the schema's fields (airframe unit). nose_diameters and
     tail_diameters: nose and tail-cone lengths in fuselage widths; wing_wl: wing plane WL (default the
     fuselage centreline, a mid wing); wing_taper, fin_taper: tip chord / root chord; thickness_ratio:
-    thickness / root chord of wing and fin slabs. No tailplane: the outline has none.
+    thickness / root chord of wing and fin slabs. No tailplane (see with_tailplane).
     """
     nose, tail = _get(fus, "nose_sta"), _get(fus, "tail_sta")
     width, height, cl = _get(fus, "width"), _get(fus, "height"), _get(fus, "centreline_wl")
@@ -85,15 +117,56 @@ def shape_from_outline(fus, scale_m: float, wing=None, fin=None, *, nose_diamete
     notes = [f"fuselage derived from an outline (length, width, height): nose over {nose_len:g}, tail cone over "
              f"{tail_len:g} (airframe unit), elliptical sections of constant aspect, crown line level over the "
              "tail cone (assumed, common practice, no source)",
-             "no tailplane: the outline has none"]
+             NO_TAILPLANE]
     faces = []
     if wing is not None:
         wl = cl if wing_wl is None else float(wing_wl)
         faces += _wing_faces(wing, width / 2, wl, wing_taper, thickness_ratio, scale_m)
         notes.append(f"wing plane at WL {wl:g}, no dihedral, tip chord {wing_taper:g} x root, thickness "
                      f"{thickness_ratio:g} x root chord (assumed)")
-    if fin is not None:
-        faces += _fin_faces(fin, cl + height / 2, fin_taper, thickness_ratio, scale_m)
-        notes.append(f"fin tip chord {fin_taper:g} x root, thickness {thickness_ratio:g} x root chord, root on the "
-                     "crown line (assumed)")
-    return fuselage(x, c, w, h, scale_m, plates=faces, from_outline=True, assumptions=notes)
+    shape = fuselage(x, c, w, h, scale_m, plates=faces, from_outline=True, assumptions=notes)
+    return with_fin(shape, fin, scale_m, taper=fin_taper, thickness_ratio=thickness_ratio)
+
+
+def tailplane_root_bl(shape: AirframeShape, tail, scale_m: float) -> float:
+    """BL (airframe unit) of the tailplane's root: the fuselage's side at the tailplane's WL at the root
+    chord's mid station, y = w sqrt(1 - ((wl - c) / (q w))^2) on the section there; 0 where the plane
+    passes above or below the fuselage (a T-tail on the fin) or lies beyond its ends."""
+    x_mid = (_get(tail, "root_le_sta") + _get(tail, "root_chord") / 2) * scale_m
+    local = fuselage_at(shape, x_mid)
+    if local is None:
+        return 0.0
+    w, _, c, _, q = local
+    dz = _get(tail, "wl") * scale_m - c
+    if w <= 0 or abs(dz) >= q * w:
+        return 0.0
+    return w * math.sqrt(1 - (dz / (q * w)) ** 2) / scale_m
+
+
+def with_tailplane(shape: AirframeShape, tail, scale_m: float, *, taper: float = 0.5,
+                   thickness_ratio: float = 0.10) -> AirframeShape:
+    """The shape with a tailplane's two halves added as thin slabs ('tailplane_right', 'tailplane_left').
+
+    tail: mapping or object with root_le_sta, root_chord, span, sweep_deg, wl (airframe unit). Each half
+    runs from the root BL (tailplane_root_bl) to BL +-span/2 in the plane WL = wl (no dihedral); tip
+    chord = taper x root chord, thickness = thickness_ratio x root chord (assumed, common practice for
+    transport tailplanes, no source; listed in the shape's assumptions). None: the shape as it is; a
+    span within the fuselage: no faces, and a note that says so.
+    """
+    if tail is None:
+        return shape
+    le, chord, span, sweep, wl = (_get(tail, k) for k in ("root_le_sta", "root_chord", "span", "sweep_deg", "wl"))
+    root = tailplane_root_bl(shape, tail, scale_m)
+    if not span / 2 - root > 1e-3 * chord:  # no tailplane outside the fuselage (or a sliver without area)
+        return dataclasses.replace(shape, assumptions=tuple(a for a in shape.assumptions if a != NO_TAILPLANE) + (
+            f"tailplane not modelled: its span {span:g} does not reach beyond the fuselage's side (BL {root:.4g})",))
+    tip_le = le + (span / 2 - root) * math.tan(math.radians(sweep))
+    faces = []
+    for side, sign in (("right", 1.0), ("left", -1.0)):
+        verts = [(le, sign * root, wl), (tip_le, sign * span / 2, wl),
+                 (tip_le + taper * chord, sign * span / 2, wl), (le + chord, sign * root, wl)]
+        faces += slab(f"tailplane_{side}", verts, thickness_ratio * chord, scale_m)
+    notes = tuple(note for note in shape.assumptions if note != NO_TAILPLANE)
+    notes += (f"tailplane at WL {wl:g} from BL {root:.4g} (the fuselage's side there) to the tips, no dihedral, tip "
+              f"chord {taper:g} x root, thickness {thickness_ratio:g} x root chord (assumed)",)
+    return dataclasses.replace(shape, plates=shape.plates + tuple(faces), assumptions=notes)

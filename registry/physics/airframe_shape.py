@@ -182,10 +182,11 @@ def inside_polygon(points_2d: np.ndarray, poly_2d: np.ndarray) -> np.ndarray:
 
 def plane_basis(pl: Plate) -> tuple[np.ndarray, np.ndarray]:
     """Two orthonormal in-plane axes (u, v) of a plate, u along its first edge."""
+    n = pl.normal
     u = pl.vertices_m[1] - pl.vertices_m[0]
-    u = u - (u @ pl.normal) * pl.normal
-    u = u / np.linalg.norm(u)
-    return u, np.cross(pl.normal, u)
+    u = u - (u @ n) * n
+    u = u / math.sqrt(float(u @ u))
+    return u, np.array([n[1] * u[2] - n[2] * u[1], n[2] * u[0] - n[0] * u[2], n[0] * u[1] - n[1] * u[0]])
 
 
 def _plate_skin(pl: Plate, p: np.ndarray) -> SkinPoint | None:

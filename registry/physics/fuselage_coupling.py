@@ -28,6 +28,11 @@ two monopoles on a flat plane at the ray's path length, times the curvature (Foc
   field times Fock's surface-field function of xi to leading order (P. H. Pathak, N. Wang, "Ray
   analysis of mutual coupling between antennas on a convex surface", IEEE Trans. Antennas Propag.
   AP-29, 1981: unverified, check against that paper; torsion and higher-order terms are left out).
+  Searched for (2026-12): the paper itself, its issue, pages and equation numbers were not found in
+  the sources searched; only a secondary text citing the companion paper (P. H. Pathak, N. Wang,
+  W. D. Burnside, R. G. Kouyoumjian, "A uniform GTD solution for the radiation from sources on a
+  convex surface", IEEE Trans. AP-29 no. 4, 1981, pp. 609-622) was found. Issue, pages and the
+  equation used stay to be checked against the coupling paper (from memory: AP-29 no. 6, Nov. 1981).
 * The limit function is asymptotic in k rho: against NEC-2 wire-grid cylinders (tests) the coupling is
   within 2.2 dB at k a = 3.7 (a fuselage at VHF) and k a = 5; at k a = 2.1 it reads 2-4 dB high.
 * Elliptical fuselages: a is taken as the section's mean radius sqrt(w h) (an assumption).

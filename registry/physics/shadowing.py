@@ -21,6 +21,7 @@ which sums to 4 pi over the grid.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -116,9 +117,9 @@ def _cone_filter(vertices_m: np.ndarray, p: np.ndarray, d: np.ndarray, idx: np.n
     """The indices among idx of the rays inside the cone from p holding the vertices' bounding sphere
     (a pre-filter that never drops a hit: every point of a convex hull lies inside that sphere)."""
     centre = vertices_m.mean(axis=0)
-    radius = float(np.max(np.linalg.norm(vertices_m - centre, axis=1))) * (1 + 1e-9)
+    radius = math.sqrt(float(((vertices_m - centre) ** 2).sum(axis=1).max())) * (1 + 1e-9)
     to_c = centre - p
-    dist = float(np.linalg.norm(to_c))
+    dist = math.sqrt(float(to_c @ to_c))
     if dist <= radius:
         return idx
     return idx[d[idx] @ (to_c / dist) >= np.sqrt(1 - (radius / dist) ** 2) - 1e-12]
@@ -192,8 +193,8 @@ def ground_region(grid: ShadowGrid, max_elevation_deg: float = 0.0) -> np.ndarra
 
 
 def horizon_region(grid: ShadowGrid, half_width_deg: float) -> np.ndarray:
-    """Region mask: |elevation| <= half_width_deg, all round in azimuth."""
-    return np.broadcast_to((np.abs(grid.el_deg) <= half_width_deg)[:, None], grid.blocked.shape)
+    """Region mask: |elevation| <= half_width_deg, all round in azimuth (0: the horizon row alone)."""
+    return np.broadcast_to((np.abs(grid.el_deg) <= half_width_deg + 1e-9)[:, None], grid.blocked.shape)
 
 
 def coverage_percent(grid: ShadowGrid, region: np.ndarray) -> float:
@@ -203,6 +204,20 @@ def coverage_percent(grid: ShadowGrid, region: np.ndarray) -> float:
     if total <= 0:
         raise ValueError("the region is empty on this grid")
     return 100.0 * float((w * ~grid.blocked).sum()) / total
+
+
+def azimuth_seen_percent(grid: ShadowGrid, region: np.ndarray) -> float:
+    """Percentage (0..100) of the azimuths in which at least one cell of the region is clear.
+
+    For a band about the horizon: seen[a] = any over e of (region[e, a] and not blocked[e, a]); the share
+    is sum(seen) / (number of azimuths that hold region cells), every azimuth cell weighing the same
+    (they all span the same angle). An azimuth whose band is wholly behind the airframe is not seen.
+    """
+    holds = np.asarray(region).any(axis=0)
+    if not holds.any():
+        raise ValueError("the region is empty on this grid")
+    seen = (np.asarray(region) & ~grid.blocked).any(axis=0)
+    return 100.0 * float(seen[holds].sum()) / float(holds.sum())
 
 
 def blocked_solid_angle_sr(grid: ShadowGrid, region=None) -> float:

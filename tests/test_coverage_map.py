@@ -48,3 +48,20 @@ def test_a_belly_gnss_antenna_is_drawn_blocked_over_the_whole_upper_sky(demo_fle
     cmap = coverage_map(demo_fleet.airframe_of(aircraft), installation, demo_fleet.services[installation.service])
     rects = rectangles(cmap.level)
     assert all(drawn(rects, _x(az), _y(el)) for az in range(-175, 180, 10) for el in (10, 30, 60, 85))
+
+
+def test_the_drawing_wedges_use_the_figure_s_sector_rule(demo_fleet):
+    # planted problem 14: QX-TCD's VHF3 on the tail cone's upsweep. Its figure's widest blocked sector
+    # counts the azimuths whose whole horizon band is blocked; the drawing's wedges are those azimuths
+    from registry.compute.coverage import SECTOR_RULE, coverage_figures, sector_text
+    from registry.physics.shadowing import worst_blocked_sector
+    from registry.site.coverage_map import blocked_sectors
+
+    aircraft = demo_fleet.aircraft["qx-tcd"]
+    installation = aircraft.installations["VHF3"]
+    airframe, service = demo_fleet.airframe_of(aircraft), demo_fleet.services[installation.service]
+    level, _, region = map_grids(airframe, installation, service)
+    sector = worst_blocked_sector(level, np.asarray(region), SECTOR_RULE["horizon"][0])
+    shown = [figure.value for figure in coverage_figures(airframe, installation, service)]
+    assert sector_text(sector) in shown
+    assert max(width for _, width in blocked_sectors(airframe, installation, service)) == pytest.approx(sector[2])

@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from registry.compute.coverage import map_grids, region_text, requirement
+from registry.compute.coverage import SECTOR_RULE, map_grids, region_text, requirement
 from registry.core.model import Airframe, Installation, Service
 from registry.site.svg import n
 
@@ -85,12 +85,14 @@ def coverage_map(airframe: Airframe, installation: Installation, service: Servic
         region_text=region_text(requirement(service)), alt=alt)
 
 
-def blocked_sectors(airframe: Airframe, installation: Installation, service: Service | None,
-                    fraction: float = 0.5) -> tuple[tuple[float, float], ...]:
-    """Azimuth runs (start_deg, width_deg) where at least `fraction` of the required region is blocked in
-    level flight (the same measure as the coverage figure's worst sector), for the airframe drawing."""
+def blocked_sectors(airframe: Airframe, installation: Installation, service: Service | None
+                    ) -> tuple[tuple[float, float], ...]:
+    """Azimuth runs (start_deg, width_deg) blocked in level flight by the measure of the coverage figure's
+    worst sector (`compute.coverage.SECTOR_RULE`: every direction of a horizon band, half the solid angle
+    of a sky or ground region), for the airframe drawing."""
     if service is None or requirement(service) is None:
         return ()
+    fraction = SECTOR_RULE[requirement(service).region][0]
     level, _, region = map_grids(airframe, installation, service)
     region = np.asarray(region)
     weight = np.cos(np.radians(level.el_deg))[:, None] * region

@@ -26,9 +26,11 @@ CHANGES_NAV = ("changes", "Changes", "changes.html")
 
 
 def environment() -> jinja2.Environment:
-    """Autoescaping on, undefined variables fail loudly."""
+    """Autoescaping on, undefined variables fail loudly; templates are read once per process (a build
+    never edits them, and checking each file's time for every page cost more than some pages)."""
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(TEMPLATE_DIR),
+        auto_reload=False,
         autoescape=True,
         undefined=jinja2.StrictUndefined,
         keep_trailing_newline=True,

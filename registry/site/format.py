@@ -1,6 +1,7 @@
 """The site's one set of text formatters: numbers, register values, bands, locations and notes."""
 from __future__ import annotations
 
+import functools
 import math
 import re
 from typing import Any, Iterable
@@ -79,8 +80,10 @@ def location_text(location: Any, unit: str, separator: str = " · ") -> str:
                            f"WL {exact(location.wl)} {unit}"))
 
 
+@functools.lru_cache(maxsize=4096)
 def notes_html(text: str) -> str:
-    """Markdown notes to HTML, sanitised with an allow-list: no scripts, handlers, images or odd links."""
+    """Markdown notes to HTML, sanitised with an allow-list: no scripts, handlers, images or odd links.
+    Kept per text in each process: a fleet repeats its notes from aircraft to aircraft."""
     if not text.strip():
         return ""
     raw = markdown.markdown(text, extensions=["tables", "sane_lists"], output_format="html")

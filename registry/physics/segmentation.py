@@ -39,6 +39,7 @@ import numpy as np
 
 from registry.physics import kinds as _kinds
 from registry.physics.wire import Wire, build_structure, solve_structure
+from registry.physics.wire_path import folded_dipole_solver
 from registry.core.units import C_M_PER_S
 
 START_SEGMENTS_PER_WAVELENGTH = 24
@@ -48,6 +49,7 @@ END_CAP_RADII = 0.25
 MAX_RADIUS_WAVELENGTHS = 0.01
 MIN_LENGTH_WAVELENGTHS = 1e-3
 MAX_BASIS = 800
+FOLDED_BASIS_SHARE = 2  # a loop unknown costs about twice a straight one (numerical integration, memory)
 CONVERGENCE = 0.01
 MAX_REFINEMENTS = 3
 
@@ -60,9 +62,10 @@ class Unmodellable(ValueError):
 class WireLayout:
     """Elements of a wire antenna: lengths (m) along z, x positions (m), one radius (m), the fed element.
 
-    For a monopole the layout is its image dipole; for a folded dipole the equivalent dipole of its antenna
-    mode (see impedance.py). end_cap_m: how much each free end is lengthened (END_CAP_RADII radii);
-    conductor_radius_m: the real conductors' radius when radius_m is an equivalent one (folded dipole).
+    For a monopole the layout is its image dipole. A folded dipole's one element stands for its closed loop
+    (both conductors and the two end wires, wire_path.py): radius_m is the thicker conductor's radius,
+    spacing_m the centre-to-centre spacing, fed_radius_m and other_radius_m the radii of the fed and the
+    other conductor. end_cap_m: how much each free end is lengthened (END_CAP_RADII radii).
     """
 
     kind: str
@@ -71,7 +74,9 @@ class WireLayout:
     radius_m: float
     driven: int
     end_cap_m: float = 0.0
-    conductor_radius_m: float | None = None
+    spacing_m: float = 0.0
+    fed_radius_m: float = 0.0
+    other_radius_m: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -107,11 +112,13 @@ def wire_layout(kind: str, g: dict) -> WireLayout:
         a = g["diameter_m"] / 2
         return WireLayout(kind, (2 * g["height_m"],), (0.0,), a, 0, END_CAP_RADII * a)
     if kind == "folded_dipole":
-        a, s = g["diameter_m"] / 2, g["spacing_m"]
-        if not s > 2 * a:
-            raise Unmodellable(f"folded dipole: the conductors touch (spacing {s:g} m is not more than the "
-                               f"wire diameter {2 * a:g} m)")
-        return WireLayout(kind, (g["length_m"],), (0.0,), math.sqrt(a * s), 0, 0.0, a)
+        a_fed = g["diameter_m"] / 2
+        a_other = (g.get("diameter_other_m") or g["diameter_m"]) / 2
+        s = g["spacing_m"]
+        if not s > a_fed + a_other:
+            raise Unmodellable(f"folded dipole: the conductors touch (spacing {s:g} m is not more than the sum "
+                               f"of their radii, {a_fed + a_other:g} m)")
+        return WireLayout(kind, (g["length_m"],), (0.0,), max(a_fed, a_other), 0, 0.0, s, a_fed, a_other)
     if kind == "yagi":
         lengths, positions = g["element_lengths_m"], g["element_positions_m"]
         if len(lengths) != len(positions) or len(lengths) < 2:
@@ -130,7 +137,7 @@ def wire_layout(kind: str, g: dict) -> WireLayout:
 def check_modellable(layout: WireLayout, freq_low_hz: float, freq_high_hz: float) -> None:
     """Raise Unmodellable when the thin-wire model does not apply between the two frequencies (Hz)."""
     name = layout.kind.replace("_", " ")
-    a = layout.radius_m if layout.conductor_radius_m is None else layout.conductor_radius_m
+    a = layout.radius_m
     lam_high = C_M_PER_S / freq_high_hz
     if a > MAX_RADIUS_WAVELENGTHS * lam_high:
         raise Unmodellable(
@@ -164,11 +171,11 @@ def count_bounds(layout: WireLayout, freq_high_hz: float) -> tuple[tuple[int, ..
             f"{name}: at {freq_high_hz / 1e6:.6g} MHz segments would have to be shorter than "
             f"{MIN_SEGMENT_RADII:g} wire radii ({layout.radius_m:.4g} m): the wire is too thick against the "
             "wavelength for the thin-wire model")
-    if sum(n - 1 for n in fewest) > MAX_BASIS:
+    if basis_count(layout, fewest) > MAX_BASIS:
         raise Unmodellable(
             f"{name}: the elements are {max(layout.lengths_m) / lam:.4g} wavelengths long at "
-            f"{freq_high_hz / 1e6:.6g} MHz and would need {sum(fewest)} segments, more than the solver's "
-            f"limit of {MAX_BASIS}")
+            f"{freq_high_hz / 1e6:.6g} MHz and would need {basis_count(layout, fewest)} basis functions, more "
+            f"than the solver's limit of {MAX_BASIS}")
     return fewest, most
 
 
@@ -179,8 +186,28 @@ def build_wires(layout: WireLayout, per_wire) -> tuple[Wire, ...]:
                  for length, x, n in zip(layout.lengths_m, layout.x_m, per_wire))
 
 
+def end_wire_segments(layout: WireLayout, n_conductor: int) -> int:
+    """Segments on each end wire of a folded dipole: none longer than the conductors' segments."""
+    return max(1, math.ceil(layout.spacing_m / (layout.lengths_m[0] / n_conductor) - 1e-9))
+
+
+def basis_count(layout: WireLayout, per_wire) -> int:
+    """Unknowns of the moment-method system: n - 1 per straight element; a folded dipole's closed loop has
+    one per segment (both conductors and both end wires), each counted FOLDED_BASIS_SHARE times."""
+    if layout.kind == "folded_dipole":
+        n = int(per_wire[0])
+        return FOLDED_BASIS_SHARE * 2 * (n + end_wire_segments(layout, n))
+    return sum(int(n) - 1 for n in per_wire)
+
+
 def feed_impedance_ohm(layout: WireLayout, per_wire, freqs_hz):
-    """Feed-point impedance (ohm) of the layout's wires (centre delta gap on the driven element) and the solution."""
+    """Feed-point impedance (ohm) of the layout's wires (centre delta gap on the driven element) and the
+    solution (wire.WireSolution; None for a folded dipole, whose loop is solved by wire_path.py)."""
+    if layout.kind == "folded_dipole":
+        n = int(per_wire[0])
+        solver = folded_dipole_solver(layout.lengths_m[0], layout.spacing_m, layout.fed_radius_m,
+                                      layout.other_radius_m, n, end_wire_segments(layout, n))
+        return solver.feed_impedance_ohm(freqs_hz), None
     structure = build_structure(build_wires(layout, per_wire))
     solution = solve_structure(structure, structure.centre_basis(layout.driven), freqs_hz)
     return solution.z_in_ohm, solution
@@ -207,7 +234,7 @@ def converged_segments(layout: WireLayout, freq_hz: float) -> Segmentation:
         if finer == counts:
             stopped_by = "segment length limit"
             return Segmentation(counts, freq_hz, level - 1, change, False, stopped_by)
-        if sum(n - 1 for n in finer) > MAX_BASIS:
+        if basis_count(layout, finer) > MAX_BASIS:
             return Segmentation(counts, freq_hz, level - 1, change, False, "segment budget")
         z = abs(feed_impedance_ohm(layout, finer, [freq_hz])[0][0])
         change = abs(z - z_prev) / max(z, z_prev)

@@ -190,16 +190,16 @@ def resonant_length_rule(freq_hz: float, diameter_m: float, element: str = "half
     return ResonantLength(length, length / free, method, image * length / diameter_m)
 
 
-def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: float) -> ResonantLength:
-    """Resonant length (m) of a folded dipole of two equal conductors (diameter D, centre spacing s).
+def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: float,
+                                diameter_other_m: float = 0.0) -> ResonantLength:
+    """Resonant length (m) of a folded dipole: fed conductor diameter D, the other diameter_other_m (0: D),
+    centre spacing s.
 
     Found where the folded dipole's modelled input reactance crosses zero at freq_hz (Brent's method on
-    impedance.solve_wire_antenna('folded_dipole', ...): the antenna mode is the moment-method dipole of
-    equivalent radius sqrt(a s), the transmission-line mode a shorted two-wire stub of
-    Z0 = (eta/pi) acosh(s / 2a); see impedance.py for the sources). The spacing and the conductors'
-    radius both enter through those two modes. method is 'MoM+TL'; length_to_diameter is L over the
-    equivalent diameter 2 sqrt(a s). Raises segmentation.Unmodellable where the model does not apply.
-    Measured against NEC-2 models with both conductors and their end wires: 1-3 % long (tests).
+    impedance.solve_wire_antenna('folded_dipole', ...): the closed loop of both conductors and both end
+    wires solved by the moment method, wire_path.py). The spacing and both radii enter through that model.
+    method is 'loop'; length_to_diameter is L / D. Raises segmentation.Unmodellable where the model does not
+    apply. Within 0.2 % of NEC-2 models with both conductors and their end wires (tests).
     """
     from scipy.optimize import brentq
 
@@ -207,9 +207,10 @@ def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: fl
     from registry.physics.segmentation import Unmodellable
 
     free = free_space_length_m(freq_hz, "half_wave")
+    base = {"diameter_m": diameter_m, "spacing_m": spacing_m, "diameter_other_m": diameter_other_m}
 
     def reactance(length):
-        g = {"length_m": length, "diameter_m": diameter_m, "spacing_m": spacing_m}
+        g = {"length_m": length, **base}
         return float(solve_wire_antenna("folded_dipole", g, [freq_hz], design_hz=freq_hz).z_in_ohm[0].imag)
 
     lo, hi = 0.8 * free, 1.04 * free
@@ -217,5 +218,4 @@ def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: fl
         raise Unmodellable(f"folded dipole: no series resonance between {lo:.4g} m and {hi:.4g} m at "
                            f"{freq_hz / 1e6:.6g} MHz for {diameter_m:.4g} m conductors {spacing_m:.4g} m apart")
     length = float(brentq(reactance, lo, hi, xtol=1e-6 * free))
-    equivalent_d = 2 * (diameter_m / 2 * spacing_m) ** 0.5
-    return ResonantLength(length, length / free, "MoM+TL", length / equivalent_d)
+    return ResonantLength(length, length / free, "loop", length / diameter_m)

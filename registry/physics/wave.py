@@ -203,15 +203,29 @@ def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: fl
     """
     from scipy.optimize import brentq
 
-    from registry.physics.impedance import solve_wire_antenna
+    from registry.physics import segmentation as seg
+    from registry.physics.kinds import canonical_geometry
     from registry.physics.segmentation import Unmodellable
 
     free = free_space_length_m(freq_hz, "half_wave")
     base = {"diameter_m": diameter_m, "spacing_m": spacing_m, "diameter_other_m": diameter_other_m}
 
+    def layout(length):
+        return seg.wire_layout("folded_dipole", dict(canonical_geometry("folded_dipole", {"length_m": length, **base})))
+
+    # one segmentation for the whole search: refined at the free-space half wave, kept within each length's
+    # bounds, so the reactance is a smooth function of the length and the loop's integrals are computed
+    # once per length, not once per refinement
+    reference = layout(0.95 * free)
+    seg.check_modellable(reference, freq_hz, freq_hz)
+    n_ref = seg.converged_segments(reference, float(freq_hz)).per_wire[0]
+
     def reactance(length):
-        g = {"length_m": length, **base}
-        return float(solve_wire_antenna("folded_dipole", g, [freq_hz], design_hz=freq_hz).z_in_ohm[0].imag)
+        lay = layout(length)
+        seg.check_modellable(lay, freq_hz, freq_hz)
+        fewest, most = seg.count_bounds(lay, freq_hz)
+        n = min(max(n_ref, fewest[0]), most[0])
+        return float(seg.feed_impedance_ohm(lay, (n,), [freq_hz])[0][0].imag)
 
     lo, hi = 0.8 * free, 1.04 * free
     if not reactance(lo) < 0 < reactance(hi):

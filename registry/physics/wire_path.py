@@ -40,8 +40,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from registry.core.units import C_M_PER_S, ETA0
+from registry.physics.wire import single_thread_blas
 
-SMOOTH_POINTS = 3  # Gauss points per segment for the smooth part of the kernel
+SMOOTH_POINTS = 2  # Gauss points per segment for the smooth part of the kernel
 STATIC_POINTS = 10  # Gauss points per segment on the outer integral of the static part
 FEED_GAP_RADII = 4.0  # width of the feed gap in radii of the fed conductor (see the module docstring)
 GAP_SAMPLES = 64  # midpoint samples of the gap when averaging the basis functions over it
@@ -152,12 +153,16 @@ def smooth_integrals(geo: PathGeometry, pair_r: np.ndarray, k: float) -> np.ndar
     """(4, S, S) like static_integrals for the smooth kernel (e^{-jkR} - 1)/(4 pi R); pair_r from _pair_distance."""
     x, w = _gauss01(SMOOTH_POINTS)
     n_seg = geo.lengths.size
-    h = np.expm1(-1j * k * pair_r) / (4 * np.pi * pair_r)
-    h = h.reshape(n_seg, SMOOTH_POINTS, n_seg, SMOOTH_POINTS)
+    kr = k * pair_r
+    # e^{-jkR} - 1 = -2 sin²(kR/2) - j sin(kR), without the cancellation of 1 - cos at small kR
+    h = (-2 * np.sin(kr / 2) ** 2 - 1j * np.sin(kr)) / (4 * np.pi * pair_r)
+    h = h.reshape(n_seg * SMOOTH_POINTS, n_seg, SMOOTH_POINTS)
+    inner = np.stack([h @ w, h @ (w * x)])  # (2, S*n, S): source weights 1 and s'
+    inner = inner.reshape(2, n_seg, SMOOTH_POINTS, n_seg)
     scale = geo.lengths[:, None] * geo.lengths[None, :]
     out = np.empty((4, n_seg, n_seg), dtype=complex)
-    for i, (alpha, beta) in enumerate(((1, 1), (x, 1), (1, x), (x, x))):
-        out[i] = scale * np.einsum("g,h,pgqh->pq", w * alpha, w * beta, h)
+    for i, (alpha, beta) in enumerate(((w, 0), (w * x, 0), (w, 1), (w * x, 1))):
+        out[i] = scale * np.einsum("g,pgq->pq", alpha, inner[beta])
     return out
 
 
@@ -203,8 +208,9 @@ class PathSolver:
         freqs = np.atleast_1d(np.asarray(freqs_hz, dtype=float))
         v = feed_vector(self.geo)
         out = np.empty(freqs.size, dtype=complex)
-        for i, f in enumerate(freqs):
-            out[i] = 1.0 / (v @ np.linalg.solve(self.impedance_matrix(f), v.astype(complex)))
+        with single_thread_blas():
+            for i, f in enumerate(freqs):
+                out[i] = 1.0 / (v @ np.linalg.solve(self.impedance_matrix(f), v.astype(complex)))
         return out
 
 

@@ -118,10 +118,6 @@ def _nec_folded_z(length_m: float, radius_m: float, spacing_m: float, freq_hz: f
     return complex(ctx.get_input_parameters(0).get_impedance()[0])
 
 
-@pytest.mark.xfail(strict=True, reason="measured: the folded-dipole model (antenna mode at the equivalent radius "
-                                       "plus a transmission-line stub) resonates 1.7 % long (0.4149 m against "
-                                       "NEC-2's 0.4079 m with both conductors and end wires) for the demo's "
-                                       "glide-slope element; a model with both conductors is not built yet")
 def test_site_folded_dipole_resonant_length_within_1_percent_of_nec2(demo_fleet):
     """Issue 12: folded dipoles' resonant length within 1 % of NEC-2 (the demo's TCA-332-GSF at 332 MHz)."""
     installation = demo_fleet.aircraft["qx-tca"].installations["GS"]
@@ -136,8 +132,6 @@ def test_site_folded_dipole_resonant_length_within_1_percent_of_nec2(demo_fleet)
     assert figures[FK.LENGTH_RESONANT_M].value == pytest.approx(l_nec, rel=0.01)
 
 
-@pytest.mark.xfail(strict=True, reason="measured: |Z| 7.5 % below NEC-2's (309.9 against 335.0 ohm) for the demo's "
-                                       "glide-slope element as installed, at 332 MHz")
 def test_site_folded_dipole_impedance_within_5_percent_of_nec2(demo_fleet):
     """Issue 12: folded dipoles' |Z| within 5 % of NEC-2 (TCA-332-GSF as installed, at the ILS glide-slope
     design frequency, through compute.antenna.impedance_sweep as the site calls it)."""

@@ -10,7 +10,7 @@ Tolerances used in this file (stated once, applied below):
     (delta gap at a node vs. NEC's field applied over one segment) and NEC's own value still climbs by
     a few ohm as its segments shrink, so a reactance offset is the honest measure here.
   * Yagi forward gain: 0.3 dB; Yagi front-to-back ratio: 1.0 dB (deep nulls are segmentation-sensitive)
-  * folded dipole (transmission-line model vs. NEC's explicit end wires): R within 5 %, X within 15 % of |Z|
+  * folded dipole (our closed loop vs. NEC's explicit conductors and end wires): |Z - Z_nec| within 5 % of |Z_nec|
 NEC models use the thin-wire kernel, segment length > 8 radii, centre (or base) segment voltage source.
 Geometries and frequencies are our own.
 """
@@ -128,7 +128,7 @@ def test_yagi_gain_front_to_back_and_impedance_match_nec2(name):
     assert m.peak_phi_deg == pytest.approx(0.0, abs=1.0) or m.peak_phi_deg == pytest.approx(360.0, abs=1.0)
 
 
-def test_folded_dipole_transmission_line_model_against_nec2():
+def test_folded_dipole_loop_against_nec2():
     radius, spacing = 0.0015, 0.03
     for length in (0.46 * LAM, 0.48 * LAM):
         nseg = 21
@@ -145,8 +145,7 @@ def test_folded_dipole_transmission_line_model_against_nec2():
         z_nec = ctx.get_input_parameters(0).get_impedance()[0]
         z = solve_wire_antenna("folded_dipole", {"length_m": length, "diameter_m": 2 * radius,
                                                  "spacing_m": spacing}, [F0]).z_in_ohm[0]
-        assert z.real == pytest.approx(z_nec.real, rel=0.05)
-        assert abs(z.imag - z_nec.imag) <= 0.15 * abs(z_nec)
+        assert abs(z - z_nec) <= 0.05 * abs(z_nec)
 
 
 def test_single_pws_basis_reproduces_the_induced_emf_impedance():

@@ -23,7 +23,8 @@ REQUIRED = "required"
 KIND_PARAMETERS: dict[str, dict[str, object]] = {
     "dipole": {"length_m": REQUIRED, "diameter_m": REQUIRED, "segments": 0},
     "monopole": {"height_m": REQUIRED, "diameter_m": REQUIRED, "segments": 0},
-    "folded_dipole": {"length_m": REQUIRED, "diameter_m": REQUIRED, "spacing_m": REQUIRED, "segments": 0},
+    "folded_dipole": {"length_m": REQUIRED, "diameter_m": REQUIRED, "spacing_m": REQUIRED, "segments": 0,
+                      "diameter_other_m": 0.0},  # the second (unfed) conductor's diameter; 0: as diameter_m
     "small_loop": {"diameter_m": REQUIRED},
     "yagi": {
         "element_lengths_m": REQUIRED,

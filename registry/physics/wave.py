@@ -190,32 +190,46 @@ def resonant_length_rule(freq_hz: float, diameter_m: float, element: str = "half
     return ResonantLength(length, length / free, method, image * length / diameter_m)
 
 
-def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: float) -> ResonantLength:
-    """Resonant length (m) of a folded dipole of two equal conductors (diameter D, centre spacing s).
+def folded_resonant_length_rule(freq_hz: float, diameter_m: float, spacing_m: float,
+                                diameter_other_m: float = 0.0) -> ResonantLength:
+    """Resonant length (m) of a folded dipole: fed conductor diameter D, the other diameter_other_m (0: D),
+    centre spacing s.
 
     Found where the folded dipole's modelled input reactance crosses zero at freq_hz (Brent's method on
-    impedance.solve_wire_antenna('folded_dipole', ...): the antenna mode is the moment-method dipole of
-    equivalent radius sqrt(a s), the transmission-line mode a shorted two-wire stub of
-    Z0 = (eta/pi) acosh(s / 2a); see impedance.py for the sources). The spacing and the conductors'
-    radius both enter through those two modes. method is 'MoM+TL'; length_to_diameter is L over the
-    equivalent diameter 2 sqrt(a s). Raises segmentation.Unmodellable where the model does not apply.
-    Measured against NEC-2 models with both conductors and their end wires: 1-3 % long (tests).
+    impedance.solve_wire_antenna('folded_dipole', ...): the closed loop of both conductors and both end
+    wires solved by the moment method, wire_path.py). The spacing and both radii enter through that model.
+    method is 'loop'; length_to_diameter is L / D. Raises segmentation.Unmodellable where the model does not
+    apply. Within 0.2 % of NEC-2 models with both conductors and their end wires (tests).
     """
     from scipy.optimize import brentq
 
-    from registry.physics.impedance import solve_wire_antenna
+    from registry.physics import segmentation as seg
+    from registry.physics.kinds import canonical_geometry
     from registry.physics.segmentation import Unmodellable
 
     free = free_space_length_m(freq_hz, "half_wave")
+    base = {"diameter_m": diameter_m, "spacing_m": spacing_m, "diameter_other_m": diameter_other_m}
+
+    def layout(length):
+        return seg.wire_layout("folded_dipole", dict(canonical_geometry("folded_dipole", {"length_m": length, **base})))
+
+    # one segmentation for the whole search: refined at the free-space half wave, kept within each length's
+    # bounds, so the reactance is a smooth function of the length and the loop's integrals are computed
+    # once per length, not once per refinement
+    reference = layout(0.95 * free)
+    seg.check_modellable(reference, freq_hz, freq_hz)
+    n_ref = seg.converged_segments(reference, float(freq_hz)).per_wire[0]
 
     def reactance(length):
-        g = {"length_m": length, "diameter_m": diameter_m, "spacing_m": spacing_m}
-        return float(solve_wire_antenna("folded_dipole", g, [freq_hz], design_hz=freq_hz).z_in_ohm[0].imag)
+        lay = layout(length)
+        seg.check_modellable(lay, freq_hz, freq_hz)
+        fewest, most = seg.count_bounds(lay, freq_hz)
+        n = min(max(n_ref, fewest[0]), most[0])
+        return float(seg.feed_impedance_ohm(lay, (n,), [freq_hz])[0][0].imag)
 
     lo, hi = 0.8 * free, 1.04 * free
     if not reactance(lo) < 0 < reactance(hi):
         raise Unmodellable(f"folded dipole: no series resonance between {lo:.4g} m and {hi:.4g} m at "
                            f"{freq_hz / 1e6:.6g} MHz for {diameter_m:.4g} m conductors {spacing_m:.4g} m apart")
     length = float(brentq(reactance, lo, hi, xtol=1e-6 * free))
-    equivalent_d = 2 * (diameter_m / 2 * spacing_m) ** 0.5
-    return ResonantLength(length, length / free, "MoM+TL", length / equivalent_d)
+    return ResonantLength(length, length / free, "loop", length / diameter_m)

@@ -36,7 +36,8 @@ def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
     _TASK = task
     try:
         with multiprocessing.get_context("fork").Pool(workers) as pool:
-            for result in pool.imap(_run, items, chunksize=max(1, len(items) // (workers * 8))):
+            # small chunks: the last ones finish close together, so no worker idles long at the end
+            for result in pool.imap(_run, items, chunksize=max(1, len(items) // (workers * 32))):
                 yield result
                 progress.advance()
     finally:

@@ -160,7 +160,7 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
             else:
                 outcome, site, pieces = _compute_then_render(plan, info, baseline, cache_root, naive, incremental,
                                                              write, workers, progress)
-            write(record.RECORD_NAME, record.to_text(outcome))
+            publish.place_chunks(stage, target, record.RECORD_NAME, record.to_chunks(outcome))
             outcome.results.records.clear()  # written: not held twice
             pages = render.finish_site(site, outcome.discrepancies, pieces, workers, progress)
             for rel_path, content in pages.items():

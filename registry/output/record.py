@@ -166,6 +166,11 @@ def to_record(outcome) -> dict[str, Any]:
 
 
 def to_text(outcome) -> str:
+    """The record of one pipeline run as one text (`to_chunks`, joined)."""
+    return "".join(to_chunks(outcome))
+
+
+def to_chunks(outcome) -> Chunks:
     """The record of one pipeline run (`pipeline.Outcome`) as the JSON text `dumps` would give, but for
     line breaks: each aircraft's share of a per-aircraft map (the registry's aircraft, the installation,
     pair and co-site figures) is on a line of its own, so that two records can be compared aircraft by
@@ -173,7 +178,8 @@ def to_text(outcome) -> str:
 
     Each aircraft's share is taken as text (`ShareText`, made where it was computed) and joined in the
     order `dumps` sorts keys: registry.aircraft by id, and the installation and pair maps (keys
-    `<aircraft>/...`) by `<aircraft>/`, which orders them as the whole keys would be."""
+    `<aircraft>/...`) by `<aircraft>/`, which orders them as the whole keys would be. In pieces, to be
+    written one after the other (`to_text` joins them)."""
     fleet, results = outcome.fleet, outcome.results
     data_dir = Path(fleet.data_dir)
     shares: dict[str, ShareText] = {}
@@ -219,7 +225,7 @@ def to_text(outcome) -> str:
                                        for review in outcome.stale_reviews), key=lambda entry: entry["discrepancy"])),
     })
     text.append("\n")
-    return "".join(text)
+    return text
 
 
 def _json(value: Any) -> str:

@@ -16,6 +16,7 @@ from __future__ import annotations
 import contextlib
 import fcntl
 import json
+import filecmp
 import os
 import re
 import shutil
@@ -133,6 +134,24 @@ def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse
             out.write(data)
     except FileExistsError:  # written already by another worker: files named by content, same bytes
         pass
+
+
+def place_chunks(stage: Path, out_dir: Path, rel_path: str, chunks: list[str]) -> None:
+    """`place` for a file given as text in pieces (the build record): written piece by piece, never held
+    whole, then replaced by a hard link to the previous site's file when the two are byte-identical."""
+    target = os.path.join(stage, rel_path)
+    os.makedirs(os.path.dirname(target), exist_ok=True)
+    with open(target, "xb") as out:
+        for chunk in chunks:
+            out.write(chunk.encode("utf-8"))
+    old = os.path.join(out_dir, rel_path)
+    try:
+        if os.path.isfile(old) and filecmp.cmp(old, target, shallow=False):
+            os.unlink(target)
+            os.link(old, target)
+    except OSError:  # no link across file systems: the written copy stays
+        if not os.path.exists(target):
+            shutil.copyfile(old, target)
 
 
 _MADE: set[str] = set()

@@ -143,7 +143,8 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
 
 def cosite_details(craft, cosite, wanted) -> list[str]:
     """One aircraft's co-site paths for `check --details`: each harmonic that lands with its margin's
-    arithmetic, the pairs a suppression line excuses, and the intermodulation products (located only)."""
+    arithmetic, the pairs a suppression line excuses, the intermodulation products with their margins'
+    arithmetic, and the installations not analysed as receivers (no protection threshold)."""
     lines = []
     for path in cosite.paths:
         if not wanted(path.tx_service, path.rx_service):
@@ -160,9 +161,15 @@ def cosite_details(craft, cosite, wanted) -> list[str]:
         lines.append("")
     products = [item for item in cosite.intermod if not item.excused_by]
     if products:
-        lines.append(f"{craft.registration} intermodulation (located only: no level model, no margin)")
+        lines.append(f"{craft.registration} intermodulation (transmitter intermodulation, conversion-loss model)")
         for item in products:
+            margin = next((f for f in item.figures if f.key == "cosite.margin_db"), None)
             lines.append(f"  {item.tx_a} + {item.tx_b} → {item.rx}: {item.product} (order {item.order}) at "
-                         f"{item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz")
+                         f"{item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz, made in {item.generator}: "
+                         + (f"margin {format_value(margin)}" if margin is not None else "no level"))
+            for figure in item.figures if margin is not None else ():
+                lines.append(f"    {figure.label:<50} {format_value(figure)}")
         lines.append("")
-    return lines
+    lines += [f"{craft.registration} co-site not analysed: {position} ({service}): no protection threshold in the "
+              f"service table or policy" for position, service in cosite.not_analysed]
+    return lines + ([""] if cosite.not_analysed else [])

@@ -159,7 +159,10 @@ def cosite_details(craft, cosite, wanted) -> list[str]:
             for figure in hit.figures:
                 lines.append(f"    {figure.label:<50} {format_value(figure)}")
         lines.append("")
-    products = [item for item in cosite.intermod if not item.excused_by]
+    service = lambda position: craft.installations[position].service  # noqa: E731
+    products = [item for item in cosite.intermod
+                if not item.excused_by and wanted(service(item.tx_a), service(item.tx_b), service(item.rx))]
+    not_analysed = [(position, name) for position, name in cosite.not_analysed if wanted(name)]
     if products:
         lines.append(f"{craft.registration} intermodulation (transmitter intermodulation, conversion-loss model)")
         for item in products:
@@ -170,6 +173,6 @@ def cosite_details(craft, cosite, wanted) -> list[str]:
             for figure in item.figures if margin is not None else ():
                 lines.append(f"    {figure.label:<50} {format_value(figure)}")
         lines.append("")
-    lines += [f"{craft.registration} co-site not analysed: {position} ({service}): no protection threshold in the "
-              f"service table or policy" for position, service in cosite.not_analysed]
-    return lines + ([""] if cosite.not_analysed else [])
+    lines += [f"{craft.registration} co-site not analysed: {position} ({name}): no protection threshold in the "
+              f"service table or policy" for position, name in not_analysed]
+    return lines + ([""] if not_analysed else [])

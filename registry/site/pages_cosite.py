@@ -52,7 +52,7 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
                 airframe=data.fleet.airframe_of(aircraft), type_href=type_cosite_path(aircraft.airframe),
                 max_order=data.fleet.policy.cosite_max_harmonic_order,
                 chart=frequency_chart(cosite),
-                intermod=[intermod_view(item, small, notes) for item in products[:INTERMOD_SHOWN]],
+                intermod=[intermod_view(item, small, notes, n) for n, item in enumerate(products[:INTERMOD_SHOWN])],
                 intermod_more=max(0, len(products) - INTERMOD_SHOWN),
                 intermod_unrated=sum(1 for item in products if item.margin_db is None),
                 not_analysed=cosite.not_analysed,
@@ -162,14 +162,14 @@ def intermod_order(item: CositeIntermod) -> tuple:
     return (item.margin_db is None, item.margin_db or 0.0, item.tx_a, item.tx_b, item.rx, item.product)
 
 
-def intermod_view(item: CositeIntermod, small_db: float, notes: Notes) -> dict[str, Any]:
+def intermod_view(item: CositeIntermod, small_db: float, notes: Notes, number: int) -> dict[str, Any]:
     """One product's row: where it lands, which transmitter makes it, its margin and its arithmetic."""
     margin = item.margin_db
     state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db else "ok")
     missing = [f.label for f in item.figures if f.value is None]
     text = (format_value(next(f for f in item.figures if f.key == FK.COSITE_MARGIN_DB)) if margin is not None
             else "no level" + (f" ({'; '.join(missing)}: not given)" if missing else ""))
-    return {"item": item, "state": state, "text": text, "id": f"im-{item.tx_a}-{item.tx_b}-{item.rx}-{item.order}",
+    return {"item": item, "state": state, "text": text, "id": f"im-{number + 1}",
             "figures": figure_views(item.figures, notes) if margin is not None else [],
             "sum": intermod_arithmetic(item.figures)}
 

@@ -142,3 +142,19 @@ def test_products_without_a_conversion_loss_say_so(demo_fleet, tja):
     assert made_in_vhf and all(i.margin_db is None for i in made_in_vhf)
     missing = {f.label for f in made_in_vhf[0].figures if f.value is None}
     assert any(label.startswith("Conversion loss of VHF") for label in missing)
+
+
+def test_record_carries_the_worst_intermod_margin_per_maker_and_receiver(tja):
+    """The record's co-site entry `<aircraft>/<maker>+<receiver>` holds, per order, the lowest margin of
+    the products that transmitter makes in that receiver, so `diff` shows what a new radio breaks."""
+    from registry.output import record
+
+    out = record.cosite_record(tja.cosite)
+    rated = [i for i in tja.cosite.intermod if i.margin_db is not None and not i.excused_by]
+    for order in (3, 5):
+        of_order = [i for i in rated if i.order == order]
+        assert of_order
+        worst = min(of_order, key=lambda i: i.margin_db)
+        entry = out[f"qx-tja/{worst.generator}+{worst.rx}"]
+        assert entry["tx"] == worst.generator and entry["rx"] == worst.rx
+        assert entry["figures"][f"cosite.margin_db.im{order}"]["value"] == pytest.approx(worst.margin_db, abs=1e-3)

@@ -148,3 +148,33 @@ def test_intermod_margins_on_the_page_agree_with_check_details(demo_site, capsys
             assert details[key] == f"margin {shown.strip()}"
             margins.append(float(shown.split()[0]))
     assert margins == sorted(margins) and margins
+
+
+def test_methods_page_lays_out_the_cosite_method_with_sources_and_standing(demo_site):
+    """The methods page has the co-site method step by step, each with its source and standing (the
+    transmitter-intermodulation model marked common practice, no source, with the document to check), and
+    the policy's co-site figures among the thresholds in force."""
+    html = (demo_site / "methods.html").read_text(encoding="utf-8")
+    section = html[html.index('<h2 id="cosite">'):html.index('<h2 id="checks">')]
+    for step in ("Harmonic frequencies", "Intermodulation frequencies", "Coupling between two antennas",
+                 "Level at the victim", "Margin", "Transmitter intermodulation"):
+        assert f"<th scope=\"row\">{step}</th>" in section
+    assert "ITU-R SM.329-13 §1.1.1" in section and "ITU-R SM.1134-1" in section
+    assert "common practice, no source" in section and "antenna&#39;s port" in section
+    assert "dme.im5_conversion_loss_db = 90 (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in html
+
+
+def test_search_index_holds_the_interference_pages(demo_fleet, demo_site):
+    """Each aircraft's interference page and each airframe type's are in the search index; an aircraft's
+    entry names as not analysed exactly the installations the co-site analysis leaves out."""
+    text = (demo_site / "static" / "search-index.js").read_text(encoding="utf-8")
+    entries = json.loads(text[text.index("=") + 1:].strip().rstrip(";"))
+    pages = {e["url"]: e for e in entries if e["kind"] == "interference"}
+    for aircraft in demo_fleet.aircraft.values():
+        assert f"aircraft/{aircraft.id}/interference.html" in pages
+        assert (demo_site / "aircraft" / aircraft.id / "interference.html").is_file()
+    assert "interference/tj-88.html" in pages and (demo_site / "interference" / "tj-88.html").is_file()
+    part, _ = compute_aircraft(demo_fleet, demo_fleet.aircraft["qx-tja"], AS_OF)
+    entry = pages["aircraft/qx-tja/interference.html"]
+    listed = re.search(r"not analysed \(no protection threshold\) ([^·]+)", entry["text"]).group(1).strip()
+    assert set(listed.split(", ")) == {position for position, _ in part.cosite.not_analysed}

@@ -16,7 +16,7 @@ from __future__ import annotations
 from functools import lru_cache
 
 from registry.compute.cosite_intermod import intermod_products
-from registry.compute.cosite_sides import (COORD_UNITS, MARGIN_SOURCE, Geometry, Side, coupling_figures,
+from registry.compute.cosite_sides import (COORD_UNITS, FRIIS, MARGIN_SOURCE, Geometry, Side, coupling_figures,
                                           feeder_figure, figure_of, level_figures, receive_figures)
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft, Fleet
@@ -91,3 +91,26 @@ def _harmonic_hits(band: tuple[float, float], step_khz: float, victim: tuple[flo
                      for h in cosite.channel_harmonic_hits((band[0], band[1], step_khz), victim, order_limit))
     return tuple((h.order, h.tx_lo_mhz, h.tx_hi_mhz, 0, h.product_lo_mhz, h.product_hi_mhz)
                  for h in cosite.harmonic_hits(band, victim, order_limit))
+
+
+METHODS = (
+    ("Harmonic frequencies", "n·f over the transmit range, n = 2 … the order limit; channels k with "
+     "v_lo ≤ n·(f_first + k·Δ) ≤ v_hi", "ITU-R SM.329-13 §1.1.1 (harmonic emissions at whole multiples of the "
+     "carrier); channel grid of EUROCAE ED-23C (8.33 kHz = 25 kHz / 3)", "sourced"),
+    ("Intermodulation frequencies", "a·f1 + b·f2, |a| + |b| = 3 or 5, over both transmit ranges (interval "
+     "arithmetic)", "ITU-R SM.329-13 §1.1.3 (intermodulation products)", "sourced"),
+    ("Coupling between two antennas", "C = −20·log₁₀(4πd/λ) (isotropic, free space, no shadowing), or the pair's "
+     "isolation scaled by 20·log₁₀(f/f_pair)", FRIIS, "sourced; the isotropic, unshadowed path is an assumption"),
+    ("Level at the victim", "P + E − L_tx + C − L_rx at the receiver's input; P + E − L_tx + C at the antenna's "
+     "port, for a threshold stated there", MARGIN_SOURCE, "sourced (the form); the plane is the threshold's own"),
+    ("Margin", "threshold − level; below 0 dB: `cosite`; below the policy's small margin: `cosite-small`",
+     MARGIN_SOURCE, "sourced (the form); the small margin is the policy's"),
+    ("Transmitter intermodulation", "product = P_I − L_I + C_IG − L_G − L_conv at the port of the transmitter "
+     "with the larger coefficient; then as a harmonic of it (emission 0 dBc)", "check against ITU-R SM.1134-1 "
+     "Annex 1 §4 (power of transmitter intermodulation products) and Report ITU-R SM.2021 §2.1",
+     "common practice, no source"),
+    ("Figures used", "the installed radio's own (`radio`), else the policy's (`cosite_services`), else the "
+     "service table's; each shown with its standing", "registry/data/services.yaml, policy.yaml",
+     "each figure's own"),
+)
+"""The co-site method step by step, as the methods page lists it: (step, formula, source, standing)."""

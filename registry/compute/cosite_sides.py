@@ -26,7 +26,7 @@ COORD_UNITS = {"in": "inch", "mm": "mm"}
 """The airframe's coordinate unit as the physics names it."""
 FRIIS = "Friis, Proc. IRE 34 (1946); free-space loss per ITU-R P.525"
 MARGIN_SOURCE = ("unwanted level as in CEPT wiki 'Example of calculations' §4.1 (iRSSunwanted, Eq. 20–21), "
-                 "with both feeders' losses")
+                 "with the feeders' losses up to the threshold's plane")
 
 
 

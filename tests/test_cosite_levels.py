@@ -72,7 +72,7 @@ def tja(demo_fleet):
 
 def test_a_demo_product_level_recomputed_from_the_registry(demo_fleet, tja):
     """QX-TJA DME2 + RA-TX → VHF1, 4·f1 − f2 (order 5, made in DME2): recomputed from the antennas'
-    STA/BL/WL, each installation's total feeder loss, the policy's 90 dB conversion loss and the service
+    STA/BL/WL, each installation's total feeder loss, the policy's 100 dB conversion loss and the service
     table's figures, with free-space coupling at the lowest frequency of each range (the check's stated
     assumption)."""
     item = next(i for i in tja.cosite.intermod if (i.tx_a, i.tx_b, i.rx, i.product) == ("DME2", "RA-TX", "VHF1",
@@ -86,7 +86,7 @@ def test_a_demo_product_level_recomputed_from_the_registry(demo_fleet, tja):
     loss = {p: tja.installations[("qx-tja", p)].figure(FK.FEEDER_TOTAL_LOSS_DB).value for p in where}
     ra_power = demo_fleet.services["radio_altimeter"].tx_peak_power_dbm
     coupled_in = ra_power - loss["RA-TX"] - _free_space_db(item.f2_mhz[0], d("RA-TX", "DME2")) - loss["DME2"]
-    product = coupled_in - 90.0
+    product = coupled_in - 100.0
     level = product - loss["DME2"] - _free_space_db(item.product_mhz[0], d("DME2", "VHF1")) - loss["VHF1"]
     margin = demo_fleet.services["vhf_com"].protection_dbm - level
     value = {f.key: f.value for f in item.figures}
@@ -129,10 +129,14 @@ def test_small_intermod_margin_is_the_lesser_finding(demo_fleet, tja):
     assert best_bad.margin_db > demo_fleet.policy.cosite_small_margin_db
     fleet = dataclasses.replace(demo_fleet, policy=dataclasses.replace(
         demo_fleet.policy, cosite_small_margin_db=best_bad.margin_db + 0.5))
-    pair = "+".join(sorted((best_bad.generator, best_bad.rx)))
+    ends = sorted((best_bad.generator, best_bad.rx))
+    on_pair = [i.margin_db for i in rated if sorted((i.generator, i.rx)) == ends]
+    on_pair += [h.margin_db for p in tja.cosite.paths if sorted((p.tx, p.rx)) == ends for h in p.hits
+                if h.margin_db is not None]  # harmonics on the same pair count too
     found = {item.id: item for item in cosite_discrepancies(fleet, tja.cosite)}
-    item = found[f"qx-tja/{pair}/cosite-small"]
-    assert item.severity == "concern" and item.value == pytest.approx(best_bad.margin_db, abs=1e-3)
+    item = found[f"qx-tja/{'+'.join(ends)}/cosite-small"]
+    assert item.severity == "concern" and item.value == pytest.approx(min(on_pair), abs=1e-3)
+    assert "made in" in item.message
 
 
 def test_products_without_a_conversion_loss_say_so(demo_fleet, tja):

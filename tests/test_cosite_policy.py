@@ -45,7 +45,7 @@ def test_policy_threshold_replaces_the_tables_and_names_its_line(demo_data, demo
     fleet = load_fleet(data)
     assert fleet.policy.cosite_services["gnss_l1"]["protection_dbm"] == (-130.0, "operator's choice: a test of the override")
     # the shipped table's other figures and the fleet's other policy entries are kept
-    assert fleet.policy.cosite_services["dme"]["im3_conversion_loss_db"][0] == 60.0
+    assert fleet.policy.cosite_services["dme"]["im3_conversion_loss_db"][0] == 70.0
     before, after = _worst(demo_fleet, "qx-tja", "VHF3", "GNSS1"), _worst(fleet, "qx-tja", "VHF3", "GNSS1")
     assert after.margin_db == pytest.approx(before.margin_db - 9.5, abs=1e-9)
     threshold = next(f for f in after.figures if f.key == "cosite.threshold_dbm")
@@ -101,12 +101,12 @@ def test_demo_policy_shows_as_policy_on_the_page_and_in_the_record(demo_site):
     """The operator's conversion losses (fleet_data/policy.yaml) are numbered on QX-TJA's page with the
     standing "policy", and the record's policy holds them with their sources."""
     html = (demo_site / "aircraft" / "qx-tja" / "interference.html").read_text(encoding="utf-8")
-    assert re.search(r'Conversion loss of DME2, order 5</th><td class="num">90 dB</td><td class="meta">'
+    assert re.search(r'Conversion loss of DME2, order 5</th><td class="num">100 dB</td><td class="meta">'
                      r'<a href="#note-\d+">\[\d+\]</a> policy', html)
     assert "policy: operator&#39;s choice: radio specification TCA-RS-12 §4.5" in html
     policy = json.loads((demo_site / "record.json").read_text(encoding="utf-8"))["registry"]["policy"]
     value, source = policy["cosite_services"]["dme"]["im5_conversion_loss_db"]
-    assert value == 90.0 and source.startswith("operator's choice: radio specification TCA-RS-12 §4.5")
+    assert value == 100.0 and source.startswith("operator's choice: radio specification TCA-RS-12 §4.5")
 
 
 def test_receivers_without_a_threshold_are_named_on_the_page_and_in_details(demo_fleet, demo_site, capsys):
@@ -161,7 +161,7 @@ def test_methods_page_lays_out_the_cosite_method_with_sources_and_standing(demo_
         assert f"<th scope=\"row\">{step}</th>" in section
     assert "ITU-R SM.329-13 §1.1.1" in section and "ITU-R SM.1134-1" in section
     assert "common practice, no source" in section and "antenna&#39;s port" in section
-    assert "dme.im5_conversion_loss_db = 90 (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in html
+    assert "dme.im5_conversion_loss_db = 100 (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in html
 
 
 def test_search_index_holds_the_interference_pages(demo_fleet, demo_site):

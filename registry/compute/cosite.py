@@ -103,13 +103,13 @@ METHODS = (
      "isolation scaled by 20·log₁₀(f/f_pair)", FRIIS, "sourced; the isotropic, unshadowed path is an assumption"),
     ("Level at the victim", "P + E − L_tx + C − L_rx at the receiver's input; P + E − L_tx + C at the antenna's "
      "port, for a threshold stated there", MARGIN_SOURCE, "sourced (the form); the plane is the threshold's own"),
-    ("Margin", "threshold − level; below 0 dB: `cosite`; below the policy's small margin: `cosite-small`",
+    ("Margin", "threshold − level; below 0 dB: cosite; below the policy's small margin: cosite-small",
      MARGIN_SOURCE, "sourced (the form); the small margin is the policy's"),
     ("Transmitter intermodulation", "product = P_I − L_I + C_IG − L_G − L_conv at the port of the transmitter "
      "with the larger coefficient; then as a harmonic of it (emission 0 dBc)", "check against ITU-R SM.1134-1 "
      "Annex 1 §4 (power of transmitter intermodulation products) and Report ITU-R SM.2021 §2.1",
      "common practice, no source"),
-    ("Figures used", "the installed radio's own (`radio`), else the policy's (`cosite_services`), else the "
+    ("Figures used", "the installed radio's own (radio), else the policy's (cosite_services), else the "
      "service table's; each shown with its standing", "registry/data/services.yaml, policy.yaml",
      "each figure's own"),
 )

@@ -36,6 +36,8 @@ FIGURE_KEYS = ("tx_bands_mhz", "tx_channel_steps_khz", "tx_peak_power_dbm", "spu
 """Every co-site figure of a service: the table gives it, the policy may replace it (`cosite_services`)."""
 RADIO_KEYS = ("tx_peak_power_dbm", "spurious_dbc", "protection_dbm")
 """The figures an installation's own `radio` may give, first of all."""
+PLANE_DEFAULT = ("common practice, no source: a protection threshold is taken at the receiver's input unless the "
+                 "service table or policy states another plane")
 PLANE_WORDS = {"receiver_input": "at the receiver's input (after the receive feeder)",
                "antenna_port": "at the antenna's port (before the receive feeder)"}
 
@@ -59,8 +61,8 @@ class Side:
                 self.values[key] = (value, f"policy: {source}",
                                     where(fleet.policy, f"cosite_services.{self.service.id}.{key}.value"))
             else:
-                self.values[key] = (getattr(self.service, key),
-                                    self.service.sources.get(key, "service table, standing not given"),
+                default = PLANE_DEFAULT if key == "protection_plane" else "service table, standing not given"
+                self.values[key] = (getattr(self.service, key), self.service.sources.get(key, default),
                                     where(self.service, key))
         loss = result.figure(FK.FEEDER_TOTAL_LOSS_DB) if result is not None else None
         self.feeder = loss if loss is not None and isinstance(loss.value, float) else None

@@ -134,7 +134,7 @@ def test_intermod_margins_on_the_page_agree_with_check_details(demo_site, capsys
     assert cli.main(["check", "fleet_data", "--details", "--aircraft", "QX-TJA"]) in (0, 1)
     text = capsys.readouterr().out
     details = {f"{what} at {at}": margin for what, at, margin in re.findall(
-        r"^  (\S+ \+ \S+ → \S+: .+?) \(order \d\) at ([\d.]+–[\d.]+ MHz), made in \S+: (margin .+|no level)$",
+        r"^  (\S+ \+ \S+ → \S+: .+?) \(order \d\) at ([\d.]+–[\d.]+ MHz), made in \S+: (margin .+|no level.*)$",
         text, re.M)}
     html = (demo_site / "aircraft" / "qx-tja" / "interference.html").read_text(encoding="utf-8")
     rows = re.findall(r'<tr data-product="([^"]+)">.*?<td class="cosite-[a-z]+">(?:<details[^>]*><summary>)?'
@@ -147,6 +147,8 @@ def test_intermod_margins_on_the_page_agree_with_check_details(demo_site, capsys
         if shown.strip().endswith("dB"):
             assert details[key] == f"margin {shown.strip()}"
             margins.append(float(shown.split()[0]))
+        else:
+            assert details[key] == shown.strip()
     assert margins == sorted(margins) and margins
 
 

@@ -167,9 +167,11 @@ def cosite_details(craft, cosite, wanted) -> list[str]:
         lines.append(f"{craft.registration} intermodulation (transmitter intermodulation, conversion-loss model)")
         for item in products:
             margin = next((f for f in item.figures if f.key == "cosite.margin_db"), None)
+            missing = "; ".join(f.label for f in item.figures if f.value is None)
             lines.append(f"  {item.tx_a} + {item.tx_b} → {item.rx}: {item.product} (order {item.order}) at "
                          f"{item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz, made in {item.generator}: "
-                         + (f"margin {format_value(margin)}" if margin is not None else "no level"))
+                         + (f"margin {format_value(margin)}" if margin is not None
+                            else "no level" + (f" ({missing}: not given)" if missing else "")))
             for figure in item.figures if margin is not None else ():
                 lines.append(f"    {figure.label:<50} {format_value(figure)}")
         lines.append("")

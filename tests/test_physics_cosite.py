@@ -279,7 +279,8 @@ def test_bad_ranges_are_refused():
 
 SHIPPED = Path(__file__).parent.parent / "registry" / "data" / "services.yaml"
 COSITE_KEYS = ("tx_bands_mhz", "tx_channel_steps_khz", "tx_peak_power_dbm", "spurious_dbc",
-               "rx_bands_mhz", "protection_dbm", "suppression_line")
+               "rx_bands_mhz", "protection_dbm", "suppression_line", "im3_conversion_loss_db",
+               "im5_conversion_loss_db", "max_harmonic_order", "protection_plane")
 
 
 def _shipped():

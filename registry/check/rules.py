@@ -14,7 +14,7 @@ from registry.compute.kinds import kind_of
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft, AntennaModel, Cable, Fleet, Installation, Service
 from registry.core.sources import where
-from registry.core.results import AircraftCosite, CositePath, Discrepancy, Figure, InstallationResult
+from registry.core.results import AircraftCosite, Discrepancy, Figure, InstallationResult
 from registry.core.rulebook import RULE_SEVERITY
 
 IMPEDANCE_TOLERANCE_PCT = 5.0
@@ -328,32 +328,50 @@ def pair_discrepancies(fleet: Fleet, pair) -> list[Discrepancy]:
 
 def cosite_discrepancies(fleet: Fleet, cosite: AircraftCosite) -> list[Discrepancy]:
     """Co-site margins: `cosite` for any negative margin between two installations (each negative harmonic
-    named with its channels and margin), `cosite-small` for margins under the policy's small margin.
-    One finding per pair of positions (sorted, as reviews name pairs); its value is the worst margin."""
+    named with its channels and margin, each intermodulation product with its transmitters, ranges and
+    margin, on the pair of the transmitter that makes it and the receiver), `cosite-small` for margins
+    under the policy's small margin. One finding per pair of positions (sorted, as reviews name pairs);
+    its value is the worst margin."""
     small = fleet.policy.cosite_small_margin_db
-    by_pair: dict[tuple[str, str], list[CositePath]] = {}
+    by_pair: dict[tuple[str, str], list[tuple[float, str, Figure, str]]] = {}
     for path in cosite.paths:
-        by_pair.setdefault(tuple(sorted((path.tx, path.rx))), []).append(path)
+        for hit in path.hits:
+            if hit.margin_db is not None:
+                by_pair.setdefault(tuple(sorted((path.tx, path.rx))), []).append(
+                    (hit.margin_db, f"{path.tx} → {path.rx}: {hit.channels}, {hit.product} at "
+                     f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", _margin_of(hit.figures), "harmonic"))
+    for item in cosite.intermod:
+        if item.margin_db is not None and not item.excused_by:
+            by_pair.setdefault(tuple(sorted((item.generator, item.rx))), []).append(
+                (item.margin_db, f"{item.tx_a} + {item.tx_b} → {item.rx}: {item.product} (order {item.order}, made in "
+                 f"{item.generator}) at {item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz from f1 "
+                 f"{item.f1_mhz[0]:.3f}–{item.f1_mhz[1]:.3f} MHz and f2 {item.f2_mhz[0]:.3f}–{item.f2_mhz[1]:.3f} MHz",
+                 _margin_of(item.figures), "intermodulation"))
     found = []
-    for (a, b), paths in sorted(by_pair.items()):
-        rated = [(hit.margin_db, path, hit) for path in paths for hit in path.hits if hit.margin_db is not None]
+    for (a, b), rated in sorted(by_pair.items()):
         for rule, limit, bad in (("cosite", 0.0, [r for r in rated if r[0] < 0.0]),
                                  ("cosite-small", small, [r for r in rated if 0.0 <= r[0] < small])):
             if bad and (rule == "cosite" or not any(r[0] < 0.0 for r in rated)):
-                found.append(cosite_finding(rule, cosite.aircraft, f"{a}+{b}", limit, sorted(bad, key=lambda r: r[0])))
+                found.append(cosite_finding(rule, cosite.aircraft, f"{a}+{b}", limit,
+                                            sorted(bad, key=lambda r: (r[0], r[1]))))
     return found
 
 
+def _margin_of(figures: tuple[Figure, ...]) -> Figure:
+    return next(f for f in figures if f.key == FK.COSITE_MARGIN_DB)
+
+
 def cosite_finding(rule: str, aircraft: str, pair: str, limit: float, bad: list) -> Discrepancy:
-    worst_margin, worst_path, worst_hit = bad[0]
-    what = "; ".join(f"{path.tx} → {path.rx}: {hit.channels}, {hit.product} at {hit.product_lo_mhz:.3f}–"
-                     f"{hit.product_hi_mhz:.3f} MHz, margin {margin:.1f} dB" for margin, path, hit in bad[:3])
+    worst_margin, _, margin, _ = bad[0]
+    what = "; ".join(f"{text}, margin {value:.1f} dB" for value, text, _, _ in bad[:3])
     what += f"; and {len(bad) - 3} more" if len(bad) > 3 else ""
+    kinds = {kind for *_, kind in bad}
+    subject = ("A transmitter harmonic" if kinds == {"harmonic"} else "An intermodulation product"
+               if kinds == {"intermodulation"} else "Transmitter harmonics and intermodulation products")
     verb = "lands above the receiver's protection threshold" if rule == "cosite" else "leaves a small margin"
-    margin = next(f for f in worst_hit.figures if f.key == FK.COSITE_MARGIN_DB)
-    return make(rule, aircraft, pair, worst_margin, limit, "dB",
-                f"A transmitter harmonic {verb}: {what}.", margin,
-                "harmonic level at the receiver against its protection threshold (co-site)")
+    method = ("harmonic level at the receiver against its protection threshold (co-site)" if kinds == {"harmonic"}
+              else "harmonic and intermodulation levels at the receiver against its protection threshold (co-site)")
+    return make(rule, aircraft, pair, worst_margin, limit, "dB", f"{subject} {verb}: {what}.", margin, method)
 
 
 INSTALLATION_RULES = (element_length, band_coverage, vswr_bandwidth, measured_vswr, feeder_loss, impedance_match,

@@ -109,3 +109,7 @@ GROUND_PLATE_NOT_MODELLED = "ground.plate_not_modelled"
 
 PAIR_COUPLING_DB = "pair.coupling_db"
 PAIR_MODEL = "pair.model"
+COSITE_THRESHOLD_PLANE = "cosite.threshold_plane"
+COSITE_COUPLED_IN_DBM = "cosite.coupled_in_dbm"
+COSITE_CONVERSION_LOSS_DB = "cosite.conversion_loss_db"
+COSITE_PRODUCT_DBM = "cosite.product_dbm"

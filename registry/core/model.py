@@ -261,6 +261,14 @@ class Service(Sourced):
     """Receive bands, MHz; the loader fills them from `bands_mhz`."""
     protection_dbm: float | None = None
     suppression_line: str | None = None
+    protection_plane: str = "receiver_input"
+    """Where `protection_dbm` is stated: "receiver_input" (after the feeder) or "antenna_port" (before it)."""
+    im3_conversion_loss_db: float | None = None
+    """Transmitter intermodulation: a carrier coupled into the output stage comes out as a 3rd-order product
+    this many dB lower (the 5th-order figure likewise)."""
+    im5_conversion_loss_db: float | None = None
+    max_harmonic_order: int | None = None
+    """The highest harmonic order followed for this transmitter (None: the policy's)."""
     sources: FrozenMap = field(default_factory=FrozenMap)
     """Co-site figure key → its standing and document ('sourced: …', 'unverified: …', ...)."""
     must_see: FrozenMap | None = None
@@ -296,6 +304,8 @@ class Policy(Sourced):
     """Bank angle (degrees, each way) the coverage rule checks, by must_see region (sky, ground, horizon)."""
     coverage_pitch_deg: FrozenMap = field(default_factory=FrozenMap)
     """Pitch angle (degrees, nose up and down) the coverage rule checks, by must_see region."""
+    cosite_services: FrozenMap = field(default_factory=FrozenMap)
+    """Service id → co-site figure key → (value, source): the policy's overrides of the service table."""
 
     def vswr_limit_for(self, service: str) -> float:
         return self.vswr_limit_by_service.get(service, self.vswr_limit)

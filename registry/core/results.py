@@ -172,8 +172,8 @@ class CositePath(WithFigures):
 
 
 class CositeIntermod(NamedTuple):
-    """An intermodulation product a·f1 + b·f2 of two transmitters landing in a receiver's band: located
-    in frequency only (no level model); `excused_by` names a suppression line all three share. A named
+    """An intermodulation product a·f1 + b·f2 of two transmitters landing in a receiver's band, with its
+    level and margin where the figures allow; `excused_by` names a suppression line all three share. A named
     tuple: an aircraft has thousands, and tuples are the cheapest to keep in the cache."""
 
     aircraft: str
@@ -186,6 +186,12 @@ class CositeIntermod(NamedTuple):
     f2_mhz: tuple[float, float]
     product_mhz: tuple[float, float]
     excused_by: str = ""
+    generator: str = ""
+    """The transmitter whose output stage makes the product (the one with the larger coefficient)."""
+    margin_db: float | None = None
+    """The product's margin against the receiver's threshold; None when a figure for its level is missing."""
+    figures: tuple[Figure, ...] = ()
+    """The level and margin laid out step by step (transmitter intermodulation, conversion-loss model)."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -198,6 +204,8 @@ class AircraftCosite:
     intermod: tuple[CositeIntermod, ...]
     bands: tuple[tuple[str, str, str, tuple[tuple[float, float], ...]], ...] = ()
     """(position, service, "tx" or "rx", ranges in MHz) of every transmitter and receiver."""
+    not_analysed: tuple[tuple[str, str], ...] = ()
+    """(position, service) of each installation not analysed as a receiver: no protection threshold."""
 
 
 @dataclass(slots=True)

@@ -169,6 +169,10 @@ def cosite_fields(item: dict[str, Any], bands: tuple[tuple[float, float], ...]) 
         "rx_bands_mhz": band_pairs(item["rx_bands_mhz"]) if "rx_bands_mhz" in item else bands,
         "protection_dbm": optional("protection_dbm"),
         "suppression_line": item.get("suppression_line"),
+        "protection_plane": item.get("protection_plane", "receiver_input"),
+        "im3_conversion_loss_db": optional("im3_conversion_loss_db"),
+        "im5_conversion_loss_db": optional("im5_conversion_loss_db"),
+        "max_harmonic_order": int(item["max_harmonic_order"]) if "max_harmonic_order" in item else None,
         "sources": freeze(item.get("sources", {})),
     }
 

@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from registry.load import build, extent, git, inputs, integrity, partial, plausible
-from registry.load import schemacheck
+from registry.load import policy_cosite, schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
 from registry.core.base import FrozenMap
@@ -244,6 +244,7 @@ class _Run:
             self.problems += integrity.future_reviews(reviews, limit)
         if policy is not None:
             self.problems += integrity.check_policy(policy, catalogue)
+            self.problems += policy_cosite.check(policy, services)
 
     def services(self, shipped: build.Doc | None, fleet: build.Doc | None) -> list[Service] | None:
         """The shipped table with the fleet's entries added or replacing those of the same id."""
@@ -266,6 +267,8 @@ class _Run:
             for key, value in doc.data.items():
                 if key in _MERGED_POLICY_MAPS + _COVERAGE_POLICY:
                     merged[key] = {**merged.get(key, {}), **value}
+                elif key == policy_cosite.KEY:
+                    merged[key] = policy_cosite.merge(merged.get(key, {}), value)
                 else:
                     merged[key] = value  # min_isolation_db rules are merged pair by pair below
         missing = [key for key in REQUIRED_POLICY_KEYS if key not in merged]
@@ -299,4 +302,5 @@ class _Run:
             sources=FrozenMap(merged.get("sources", {})),
             **{key: kind(merged[key]) for key, kind in _COSITE_POLICY.items() if key in merged},
             **{key: FrozenMap({k: float(v) for k, v in merged[key].items()}) for key in _COVERAGE_POLICY if key in merged},
+            cosite_services=policy_cosite.build(merged.get(policy_cosite.KEY, {})),
         )

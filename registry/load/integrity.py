@@ -163,7 +163,8 @@ def check_services(services: list[Service]) -> list[Problem]:
     return problems
 
 
-TX_FIGURES = ("tx_bands_mhz", "tx_channel_steps_khz", "tx_peak_power_dbm", "spurious_dbc")
+TX_FIGURES = ("tx_bands_mhz", "tx_channel_steps_khz", "tx_peak_power_dbm", "spurious_dbc",
+              "im3_conversion_loss_db", "im5_conversion_loss_db", "max_harmonic_order")
 
 
 def cosite_fields(service: Service) -> list[Problem]:

@@ -109,7 +109,8 @@ def figures(items: tuple[Figure, ...] | list[Figure]) -> dict[str, dict[str, Any
 
 def cosite_record(cosite) -> dict[str, Any]:
     """Each transmitter → receiver path's margins, keyed `<aircraft>/<TX>+<RX>` (transmitter first):
-    one figure per harmonic order (the worst of its hits), so `diff` shows what a new radio breaks."""
+    one figure per harmonic order (the worst of its hits), and one per intermodulation order (the worst
+    product the transmitter makes that lands in the receiver), so `diff` shows what a new radio breaks."""
     out: dict[str, Any] = {}
     for path in cosite.paths if cosite is not None else ():
         worst: dict[int, Any] = {}
@@ -122,6 +123,16 @@ def cosite_record(cosite) -> dict[str, Any]:
                 "label": f"Margin, {hit.product} ({hit.channels})", "unit": "dB",
                 "value": None if hit.margin_db is None else round_sig(hit.margin_db, FIGURE_DIGITS)}
                 for order, hit in sorted(worst.items())}}
+    for item in cosite.intermod if cosite is not None else ():
+        if item.excused_by or item.margin_db is None:
+            continue
+        entry = out.setdefault(f"{item.aircraft}/{item.generator}+{item.rx}", {
+            "aircraft": item.aircraft, "tx": item.generator, "rx": item.rx, "excused_by": None, "figures": {}})
+        key = f"cosite.margin_db.im{item.order}"
+        value = round_sig(item.margin_db, FIGURE_DIGITS)
+        if key not in entry["figures"] or value < entry["figures"][key]["value"]:
+            entry["figures"][key] = {"label": f"Margin, worst intermodulation product of order {item.order} made "
+                                              f"in {item.generator}", "unit": "dB", "value": value}
     return out
 
 

@@ -143,7 +143,8 @@ def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = No
 
 def cosite_details(craft, cosite, wanted) -> list[str]:
     """One aircraft's co-site paths for `check --details`: each harmonic that lands with its margin's
-    arithmetic, the pairs a suppression line excuses, and the intermodulation products (located only)."""
+    arithmetic, the pairs a suppression line excuses, the intermodulation products with their margins'
+    arithmetic, and the installations not analysed as receivers (no protection threshold)."""
     lines = []
     for path in cosite.paths:
         if not wanted(path.tx_service, path.rx_service):
@@ -158,11 +159,22 @@ def cosite_details(craft, cosite, wanted) -> list[str]:
             for figure in hit.figures:
                 lines.append(f"    {figure.label:<50} {format_value(figure)}")
         lines.append("")
-    products = [item for item in cosite.intermod if not item.excused_by]
+    service = lambda position: craft.installations[position].service  # noqa: E731
+    products = [item for item in cosite.intermod
+                if not item.excused_by and wanted(service(item.tx_a), service(item.tx_b), service(item.rx))]
+    not_analysed = [(position, name) for position, name in cosite.not_analysed if wanted(name)]
     if products:
-        lines.append(f"{craft.registration} intermodulation (located only: no level model, no margin)")
+        lines.append(f"{craft.registration} intermodulation (transmitter intermodulation, conversion-loss model)")
         for item in products:
+            margin = next((f for f in item.figures if f.key == "cosite.margin_db"), None)
+            missing = "; ".join(f.label for f in item.figures if f.value is None)
             lines.append(f"  {item.tx_a} + {item.tx_b} → {item.rx}: {item.product} (order {item.order}) at "
-                         f"{item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz")
+                         f"{item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz, made in {item.generator}: "
+                         + (f"margin {format_value(margin)}" if margin is not None
+                            else "no level" + (f" ({missing}: not given)" if missing else "")))
+            for figure in item.figures if margin is not None else ():
+                lines.append(f"    {figure.label:<50} {format_value(figure)}")
         lines.append("")
-    return lines
+    lines += [f"{craft.registration} co-site not analysed: {position} ({name}): no protection threshold in the "
+              f"service table or policy" for position, name in not_analysed]
+    return lines + ([""] if not_analysed else [])

@@ -19,7 +19,18 @@ Margin. Level of the unwanted emission at the victim receiver's input, all in dB
   margin_db = threshold_dbm − level_dbm
 coupling_db is the antenna-to-antenna coupling (negative; coupling = −isolation), as in the field
 notes' co-site paragraph and policy's isolation rules. A positive margin means the receiver
-tolerates the emission.
+tolerates the emission. The threshold is compared at the plane it is stated for: at the receiver's
+input (after the receive feeder, the level above), or at the antenna's port (before the feeder:
+level_dbm = tx_power_dbm + emission_dbc − tx_feeder_loss_db + coupling_db, no receive feeder loss).
+
+Transmitter intermodulation (conversion-loss model). A carrier of transmitter I reaches the output
+stage of transmitter G through the two antennas and both feeders; the stage mixes it with its own
+carrier and sends the product out, conversion_loss_db below the coupled-in level:
+  coupled_in_dbm = P_I − L_I + C_IG − L_G
+  product_dbm    = coupled_in_dbm − conversion_loss_db        (at G's port)
+The product then reaches the victim like a harmonic of G (the margin above, emission 0 dBc).
+Common practice, no source for the form; the document to check it against is ITU-R SM.1134-1,
+Annex 1 §4 (power of transmitter intermodulation products), and Report ITU-R SM.2021 §2.1.
 """
 from __future__ import annotations
 
@@ -229,7 +240,8 @@ class InterferenceMargin:
     at_tx_antenna_dbm   = emission_dbm − tx_feeder_loss_db
     at_rx_antenna_dbm   = at_tx_antenna_dbm + coupling_db     (coupling = −isolation)
     at_receiver_dbm     = at_rx_antenna_dbm − rx_feeder_loss_db
-    margin_db           = threshold_dbm − at_receiver_dbm     (≥ 0: tolerated)
+    compared_dbm        = at_receiver_dbm, or at_rx_antenna_dbm for a threshold at the antenna port
+    margin_db           = threshold_dbm − compared_dbm        (≥ 0: tolerated)
     """
 
     tx_power_dbm: float
@@ -243,27 +255,63 @@ class InterferenceMargin:
     at_receiver_dbm: float
     threshold_dbm: float
     margin_db: float
+    plane: str = "receiver_input"
+    compared_dbm: float = 0.0
 
     @property
     def tolerated(self) -> bool:
         return self.margin_db >= 0.0
 
 
+PLANES = ("receiver_input", "antenna_port")
+"""Where a protection threshold is stated: after the receive feeder, or before it."""
+
+
 def interference_margin(tx_power_dbm: float, emission_dbc: float, tx_feeder_loss_db: float,
                         coupling_db: float, rx_feeder_loss_db: float,
-                        threshold_dbm: float) -> InterferenceMargin:
-    """Unwanted level at the victim receiver's input and its margin against the receiver's threshold.
+                        threshold_dbm: float, plane: str = "receiver_input") -> InterferenceMargin:
+    """Unwanted level at the victim and its margin against the receiver's threshold, at the threshold's plane.
 
-    level = P_tx + E − L_tx + C − L_rx (dBm), margin = threshold − level (dB); E in dBc (negative for an
-    emission below the carrier), C the coupling in dB (negative), losses positive dB.
+    receiver_input: level = P_tx + E − L_tx + C − L_rx (dBm); antenna_port: level = P_tx + E − L_tx + C
+    (the receive feeder lies behind the plane). margin = threshold − level (dB); E in dBc (negative for
+    an emission below the carrier), C the coupling in dB (negative), losses positive dB.
     """
+    if plane not in PLANES:
+        raise ValueError(f"a threshold's plane is one of {PLANES}, got {plane!r}")
     emission_dbm = tx_power_dbm + emission_dbc
     at_tx = emission_dbm - tx_feeder_loss_db
     at_rx = at_tx + coupling_db
     at_receiver = at_rx - rx_feeder_loss_db
+    compared = at_rx if plane == "antenna_port" else at_receiver
     return InterferenceMargin(tx_power_dbm, emission_dbc, emission_dbm, tx_feeder_loss_db, at_tx,
                               coupling_db, at_rx, rx_feeder_loss_db, at_receiver, threshold_dbm,
-                              threshold_dbm - at_receiver)
+                              threshold_dbm - compared, plane, compared)
+
+
+@dataclass(frozen=True)
+class TransmitterIntermod:
+    """Transmitter intermodulation at the generating transmitter G's port, step by step (dBm, dB)."""
+
+    intruder_power_dbm: float
+    intruder_feeder_loss_db: float
+    coupling_db: float
+    generator_feeder_loss_db: float
+    coupled_in_dbm: float
+    conversion_loss_db: float
+    product_dbm: float
+
+
+def transmitter_intermod(intruder_power_dbm: float, intruder_feeder_loss_db: float, coupling_db: float,
+                         generator_feeder_loss_db: float, conversion_loss_db: float) -> TransmitterIntermod:
+    """Level of a transmitter-generated intermodulation product at the generating transmitter's port.
+
+    coupled_in = P_I − L_I + C_IG − L_G (dBm): the intruder's carrier reaching G's output stage through
+    both feeders and the antennas' coupling C_IG (negative dB); product = coupled_in − L_conv (dBm).
+    Common practice, no source (the conversion-loss model; check ITU-R SM.1134-1 Annex 1 §4).
+    """
+    coupled_in = intruder_power_dbm - intruder_feeder_loss_db + coupling_db - generator_feeder_loss_db
+    return TransmitterIntermod(intruder_power_dbm, intruder_feeder_loss_db, coupling_db, generator_feeder_loss_db,
+                               coupled_in, conversion_loss_db, coupled_in - conversion_loss_db)
 
 
 def coupling_from_isolation_db(isolation_db: float) -> float:

@@ -1,6 +1,7 @@
 """An aircraft's interference page: the transmitter × receiver matrix of worst co-site margins (each cell
-opens the arithmetic, details/summary, no script), a frequency chart drawn here as SVG, and the
-intermodulation products located in frequency."""
+opens the arithmetic, details/summary, no script), a frequency chart drawn here as SVG, the
+intermodulation products with their margins (each opening its arithmetic), and the installations not
+analysed as receivers."""
 from __future__ import annotations
 
 import math
@@ -10,7 +11,7 @@ from markupsafe import Markup, escape
 
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft
-from registry.core.results import AircraftCosite, CositeHit, CositePath
+from registry.core.results import AircraftCosite, CositeHit, CositeIntermod, CositePath, Figure
 from registry.output.report import format_value
 from registry.site.context import SiteData
 from registry.site.pages import Page, page
@@ -43,15 +44,18 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
     notes = Notes(data.src_text)
     rows = [{"tx": tx, "cells": [cell(paths.get((tx, rx)), tx == rx, small, notes) for rx in receivers]}
             for tx in transmitters]
-    products = [item for item in cosite.intermod if not item.excused_by]
+    products = sorted((item for item in cosite.intermod if not item.excused_by), key=intermod_order)
     return page(cosite_path(aircraft.id), "cosite.html", "fleet", f"{aircraft.registration} interference",
                 [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
                  ("Interference", None)],
                 aircraft=aircraft, receivers=receivers, rows=rows, small_db=small,
                 airframe=data.fleet.airframe_of(aircraft), type_href=type_cosite_path(aircraft.airframe),
                 max_order=data.fleet.policy.cosite_max_harmonic_order,
-                chart=frequency_chart(cosite), intermod=products[:INTERMOD_SHOWN],
+                chart=frequency_chart(cosite),
+                intermod=[intermod_view(item, small, notes, n) for n, item in enumerate(products[:INTERMOD_SHOWN])],
                 intermod_more=max(0, len(products) - INTERMOD_SHOWN),
+                intermod_unrated=sum(1 for item in products if item.margin_db is None),
+                not_analysed=cosite.not_analysed,
                 intermod_excused=len(cosite.intermod) - len(products),
                 excused=[path for path in cosite.paths if path.excused_by],
                 notes=sorted((number, text) for text, number in notes.numbers.items()))
@@ -93,35 +97,81 @@ class Notes:
         return self.numbers.setdefault(source, len(self.numbers) + 1) if source else None
 
 
-STANDINGS = ("sourced", "common practice, no source", "unverified", "installed radio")
+STANDINGS = ("sourced", "common practice, no source", "unverified", "installed radio", "policy")
+
+
+def figure_views(figures: tuple[Figure, ...], notes: Notes) -> list[dict[str, Any]]:
+    """Figures as table rows; each source is numbered once per page (`notes`) and shown by its number and
+    standing, so long source texts are not repeated in every cell."""
+    rows = []
+    for f in figures:
+        standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
+        rows.append({"label": f.label, "value": format_value(f),
+                     "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs) if f.key == FK.COSITE_COUPLING_DB
+                     else "", "note": notes.number(f.source),
+                     "standing": standing, "src": notes.src_text(f.src) if f.src else ""})
+    return rows
 
 
 def hit_view(hit: CositeHit, notes: Notes) -> dict[str, Any]:
-    """A hit's arithmetic; each figure's source is numbered once per page (`notes`) and shown in the cell
-    by its number and standing, so long source texts are not repeated in every cell."""
-    figures = []
-    for f in hit.figures:
-        number = notes.number(f.source)
-        standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
-        figures.append({"label": f.label, "value": format_value(f),
-                        "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs) if f.key == FK.COSITE_COUPLING_DB
-                        else "", "note": number,
-                        "standing": standing, "src": notes.src_text(f.src) if f.src else ""})
+    """A hit's arithmetic, figure by figure and written out."""
     return {"product": hit.product, "channels": hit.channels,
-            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figures,
-            "sum": arithmetic(hit)}
+            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figure_views(hit.figures, notes),
+            "sum": arithmetic(hit.figures)}
 
 
-def arithmetic(hit: CositeHit) -> str:
-    """The margin written out with the cell's numbers: level = P + E − L_tx + C − L_rx; margin."""
-    value = {f.key: f for f in hit.figures}
+def arithmetic(figures: tuple[Figure, ...]) -> str:
+    """The margin written out with the figures' numbers, at the threshold's plane: at the receiver's input
+    level = P + E − L_tx + C − L_rx; at the antenna port the receive feeder is not in it."""
+    value = {f.key: f for f in figures}
+    at_port = FK.COSITE_RX_FEEDER_LOSS_DB not in value
     keys = (FK.COSITE_TX_POWER_DBM, FK.COSITE_EMISSION_DBC, FK.COSITE_TX_FEEDER_LOSS_DB, FK.COSITE_COUPLING_DB,
-            FK.COSITE_RX_FEEDER_LOSS_DB, FK.COSITE_LEVEL_DBM, FK.COSITE_THRESHOLD_DBM, FK.COSITE_MARGIN_DB)
+            FK.COSITE_LEVEL_DBM, FK.COSITE_THRESHOLD_DBM, FK.COSITE_MARGIN_DB)
     if any(key not in value or value[key].value is None for key in keys):
         return ""
-    p, e, ltx, c, lrx, level, threshold, margin = (format_value(value[key]) for key in keys)
-    return (f"level = P + E − L_tx + C − L_rx = {p} + ({e}) − {ltx} + ({c}) − {lrx} = {level}; "
-            f"margin = threshold − level = {threshold} − ({level}) = {margin}")
+    p, e, ltx, c, level, threshold, margin = (format_value(value[key]) for key in keys)
+    if at_port:
+        head = f"level at the receive antenna's port = P + E − L_tx + C = {p} + ({e}) − {ltx} + ({c}) = {level}"
+    else:
+        lrx = format_value(value[FK.COSITE_RX_FEEDER_LOSS_DB])
+        head = (f"level at the receiver's input = P + E − L_tx + C − L_rx = {p} + ({e}) − {ltx} + ({c}) − {lrx} "
+                f"= {level}")
+    return f"{head}; margin = threshold − level = {threshold} − ({level}) = {margin}"
+
+
+def intermod_arithmetic(figures: tuple[Figure, ...]) -> str:
+    """An intermodulation product's level and margin written out with its figures' numbers."""
+    value = {f.key: f for f in figures}
+    if FK.COSITE_MARGIN_DB not in value:
+        return ""
+    couplings = [format_value(f) for f in figures if f.key == FK.COSITE_COUPLING_DB]
+    losses = [format_value(f) for f in figures if f.key == FK.COSITE_TX_FEEDER_LOSS_DB]
+    p, conv, product, level, threshold, margin = (format_value(value[key]) for key in (
+        FK.COSITE_TX_POWER_DBM, FK.COSITE_CONVERSION_LOSS_DB, FK.COSITE_PRODUCT_DBM, FK.COSITE_LEVEL_DBM,
+        FK.COSITE_THRESHOLD_DBM, FK.COSITE_MARGIN_DB))
+    rx = (f" − {format_value(value[FK.COSITE_RX_FEEDER_LOSS_DB])}" if FK.COSITE_RX_FEEDER_LOSS_DB in value else "")
+    plane = "receiver's input" if rx else "receive antenna's port"
+    return (f"product = P_I − L_I + C_IG − L_G − L_conv = {p} − {losses[0]} + ({couplings[0]}) − {losses[1]} − {conv} "
+            f"= {product}; level at the {plane} = product − L_G + C{' − L_rx' if rx else ''} = {product} − "
+            f"{losses[1]} + ({couplings[1]}){rx} = {level}; margin = threshold − level = {threshold} − ({level}) "
+            f"= {margin}")
+
+
+def intermod_order(item: CositeIntermod) -> tuple:
+    """Rated products first, the worst margin first; then by position and product."""
+    return (item.margin_db is None, item.margin_db or 0.0, item.tx_a, item.tx_b, item.rx, item.product)
+
+
+def intermod_view(item: CositeIntermod, small_db: float, notes: Notes, number: int) -> dict[str, Any]:
+    """One product's row: where it lands, which transmitter makes it, its margin and its arithmetic."""
+    margin = item.margin_db
+    state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db else "ok")
+    missing = [f.label for f in item.figures if f.value is None]
+    text = (format_value(next(f for f in item.figures if f.key == FK.COSITE_MARGIN_DB)) if margin is not None
+            else "no level" + (f" ({'; '.join(missing)}: not given)" if missing else ""))
+    return {"item": item, "state": state, "text": text, "id": f"im-{number + 1}",
+            "figures": figure_views(item.figures, notes) if margin is not None else [],
+            "sum": intermod_arithmetic(item.figures)}
 
 
 CHART_WIDTH, ROW_HEIGHT, LEFT, TOP = 860, 22, 150, 28

@@ -1,6 +1,7 @@
 """The methods page: every figure's formula and source as used across the fleet, the checks, the policy."""
 from __future__ import annotations
 
+from registry.compute.cosite import METHODS as COSITE_METHODS
 from registry.core.model import POLICY_KEYS
 
 from collections import Counter, defaultdict
@@ -79,6 +80,10 @@ def policy_rows(data: SiteData) -> list[dict[str, str]]:
         if key == "min_isolation_db":
             text = "; ".join(f"{' + '.join(rule.services)}: {fmt(rule.isolation_db)} dB"
                              for rule in value) or NONE_TEXT
+        elif key == "cosite_services":
+            text = "; ".join(f"{service}.{name} = {fmt(figure[0]) if isinstance(figure[0], (int, float)) else figure[0]}"
+                             f" ({figure[1]})" for service, figures in value.items()
+                             for name, figure in figures.items()) or NONE_TEXT
         elif hasattr(value, "items"):
             text = ", ".join(f"{k}: {fmt(v)}" for k, v in value.items()) or NONE_TEXT
         else:
@@ -91,4 +96,6 @@ def policy_rows(data: SiteData) -> list[dict[str, str]]:
 
 def methods_page(data: SiteData) -> Output:
     return page("methods.html", "methods.html", "methods", "Methods and cautions", [],
-                groups=figure_catalogue(figure_tally(data)), checks=check_rows(data), policy=policy_rows(data))
+                groups=figure_catalogue(figure_tally(data)), checks=check_rows(data), policy=policy_rows(data),
+                cosite=[{"step": step, "formula": formula, "source": source, "standing": standing}
+                        for step, formula, source, standing in COSITE_METHODS])

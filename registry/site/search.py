@@ -1,4 +1,5 @@
-"""The site's search index: one entry per aircraft, installation, antenna model, cable and service.
+"""The site's search index: one entry per aircraft, installation, antenna model, cable and service, and one
+per interference page (each aircraft's and each airframe type's).
 
 The index is written as a JavaScript file that assigns a global (`window.AERIALBOOK_SEARCH`), loaded with
 a plain <script> tag, so search works from file:// where a browser refuses to fetch JSON.
@@ -10,6 +11,7 @@ import json
 from typing import Callable
 
 from registry.core.model import Aircraft, Fleet
+from registry.site.pages_cosite import cosite_path, type_cosite_path
 
 Paths = dict[str, Callable[..., str]]
 
@@ -41,6 +43,7 @@ def aircraft_entries(fleet: Fleet, aircraft: Aircraft, plain_text: Callable[[str
          f"serial {aircraft.serial}" if aircraft.serial else "",
          f"{len(aircraft.installations)} installations",
          *(f"{mod.ref}: {mod.summary}" for mod in aircraft.modifications)])]
+    entries.append(interference_entry(fleet, aircraft))
     for installation in aircraft.installations.values():
         service = fleet.services.get(installation.service)
         model = fleet.antennas.get(installation.antenna)
@@ -57,6 +60,29 @@ def aircraft_entries(fleet: Fleet, aircraft: Aircraft, plain_text: Callable[[str
     return entries
 
 
+def interference_entry(fleet: Fleet, aircraft: Aircraft) -> dict[str, str]:
+    """The aircraft's interference page: its transmitters and the receivers analysed (with a protection
+    threshold in the service table or policy) and those not analysed, from the model alone."""
+    transmitters, analysed, not_analysed = [], [], []
+    for installation in aircraft.installations.values():
+        service = fleet.services.get(installation.service)
+        if service is None:
+            continue
+        override = fleet.policy.cosite_services.get(service.id, {})
+        if service.transmits:
+            transmitters.append(installation.position)
+        threshold = override["protection_dbm"][0] if "protection_dbm" in override else service.protection_dbm
+        own = installation.radio.protection_dbm if installation.radio is not None else None
+        (analysed if threshold is not None or own is not None else not_analysed).append(installation.position)
+    return entry("interference", f"{aircraft.registration} interference", cosite_path(aircraft.id),
+                 [aircraft.registration, aircraft.id],
+                 ["co-site interference: harmonics and intermodulation between its radios, margins against "
+                  "each receiver's protection threshold",
+                  f"transmitters {', '.join(transmitters)}" if transmitters else "",
+                  f"receivers analysed {', '.join(analysed)}" if analysed else "",
+                  f"not analysed (no protection threshold) {', '.join(not_analysed)}" if not_analysed else ""])
+
+
 def catalogue_entries(fleet: Fleet, paths: Paths) -> list[dict[str, str]]:
     """The entries of the antenna models, cables and services."""
     entries = []
@@ -69,6 +95,10 @@ def catalogue_entries(fleet: Fleet, paths: Paths) -> list[dict[str, str]]:
     for service in fleet.services.values():
         entries.append(entry("service", service.name, paths["service"](service.id), [service.id],
                              [service.group, service.coverage.replace("_", " "), service.source]))
+    for airframe in fleet.airframes.values():
+        if any(aircraft.airframe == airframe.id for aircraft in fleet.aircraft.values()):
+            entries.append(entry("interference", f"{airframe.name} interference", type_cosite_path(airframe.id),
+                                 [airframe.id], ["co-site interference every aircraft of the type shares"]))
     return entries
 
 

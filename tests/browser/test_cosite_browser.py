@@ -26,3 +26,18 @@ def test_interference_page_reads_without_javascript(browser, demo_site):
     assert cell.locator("tr", has_text="Protection threshold").first.is_visible()
     assert p.locator("svg.cosite-chart rect").count() > 0
     context.close()
+
+
+def test_intermod_margin_opens_its_arithmetic_without_javascript(browser, demo_site):
+    """The worst intermodulation product's margin opens its figures and the written-out arithmetic with
+    scripts off; the not-analysed receivers are listed in plain HTML."""
+    context = browser.new_context(java_script_enabled=False)
+    p = context.new_page()
+    p.goto((demo_site / "aircraft" / "qx-tja" / "interference.html").as_uri())
+    first = p.locator("table.cosite-intermod details").first
+    assert not first.locator("table").is_visible()
+    first.locator("summary").click()
+    assert first.locator("tr", has_text="Conversion loss").first.is_visible()
+    assert "product = P_I − L_I + C_IG − L_G − L_conv" in first.inner_text()
+    assert p.locator("#not-analysed + p + ul li", has_text="MKR").is_visible()
+    context.close()

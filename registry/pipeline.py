@@ -61,7 +61,8 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
         as_of = as_of or as_of_date(data_dir)
         results = evaluate_fleet(fleet, as_of, cache_dir, workers, progress, lazy=lazy)
         found = reviews.check_fleet((finding for aircraft_id in fleet.aircraft
-                                     for finding in results.summaries[aircraft_id].findings), fleet.reviews)
+                                     for finding in results.summaries[aircraft_id].findings), fleet.reviews,
+                                    fleet.policy)
     return Outcome(fleet, as_of, results, found, reviews.stale_reviews(found, fleet.reviews))
 
 

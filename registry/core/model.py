@@ -267,6 +267,7 @@ class Policy(Sourced):
     sources: FrozenMap = field(default_factory=FrozenMap)
     cosite_max_harmonic_order: int = 15
     cosite_small_margin_db: float = 6.0
+    action_raised_counts_open: bool = True
 
     def vswr_limit_for(self, service: str) -> float:
         return self.vswr_limit_by_service.get(service, self.vswr_limit)

@@ -26,6 +26,7 @@ from registry.load.yamlsource import YamlDoc, read_yaml
 
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
 _COSITE_POLICY = {"cosite_max_harmonic_order": int, "cosite_small_margin_db": float}
+_REVIEW_POLICY = {"action_raised_counts_open": bool}
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
 
 
@@ -295,4 +296,5 @@ class _Run:
             min_isolation_db=tuple(rules[pair] for pair in sorted(rules)),
             sources=FrozenMap(merged.get("sources", {})),
             **{key: kind(merged[key]) for key, kind in _COSITE_POLICY.items() if key in merged},
+            **{key: kind(merged[key]) for key, kind in _REVIEW_POLICY.items() if key in merged},
         )

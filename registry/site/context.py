@@ -14,7 +14,7 @@ from markupsafe import Markup
 from registry.output.comparison import Comparison
 from registry.core.model import Fleet
 from registry.core.results import Discrepancy, Figure, FleetResults
-from registry.core.rulebook import OPEN_STATES
+from registry.check.reviews import finding_order
 from registry.site.format import fmt
 from registry.site.info import BuildInfo
 from registry.site.labels import severity_rank
@@ -58,7 +58,7 @@ class SiteData:
 
     fleet: Fleet
     results: FleetResults
-    discrepancies: tuple[Discrepancy, ...]   # most severe first, then by id
+    discrepancies: tuple[Discrepancy, ...]   # in `check.reviews.finding_order` (by id), as everywhere
     build: BuildInfo
     comparison: Comparison | None
     by_position: Mapping[tuple[str, str], list[Discrepancy]]
@@ -81,7 +81,7 @@ class SiteData:
 
     def status_of(self, aircraft_id: str, position: str) -> str:
         """The most severe open finding at an installation, or "clear"."""
-        open_items = [d for d in self.by_position.get((aircraft_id, position), []) if d.review in OPEN_STATES]
+        open_items = [d for d in self.by_position.get((aircraft_id, position), []) if d.is_open]
         return min((d.severity for d in open_items), key=severity_rank, default="clear")
 
     def marks(self, aircraft_id: str, position: str | None = None) -> tuple[str, ...]:
@@ -119,7 +119,7 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
     reviews_of: dict[str, list] = defaultdict(list)
     for name, review in fleet.reviews.items():
         reviews_of[name.split("/", 1)[0]].append(review)
-    ordered = tuple(sorted(discrepancies, key=lambda d: (severity_rank(d.severity), d.id)))
+    ordered = tuple(sorted(discrepancies, key=finding_order))
     by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
     for item in ordered:
         for position in item.position.split("+"):

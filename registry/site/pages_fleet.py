@@ -7,12 +7,12 @@ from typing import Any
 
 from registry.core.model import Aircraft
 from registry.core.results import Discrepancy
-from registry.core.rulebook import ALL_STATES, OPEN_STATES, SEVERITIES
+from registry.core.rulebook import OPEN_STATES, SEVERITIES
 from registry.site import search as sitesearch
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT
 from registry.site.export import discrepancies_csv, discrepancies_json
-from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, severity_rank
+from registry.site.labels import SEVERITY_LABELS, STATE_KEYS, STATE_LABELS, severity_rank
 from registry.site.context import AircraftPieces
 from registry.site.pages import File, Output, page
 from registry.site.paths import SEARCH_PATHS, aircraft_path
@@ -22,7 +22,7 @@ from registry.site.views import discrepancy_view, severity_matrix
 
 def aircraft_row(data: SiteData, aircraft: Aircraft, items: list[Discrepancy]) -> dict[str, Any]:
     """An aircraft's row on the fleet overview, with its open findings by severity."""
-    open_counts = Counter(d.severity for d in items if d.review in OPEN_STATES)
+    open_counts = Counter(d.severity for d in items if d.is_open)
     airframe = data.fleet.airframes.get(aircraft.airframe)
     return {
         "registration": aircraft.registration, "href": aircraft_path(aircraft.id), "id": aircraft.id,
@@ -40,7 +40,7 @@ def fleet_page(data: SiteData) -> Output:
     """The overview: every aircraft with its status, the fleet's totals and the first open findings."""
     aircraft_rows = [aircraft_row(data, aircraft, [d for d in data.discrepancies if d.aircraft == aircraft.id])
                      for aircraft in data.fleet.aircraft.values()]
-    open_items = [d for d in data.discrepancies if d.review in OPEN_STATES]
+    open_items = sorted((d for d in data.discrepancies if d.is_open), key=lambda d: severity_rank(d.severity))
     return page("index.html", "fleet.html", "fleet", "Fleet overview", [],
                 aircraft=aircraft_rows,
                 totals={"aircraft": len(data.fleet.aircraft),
@@ -61,10 +61,10 @@ def audit_pages(data: SiteData) -> list[Output]:
                           key=lambda p: p[1]),
         "rule": sorted({(v["rule"], v["rule"]) for v in views}),
         "severity": [(s, SEVERITY_LABELS[s]) for s in SEVERITIES],
-        "state": [(s, STATE_LABELS[s]) for s in ALL_STATES],
+        "state": [(s, STATE_LABELS[s]) for s in STATE_KEYS],
     }
     return [page("audit.html", "audit.html", "audit", "Audit: every discrepancy", [], items=views, options=options,
-                 matrix=severity_matrix(data.discrepancies), severities=SEVERITIES, states=ALL_STATES,
+                 matrix=severity_matrix(data.discrepancies), severities=SEVERITIES, states=STATE_KEYS,
                  total=len(views)),
             File("audit/discrepancies.csv", discrepancies_csv(views)),
             File("audit/discrepancies.json", discrepancies_json(views, data.build))]

@@ -9,10 +9,10 @@ from typing import Any, Iterable
 
 from registry.core.model import Aircraft, Installation
 from registry.core.results import Discrepancy, Figure, PatternResult
-from registry.core.rulebook import ALL_STATES, OPEN_STATES, SEVERITIES
+from registry.core.rulebook import OPEN_STATES, SEVERITIES
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT, exact, fmt, words
-from registry.site.labels import FIGURE_GROUPS
+from registry.site.labels import FIGURE_GROUPS, STATE_KEYS, state_key
 from registry.site.paths import (aircraft_path, anchor, antenna_path, cable_path, installation_path,
                                  pattern_plot_path)
 
@@ -36,18 +36,22 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
         "value_raw": item.value, "limit_raw": item.limit, "unit": item.unit,
         "message": item.message, "method": item.method, "src": data.src_text(item.src),
         "review": item.review, "reviewer": item.reviewer, "review_comment": item.review_comment,
-        "review_reference": item.review_reference, "is_open": item.review in OPEN_STATES,
+        "review_reference": item.review_reference, "review_date": item.review_date, "is_open": item.is_open,
+        "state_key": state_key(item.review, item.is_open),
     }
 
 
 def severity_matrix(items: Iterable[Discrepancy]) -> dict[str, Any]:
-    """Discrepancies counted by severity and review state (states nobody is in left out)."""
-    counts = Counter((d.severity, d.review) for d in items)
-    states = [s for s in ALL_STATES if any(counts[(sev, s)] for sev in SEVERITIES)] or list(OPEN_STATES)
+    """Discrepancies counted by severity and review state as the badges show it (`state_key`; states
+    nobody is in left out); "open" counts what still counts as open (`Discrepancy.is_open`)."""
+    items = list(items)
+    counts = Counter((d.severity, state_key(d.review, d.is_open)) for d in items)
+    still_open = Counter(d.severity for d in items if d.is_open)
+    states = [s for s in STATE_KEYS if any(counts[(sev, s)] for sev in SEVERITIES)] or list(OPEN_STATES)
     return {
         "states": states,
         "rows": [{"severity": sev, "cells": [counts[(sev, s)] for s in states],
-                  "open": sum(counts[(sev, s)] for s in OPEN_STATES), "total": sum(counts[(sev, s)] for s in ALL_STATES)}
+                  "open": still_open[sev], "total": sum(counts[(sev, s)] for s in STATE_KEYS)}
                  for sev in SEVERITIES],
     }
 

@@ -267,7 +267,9 @@ def test_render_twice_gives_identical_bytes():
 
 def test_exports_hold_every_discrepancy():
     files = site()
-    rows = list(csv.DictReader(io.StringIO(text(files, "audit/discrepancies.csv"))))
+    table = text(files, "audit/discrepancies.csv")
+    assert table.startswith("\ufeffid,")  # UTF-8 byte-order mark first, so spreadsheets read Ω and § as written
+    rows = list(csv.DictReader(io.StringIO(table[1:])))
     assert [row["id"] for row in rows] == ["qx-tqa/VHF1+VHF2/isolation", "qx-tqa/VHF2/feeder-loss",
                                            "qx-tqa/XPDR1/measurement-age"]  # by id, as check and the record
     assert rows[1]["value"] == "3.4" and rows[1]["source"] == "aircraft/qx-tqa.yaml:36"

@@ -106,14 +106,17 @@ def stale_entry(review, data_dir: Path) -> dict[str, Any]:
 
 
 def document(found_rows: list[dict[str, Any]], stale: list[dict[str, Any]], as_of: str,
-             filters: Mapping[str, list[str]]) -> dict[str, Any]:
-    """The JSON export: the as-of date, the filters applied (name to values; {} for none), the findings
-    and the stale reviews."""
-    return {"as_of": as_of, "filters": {name: list(values) for name, values in filters.items() if values},
-            "columns": list(COLUMNS), "discrepancies": found_rows, "stale_reviews": stale}
+             filters: Mapping[str, list[str]], build: Mapping[str, str] | None = None) -> dict[str, Any]:
+    """The JSON export: the as-of date, the filters applied (name to values; {} for none), the columns,
+    the findings, the stale reviews, and (from the site) the build's revision."""
+    out = {"as_of": as_of, "filters": {name: list(values) for name, values in filters.items() if values},
+           "columns": list(COLUMNS), "discrepancies": found_rows, "stale_reviews": stale}
+    if build is not None:
+        out["build"] = dict(build)
+    return out
 
 
 def as_json(found_rows: list[dict[str, Any]], stale: list[dict[str, Any]], as_of: str,
-            filters: Mapping[str, list[str]]) -> str:
-    return json.dumps(document(found_rows, stale, as_of, filters), indent=2, ensure_ascii=False,
+            filters: Mapping[str, list[str]], build: Mapping[str, str] | None = None) -> str:
+    return json.dumps(document(found_rows, stale, as_of, filters, build), indent=2, ensure_ascii=False,
                       allow_nan=False) + "\n"

@@ -13,6 +13,7 @@ from registry.core.rulebook import OPEN_STATES, SEVERITIES
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT, exact, fmt, words
 from registry.site.labels import FIGURE_GROUPS, STATE_KEYS, state_key
+from registry.site.pages_registry import line_href
 from registry.site.paths import (aircraft_path, anchor, antenna_path, cable_path, installation_path,
                                  pattern_plot_path)
 
@@ -35,6 +36,7 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
         "value": fmt(item.value, item.unit), "limit": fmt(item.limit, item.unit),
         "value_raw": item.value, "limit_raw": item.limit, "unit": item.unit,
         "message": item.message, "method": item.method, "src": data.src_text(item.src),
+        "src_href": line_href(data.src_text(item.src), data.fleet.data_dir),
         "review": item.review, "reviewer": item.reviewer, "review_comment": item.review_comment,
         "review_reference": item.review_reference, "review_date": item.review_date, "is_open": item.is_open,
         "state_key": state_key(item.review, item.is_open),

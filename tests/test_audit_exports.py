@@ -139,3 +139,13 @@ def test_stale_review_is_listed_on_the_audit_page(tmp_path):
     assert 'href="registry/reviews.yaml.html#L' in stale
     document = json.loads((tmp_path / "site" / "audit" / "discrepancies.json").read_text(encoding="utf-8"))
     assert [entry["discrepancy"] for entry in document["stale_reviews"]] == ["qx-tca/VHF1/feeder-loss"]
+
+
+def test_figure_registry_lines_link_to_their_line(built):
+    data, site = built
+    html = (site / "aircraft" / "qx-tce" / "MKR.html").read_text(encoding="utf-8")
+    links = re.findall(r'<td class="src"><a href="\.\./\.\./registry/aircraft/qx-tce\.yaml\.html#L(\d+)">'
+                       r'aircraft/qx-tce\.yaml:(\d+)</a></td>', html)
+    assert len(links) > 5 and all(anchor == line for anchor, line in links)
+    lines = (data / "aircraft" / "qx-tce.yaml").read_text(encoding="utf-8").splitlines()
+    assert any("cable: RG-59" in lines[int(line) - 1] for line, _ in links)

@@ -18,6 +18,7 @@ from registry.check.reviews import finding_order
 from registry.site.format import fmt
 from registry.site.info import BuildInfo
 from registry.site.labels import severity_rank
+from registry.site.pages_registry import line_href
 from registry.site.paths import anchor
 
 PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent.parent) + "/"
@@ -88,9 +89,11 @@ class SiteData:
         """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
         return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
 
-    def figure_view(self, figure: Figure) -> tuple[Markup, str]:
-        """A figure's row in a figure table: its cells up to the registry line, and its registry line."""
-        return self.figure_cells(figure), self.src_text(figure.src) if figure.src else ""
+    def figure_view(self, figure: Figure) -> tuple[Markup, str, str | None]:
+        """A figure's row in a figure table: its cells up to the registry line, its registry line, and the
+        link to that line on its registry file's page (None when it has none)."""
+        src = self.src_text(figure.src) if figure.src else ""
+        return self.figure_cells(figure), src, line_href(src, self.fleet.data_dir)
 
 
 def pattern_of(results: FleetResults, aircraft_id: str, position: str) -> str | None:

@@ -9,8 +9,12 @@ from __future__ import annotations
 import re
 from pathlib import Path
 
-from registry.site.context import SiteData
+from typing import TYPE_CHECKING
+
 from registry.site.pages import Output, page
+
+if TYPE_CHECKING:  # context.py links figures' registry lines through `line_href`
+    from registry.site.context import SiteData
 
 MAX_FILE_BYTES = 4 * 1024 * 1024
 """A registry file larger than this is not shown (the loader refuses far smaller ones)."""
@@ -67,7 +71,7 @@ def file_lines(path: Path) -> list[str] | None:
     return path.read_bytes().decode("utf-8", errors="replace").splitlines()
 
 
-def registry_pages(data: SiteData) -> list[Output]:
+def registry_pages(data: "SiteData") -> list[Output]:
     """A page for every YAML file of the data folder."""
     data_dir = Path(data.fleet.data_dir)
     outputs: list[Output] = []

@@ -296,7 +296,7 @@ def test_methods_page_groups_formulas_and_carries_cautions():
 
 
 @pytest.mark.parametrize("value, unit, expected", [
-    (1575.42, "MHz", "1575.4 MHz"), (127.5, "", "127.5"), (0.561, "m", "0.561 m"), (2.0, "", "2"),
+    (1575.42, "MHz", "1575.42 MHz"), (127.5, "", "127.5"), (0.561, "m", "0.561 m"), (2.0, "", "2"),
     (-3.25, "dB", "−3.25 dB"), (None, "dB", "—"), ("metal skin", "", "metal skin"), (0, "", "0"),
     (float("inf"), "", "∞"), (12345.6, "", "12346"),
 ])

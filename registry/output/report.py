@@ -1,6 +1,7 @@
 """The `check` command's report: terminal text grouped by aircraft, JSON and CSV."""
 from __future__ import annotations
 
+import re
 from collections import Counter
 from collections.abc import Mapping
 from pathlib import Path
@@ -9,6 +10,7 @@ from registry.core.model import Fleet
 from registry.core.results import Discrepancy, Figure, FleetResults
 from registry.core.rulebook import ALL_STATES, FAULT_REMAINS_STATES, SEVERITIES
 from registry.output import findings_export
+from registry.output.numbers import number_text
 from registry.output.safe_text import json_for_terminal, terminal_line
 
 
@@ -72,6 +74,16 @@ def counts_line(found: list[Discrepancy]) -> str:
     return f"{len(found)} {noun} ({severities}), {still_open} open; review: {states or 'none'}"
 
 
+def value_seen(item: Discrepancy) -> str:
+    """What to write as a review's value_seen, when the value shown is rounded from it."""
+    if not isinstance(item.value, float):
+        return ""
+    shown = re.match(r"-?\d+(\.\d+)?", number_text(item.value, item.unit, item.rule))
+    if shown and float(shown.group()) == item.value:
+        return ""
+    return f" (value_seen: {item.value!r})"
+
+
 def review_text(item: Discrepancy) -> str:
     """The review part of a finding's line: state, who, reference, date, and whether it still counts as open."""
     text = item.review
@@ -101,10 +113,10 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str,
         mine = [item for item in found if item.aircraft == craft.id]
         lines.append(f"{craft.registration} ({craft.id}, {craft.airframe}): {counts_line(mine)}")
         for item in mine:
-            value = f"{item.value}{(' ' + item.unit) if item.unit else ''}"
             lines.append(f"  [{item.severity}] {item.id}  ({review_text(item)})")
             lines.append(f"      {item.message}")
-            lines.append(f"      value {value}, limit {item.limit}; {item.src}")
+            lines.append(f"      value {number_text(item.value, item.unit, item.rule)}, "
+                         f"limit {number_text(item.limit, item.unit, item.rule)}{value_seen(item)}; {item.src}")
         lines.append("")
     kept = stale_selected(stale, shown)
     for review in kept:
@@ -117,14 +129,8 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str,
 
 
 def format_value(figure: Figure) -> str:
-    value = figure.value
-    if isinstance(value, float) and value != value:
-        return "n/a"
-    if isinstance(value, float):
-        text = f"{value:.4g}" if abs(value) < 1e5 else f"{value:.6g}"
-    else:
-        text = "—" if value is None else str(value)
-    return f"{text} {figure.unit}".rstrip()
+    """A figure as `check --details` prints it: by its quantity (`output.numbers`)."""
+    return number_text(figure.value, figure.unit, figure.key)
 
 
 def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = None,

@@ -45,7 +45,7 @@ class FigureCells:
             if len(self.seen) > self.LIMIT:
                 self.seen.clear()
             cells = Markup(self.macros.figure_cells({
-                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value),
+                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value, figure.unit, figure.key),
                 "unit": figure.unit, "formula": figure.formula,
                 "inputs": tuple((name, value) for name, value in figure.inputs), "source": figure.source}))
             if plain is not None:

@@ -34,3 +34,20 @@ def state_key(review: str, is_open: bool) -> str:
     """The badge of a review: "action-raised-open" for a disposition that leaves the fault fitted and so
     still counts as open (`check.reviews.open_after`), else the state itself."""
     return f"{review}-open" if is_open and review in FAULT_REMAINS_STATES else review
+
+
+UNIT_SUFFIXES = {"m": "m", "mm": "mm", "mhz": "MHz", "ghz": "GHz", "ohm": "Ω", "deg": "°", "db": "dB",
+                 "dbi": "dBi", "pct": "%", "days": "days", "wavelengths": "λ"}
+"""A registry field's last word when it names the field's unit (`element_diameter_m` is in metres)."""
+
+FIELD_WORDS = {"bl": "BL", "wl": "WL", "sta": "STA", "vswr": "VSWR", "hf": "HF", "vhf": "VHF", "uhf": "UHF"}
+
+
+def field_label(name: str) -> tuple[str, str]:
+    """A registry field name as words and its unit: "element_diameter_m" → ("Element diameter", "m")."""
+    parts = name.split("_")
+    unit = UNIT_SUFFIXES.get(parts[-1], "") if len(parts) > 1 else ""
+    if unit:
+        parts = parts[:-1]
+    text = " ".join(FIELD_WORDS.get(part, part) for part in parts)
+    return (text[:1].upper() + text[1:]), unit

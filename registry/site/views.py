@@ -11,7 +11,7 @@ from registry.core.model import Aircraft, Installation
 from registry.core.results import Discrepancy, Figure, PatternResult
 from registry.core.rulebook import OPEN_STATES, SEVERITIES
 from registry.site.context import SiteData
-from registry.site.format import NONE_TEXT, exact, fmt, words
+from registry.site.format import NONE_TEXT, exact, fmt, vswr_text, words
 from registry.site.labels import FIGURE_GROUPS, STATE_KEYS, state_key
 from registry.site.pages_registry import line_href
 from registry.site.paths import (aircraft_path, anchor, antenna_path, cable_path, installation_path,
@@ -33,7 +33,7 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
         "aircraft_href": aircraft_path(item.aircraft) if aircraft else "index.html",
         "position": item.position, "positions": positions, "services": services,
         "href": installation_path(item.aircraft, first) if first else None,
-        "value": fmt(item.value, item.unit), "limit": fmt(item.limit, item.unit),
+        "value": fmt(item.value, item.unit, item.rule), "limit": fmt(item.limit, item.unit, item.rule),
         "value_raw": item.value, "limit_raw": item.limit, "unit": item.unit,
         "message": item.message, "method": item.method, "src": data.src_text(item.src),
         "src_href": line_href(data.src_text(item.src), data.fleet.data_dir),
@@ -70,7 +70,7 @@ def installation_row(data: SiteData, aircraft: Aircraft, installation: Installat
         "location": installation.location, "surface": words(installation.surface),
         "cable": installation.feeder.cable, "cable_href": cable_path(installation.feeder.cable),
         "length": exact(installation.feeder.length_m, "m"),
-        "measured_vswr": exact(measured.vswr) if measured and measured.vswr is not None else NONE_TEXT,
+        "measured_vswr": vswr_text(measured.vswr) if measured and measured.vswr is not None else NONE_TEXT,
         "measured_date": measured.date.isoformat() if measured else "",
         "status": data.status_of(aircraft.id, installation.position),
         "changed": bool(data.marks(aircraft.id, installation.position)),

@@ -149,3 +149,14 @@ def test_figure_registry_lines_link_to_their_line(built):
     assert len(links) > 5 and all(anchor == line for anchor, line in links)
     lines = (data / "aircraft" / "qx-tce.yaml").read_text(encoding="utf-8").splitlines()
     assert any("cable: RG-59" in lines[int(line) - 1] for line, _ in links)
+
+
+def test_action_raised_finding_shows_open_on_the_drawing_and_the_fleet_overview(built):
+    # the demo's action-raised review on QX-TCE's marker beacon: the 75 Ω cable is still fitted
+    _, site = built
+    aircraft = (site / "aircraft" / "qx-tce.html").read_text(encoding="utf-8")
+    assert re.search(r'class="mark st-blocking[^"]*" href="\.\./aircraft/qx-tce/MKR\.html"', aircraft)
+    installation = (site / "aircraft" / "qx-tce" / "MKR.html").read_text(encoding="utf-8")
+    assert '<span class="sev sev-blocking">' in installation.split('id="findings"', 1)[0]
+    record = json.loads((site / "record.json").read_text(encoding="utf-8"))
+    assert record["discrepancies"]["qx-tce/MKR/impedance-match"]["is_open"] is True

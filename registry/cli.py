@@ -43,7 +43,10 @@ def add_check_and_build(commands) -> None:
     """The `check` and `build` commands' arguments."""
     check = commands.add_parser(
         "check", help="validate the registry, compute every figure and report the discrepancies",
-        description="Exit 0 when no blocking discrepancy is open, 1 when one is, 2 on data or usage errors.")
+        description="Exit 0 when no blocking discrepancy is open, 1 when one is, 2 on data or usage errors. "
+                    "A blocking finding whose review is action-raised stays open (the fault is still fitted) "
+                    "unless the policy's action_raised_counts_open is false. With filters, only the findings "
+                    "selected are listed and counted for the exit code.")
     check.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",
                        help="registry folder (default: fleet_data)")
     check.add_argument("--format", choices=("text", "json", "csv"), default="text",
@@ -171,15 +174,17 @@ def run_check(args: argparse.Namespace, outcome) -> int:
         print(terminal_text(f"error: no aircraft or service named {', '.join(unknown)}"), file=sys.stderr)
         return EXIT_DATA
     found = report.select(outcome.discrepancies, fleet, args.aircraft, args.service, args.severity)
+    filters = {"aircraft": args.aircraft or [], "service": args.service or [], "severity": args.severity or []}
     as_of = outcome.as_of.isoformat()
     if args.format == "json":
-        sys.stdout.write(report.as_json(found, outcome.stale_reviews, as_of))
+        sys.stdout.write(report.as_json(fleet, found, outcome.stale_reviews, as_of, filters))
     elif args.format == "csv":
-        sys.stdout.write(report.as_csv(found))
+        sys.stdout.write(report.as_csv(fleet, found))
     else:
         if args.details:
             sys.stdout.write(report.details(fleet, outcome.results, args.aircraft, args.service))
-        sys.stdout.write(report.as_text(fleet, found, outcome.stale_reviews, as_of))
+        sys.stdout.write(report.as_text(fleet, found, outcome.stale_reviews, as_of, filters,
+                                        total=len(outcome.discrepancies)))
     return EXIT_OPEN if reviews.gate_fails(found) else EXIT_OK
 
 

@@ -78,7 +78,8 @@ def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incr
                              write, workers, plan.model_patterns)
 
     def pages(aircraft, part, summary):
-        return site.aircraft.render_fresh(aircraft, part, reviews.check_fleet(summary.findings, fleet.reviews))
+        return site.aircraft.render_fresh(aircraft, part,
+                                          reviews.check_fleet(summary.findings, fleet.reviews, fleet.policy))
 
     with collector_paused():
         rendered = evaluate.compute(plan, workers, progress, then=pages)
@@ -111,7 +112,8 @@ def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache
 def _outcome(fleet: Fleet, as_of: date, results: FleetResults) -> Outcome:
     """The findings (reviews applied) and stale reviews of computed results."""
     found = reviews.check_fleet((finding for aircraft_id in fleet.aircraft
-                                 for finding in results.summaries[aircraft_id].findings), fleet.reviews)
+                                 for finding in results.summaries[aircraft_id].findings), fleet.reviews,
+                                fleet.policy)
     return Outcome(fleet, as_of, results, found, reviews.stale_reviews(found, fleet.reviews))
 
 

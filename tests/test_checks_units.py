@@ -57,7 +57,37 @@ def test_review_without_discrepancy_is_stale():
 
 @pytest.mark.parametrize("severity, state, fails", [
     ("blocking", "open", True), ("blocking", "reopened", True), ("blocking", "accepted", False),
-    ("blocking", "action-raised", False), ("concern", "open", False), ("advisory", "open", False),
+    ("blocking", "action-raised", True), ("blocking", "no-fault", False), ("concern", "open", False),
+    ("advisory", "open", False), ("concern", "action-raised", False),
 ])
 def test_gate_fails_only_on_open_blocking(severity, state, fails):
-    assert checks.gate_fails([replace(discrepancy(), severity=severity, review=state)]) is fails
+    # the product's own definition (docs/registry-format.md): an action raised leaves the fault fitted
+    item = replace(discrepancy(), severity=severity)
+    reviewed = checks.apply_reviews([item], FrozenMap({item.id: review(item.value, state)})) \
+        if state not in ("open", "reopened") else [replace(item, review=state)]
+    assert checks.gate_fails(reviewed) is fails
+
+
+@pytest.mark.parametrize("state, counts_open, expected", [
+    ("action-raised", True, True), ("action-raised", False, False), ("accepted", True, False),
+    ("no-fault", True, False), ("accepted", False, False),
+])
+def test_policy_switch_decides_whether_an_action_raised_stays_open(state, counts_open, expected):
+    out = checks.apply_reviews([discrepancy(3.4)], FrozenMap({"qx-aaa/VHF1/feeder-loss": review(3.4, state)}),
+                               action_raised_counts_open=counts_open)
+    assert out[0].is_open is expected and out[0].review == state
+    assert out[0].review_date == "2026-01-15"
+
+
+def test_reopened_review_is_open_whatever_the_switch():
+    out = checks.apply_reviews([discrepancy(3.9)], FrozenMap({"qx-aaa/VHF1/feeder-loss": review(3.4, "accepted")}),
+                               action_raised_counts_open=False)
+    assert out[0].review == "reopened" and out[0].is_open
+
+
+def test_findings_are_ordered_by_id_whatever_their_severity():
+    items = [replace(discrepancy(), id="qx-aaa/VHF2/isolation", severity="advisory"),
+             replace(discrepancy(), id="qx-aaa/MKR/band-coverage", severity="blocking"),
+             replace(discrepancy(), id="qx-aaa/DME1/feeder-loss", severity="concern")]
+    assert [d.id for d in checks.check_fleet(items, FrozenMap({}))] == [
+        "qx-aaa/DME1/feeder-loss", "qx-aaa/MKR/band-coverage", "qx-aaa/VHF2/isolation"]

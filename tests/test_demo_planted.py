@@ -43,7 +43,7 @@ def test_check_finds_exactly_the_planted_problems(capsys):
     assert {item["id"] for item in found} == planted_ids()
     for item in found:  # every discrepancy points at the registry line its value came from
         path, line = item["source"].rsplit(":", 1)
-        assert Path(path).is_file() and path.endswith(".yaml") and int(line) > 0
+        assert (DEMO / path).is_file() and path.endswith(".yaml") and int(line) > 0  # relative to the data folder
     assert code == 1  # blocking problems are open in the demo
 
 
@@ -66,16 +66,58 @@ def reviewed_copy(tmp_path, reviews: list[dict]) -> Path:
     return data
 
 
-def test_reviewing_every_blocking_problem_opens_the_gate(tmp_path, capsys):
+def test_accepting_every_blocking_problem_opens_the_gate(tmp_path, capsys):
     _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "blocking")
     blocking = json.loads(out)["discrepancies"]
     assert blocking
-    reviews = [{"id": item["id"], "state": "action-raised", "reviewer": "R. Marlow", "date": "2026-12-01",
-                "reference": "CR-2026-0001", "value_seen": item["value"]} for item in blocking]
+    reviews = [{"id": item["id"], "state": "accepted", "reviewer": "R. Marlow", "date": "2026-12-01",
+                "reference": "ENG-2026-0001", "value_seen": item["value"]} for item in blocking]
     code, out = run_check(capsys, str(reviewed_copy(tmp_path, reviews)), "--format", "json")
     assert code == 0
-    states = {item["id"]: item["review"] for item in json.loads(out)["discrepancies"]}
-    assert all(states[item["id"]] == "action-raised" for item in blocking)
+    found = {item["id"]: item for item in json.loads(out)["discrepancies"]}
+    assert all(found[item["id"]]["review"] == "accepted" and not found[item["id"]]["counts_open"]
+               for item in blocking)
+
+
+def test_an_action_raised_keeps_the_gate_shut_unless_the_policy_says_otherwise(tmp_path, capsys):
+    # an action raised is not an action done: the fault is still fitted (docs/registry-format.md, reviews)
+    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "blocking")
+    blocking = json.loads(out)["discrepancies"]
+    reviews = [{"id": item["id"], "state": "action-raised", "reviewer": "R. Marlow", "date": "2026-12-01",
+                "reference": "CR-2026-0001", "value_seen": item["value"]} for item in blocking]
+    data = reviewed_copy(tmp_path, reviews)
+    code, out = run_check(capsys, str(data), "--format", "json")
+    assert code == 1
+    found = {item["id"]: item for item in json.loads(out)["discrepancies"]}
+    assert all(found[item["id"]]["review"] == "action-raised" and found[item["id"]]["counts_open"]
+               for item in blocking)
+    with (data / "policy.yaml").open("a", encoding="utf-8") as policy:
+        policy.write("\naction_raised_counts_open: false\n")
+    code, out = run_check(capsys, str(data), "--format", "json")
+    assert code == 0
+    assert not any(item["counts_open"] for item in json.loads(out)["discrepancies"] if item["severity"] == "blocking")
+
+
+def test_the_demo_action_raised_review_leaves_qx_tce_open(capsys):
+    # fleet_data/reviews.yaml: the 75 Ω cable on QX-TCE's marker beacon is still fitted (action raised only)
+    code, out = run_check(capsys, str(DEMO), "--aircraft", "QX-TCE", "--format", "json")
+    item = next(d for d in json.loads(out)["discrepancies"] if d["id"] == "qx-tce/MKR/impedance-match")
+    assert item["review"] == "action-raised" and item["counts_open"] and item["review_date"] == "2026-11-20"
+    assert code == 1
+    code, text = run_check(capsys, str(DEMO), "--aircraft", "QX-TCE")
+    assert code == 1
+    assert "action-raised by H. Quill, CR-2026-0412, 2026-11-20: fault still fitted, counts as open" in text
+
+
+def test_the_policy_switch_is_schema_checked(tmp_path, capsys):
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    with (data / "policy.yaml").open("a", encoding="utf-8") as policy:
+        policy.write("\naction_raised_counts_open: sometimes\n")
+    code = cli.main(["check", str(data)])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "policy.yaml" in err and "action_raised_counts_open" in err and "Traceback" not in err
 
 
 def test_review_reopens_when_the_value_changes(tmp_path, capsys):
@@ -93,7 +135,7 @@ def test_review_reopens_when_the_value_changes(tmp_path, capsys):
 def test_csv_and_text_carry_the_same_problems(capsys):
     _, out = run_check(capsys, str(DEMO), "--format", "csv")
     rows = out.strip().splitlines()
-    assert rows[0].startswith("id,rule,severity,aircraft,position,value,limit,unit,message")
+    assert rows[0].startswith("\ufeffid,severity,counts_open,aircraft,registration,position,services,rule,value")
     assert {row.split(",", 1)[0] for row in rows[1:]} == planted_ids()
     _, text = run_check(capsys, str(DEMO))
     assert all(item in text for item in planted_ids())

@@ -129,7 +129,8 @@ def small_discrepancies() -> list[Discrepancy]:
                     "Isolation 31 dB below the 40 dB minimum", "Friis free-space", "/data/fleet/aircraft/qx-tqa.yaml:13"),
         Discrepancy("qx-tqa/XPDR1/measurement-age", "measurement-age", "advisory", "qx-tqa", "XPDR1", 800, 730,
                     "days", "Measurement is 800 days old", "policy age", "/data/fleet/aircraft/qx-tqa.yaml:60",
-                    review="accepted", reviewer="A. Fictional", review_reference="ENG-1"),
+                    review="accepted", reviewer="A. Fictional", review_reference="ENG-1", review_date="2026-01-10",
+                    is_open=False),
         Discrepancy("qx-tqa/VHF2/feeder-loss", "feeder-loss", "blocking", "qx-tqa", "VHF2", 3.4, 3.0, "dB",
                     "Feeder loss 3.4 dB above the 3 dB budget", "loss budget", "/data/fleet/aircraft/qx-tqa.yaml:36"),
     ]
@@ -266,10 +267,12 @@ def test_render_twice_gives_identical_bytes():
 
 def test_exports_hold_every_discrepancy():
     files = site()
-    rows = list(csv.DictReader(io.StringIO(text(files, "audit/discrepancies.csv"))))
-    assert [row["id"] for row in rows] == ["qx-tqa/VHF2/feeder-loss", "qx-tqa/VHF1+VHF2/isolation",
-                                           "qx-tqa/XPDR1/measurement-age"]
-    assert rows[0]["value"] == "3.4" and rows[0]["source"] == "aircraft/qx-tqa.yaml:36"
+    table = text(files, "audit/discrepancies.csv")
+    assert table.startswith("\ufeffid,")  # UTF-8 byte-order mark first, so spreadsheets read Ω and § as written
+    rows = list(csv.DictReader(io.StringIO(table[1:])))
+    assert [row["id"] for row in rows] == ["qx-tqa/VHF1+VHF2/isolation", "qx-tqa/VHF2/feeder-loss",
+                                           "qx-tqa/XPDR1/measurement-age"]  # by id, as check and the record
+    assert rows[1]["value"] == "3.4" and rows[1]["source"] == "aircraft/qx-tqa.yaml:36"
     document = json.loads(text(files, "audit/discrepancies.json"))
     assert document["build"]["revision"] == "abc1234"
     assert [d["review"] for d in document["discrepancies"]] == ["open", "open", "accepted"]
@@ -293,7 +296,7 @@ def test_methods_page_groups_formulas_and_carries_cautions():
 
 
 @pytest.mark.parametrize("value, unit, expected", [
-    (1575.42, "MHz", "1575.4 MHz"), (127.5, "", "127.5"), (0.561, "m", "0.561 m"), (2.0, "", "2"),
+    (1575.42, "MHz", "1575.42 MHz"), (127.5, "", "127.5"), (0.561, "m", "0.561 m"), (2.0, "", "2"),
     (-3.25, "dB", "−3.25 dB"), (None, "dB", "—"), ("metal skin", "", "metal skin"), (0, "", "0"),
     (float("inf"), "", "∞"), (12345.6, "", "12346"),
 ])

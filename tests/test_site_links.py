@@ -79,7 +79,7 @@ def test_second_build_is_byte_identical(demo_site, demo_data, tmp_path):
 
 
 def test_downloads_and_search_index_are_written(demo_site):
-    assert (demo_site / "audit" / "discrepancies.csv").read_text(encoding="utf-8").startswith("id,severity,")
+    assert (demo_site / "audit" / "discrepancies.csv").read_text(encoding="utf-8").startswith("\ufeffid,severity,")
     assert (demo_site / "audit" / "discrepancies.json").is_file()
     index = (demo_site / "static" / "search-index.js").read_text(encoding="utf-8")
     assert index.startswith("window.AERIALBOOK_SEARCH = [")

@@ -1,7 +1,10 @@
 """Check stage, second half: the fleet's findings gathered, the auditors' reviews applied, the merge gate.
 
 A review whose recorded value no longer matches the finding reopens it; a review whose finding has gone
-is stale.
+is stale. A disposition that leaves the fault fitted (`FAULT_REMAINS_STATES`: an action raised is not an
+action done) keeps the finding open for the gate, the chips and the counts unless the policy's
+`action_raised_counts_open` is false. Findings are in one order everywhere (`finding_order`: by id, so
+within an aircraft by position, then rule), the order of the terminal, the site, the CSV and the record.
 """
 from __future__ import annotations
 
@@ -10,29 +13,47 @@ from dataclasses import replace
 
 from registry.core.model import Review
 from registry.core.results import Discrepancy
-from registry.core.rulebook import OPEN_STATES, SEVERITIES
+from registry.core.rulebook import FAULT_REMAINS_STATES, OPEN_STATES, SEVERITIES
 
 
-def check_fleet(findings: Iterable[Discrepancy], reviews: Mapping[str, Review]) -> list[Discrepancy]:
-    """Every finding of the fleet (the rules' output, aircraft by aircraft), sorted by id, with the
-    reviews applied."""
-    found = sorted(findings, key=lambda item: item.id)
-    return apply_reviews(found, reviews)
+def finding_order(item: Discrepancy) -> str:
+    """The one order of findings: by id (`<aircraft>/<position>/<rule>`), as record.json's keys are sorted."""
+    return item.id
 
 
-def apply_reviews(found: list[Discrepancy], reviews) -> list[Discrepancy]:
-    """Attach each review to its discrepancy; a review whose value no longer matches reopens it."""
+def check_fleet(findings: Iterable[Discrepancy], reviews: Mapping[str, Review], policy=None) -> list[Discrepancy]:
+    """Every finding of the fleet (the rules' output, aircraft by aircraft), in `finding_order`, with the
+    reviews applied under the policy's review switch."""
+    found = sorted(findings, key=finding_order)
+    return apply_reviews(found, reviews, action_raised_open(policy))
+
+
+def action_raised_open(policy) -> bool:
+    """The policy's switch: does an action raised keep its finding open? (Yes unless the policy says no.)"""
+    return bool(getattr(policy, "action_raised_counts_open", True))
+
+
+def apply_reviews(found: list[Discrepancy], reviews, action_raised_counts_open: bool = True) -> list[Discrepancy]:
+    """Attach each review to its discrepancy; a review whose value no longer matches reopens it. Each
+    finding's `is_open` says whether it still counts as open (`open_after`)."""
     out = []
     for item in found:
         review: Review | None = reviews.get(item.id)
         if review is None:
-            out.append(item)
+            out.append(replace(item, is_open=True))
             continue
         seen = review.value_seen
         changed = seen is not None and not same_value(seen, item.value)
-        out.append(replace(item, review="reopened" if changed else review.state, reviewer=review.reviewer,
-                           review_comment=review.comment, review_reference=review.reference))
+        state = "reopened" if changed else review.state
+        out.append(replace(item, review=state, reviewer=review.reviewer, review_comment=review.comment,
+                           review_reference=review.reference, review_date=review.date.isoformat(),
+                           is_open=open_after(state, action_raised_counts_open)))
     return out
+
+
+def open_after(state: str, action_raised_counts_open: bool = True) -> bool:
+    """A review state counts as open: open, reopened, or a disposition that leaves the fault fitted."""
+    return state in OPEN_STATES or (action_raised_counts_open and state in FAULT_REMAINS_STATES)
 
 
 def stale_reviews(found: list[Discrepancy], reviews) -> list[Review]:
@@ -49,7 +70,8 @@ def same_value(seen, value) -> bool:
 
 
 def is_open(item: Discrepancy) -> bool:
-    return item.review in OPEN_STATES
+    """Open for the gate and the counts, as `apply_reviews` decided under the policy."""
+    return item.is_open
 
 
 def gate_fails(found: list[Discrepancy]) -> bool:

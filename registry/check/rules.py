@@ -121,7 +121,7 @@ def vswr_bandwidth(s: Subject) -> list[Discrepancy]:
     return [make(
         "vswr-bandwidth", *s.ids, needed.value, matchable.value, "%",
         f"The {s.service.name} band is {needed.value:.1f} % wide but with its modelled Q of "
-        f"{s.fig(FK.VSWR_Q).value:.1f} no matching network can hold VSWR {limit:g} over more than "
+        f"{s.fig(FK.VSWR_Q).value:.1f} no matching network can hold VSWR {limit:.2f}:1 over more than "
         f"{matchable.value:.1f} %.", matchable)]
 
 
@@ -133,7 +133,7 @@ def measured_vswr(s: Subject) -> list[Discrepancy]:
         if measured is not None and isinstance(measured.value, float) and measured.value > limit:
             return [make(
                 "measured-vswr", *s.ids, measured.value, limit, "",
-                f"{what} is {measured.value:.2f} against a limit of {limit:g}"
+                f"{what} is {measured.value:.2f}:1 against a limit of {limit:.2f}:1"
                 f"{' inside the service band' if key == FK.SWEEP_MAX_VSWR else ''}.",
                 measured, "Pozar, Microwave Engineering, 4th ed., §2.3")]
     return []
@@ -161,7 +161,7 @@ def impedance_match(s: Subject) -> list[Discrepancy]:
         "impedance-match", *s.ids, cable_ohm, antenna_ohm, "Ω",
         f"Cable {s.cable.id} is {cable_ohm:g} Ω but antenna {s.model.id} is "
         f"{antenna_ohm:g} Ω: the joint alone gives VSWR "
-        f"{max(cable_ohm, antenna_ohm) / min(cable_ohm, antenna_ohm):.2f}.",
+        f"{max(cable_ohm, antenna_ohm) / min(cable_ohm, antenna_ohm):.2f}:1.",
         Figure("", "", cable_ohm, "Ω", src=where(s.installation, "feeder.cable")),
         "Pozar, Microwave Engineering, 4th ed., §2.3")]
 
@@ -248,7 +248,7 @@ def ground_plane_effect(s: Subject) -> list[Discrepancy]:
                      f"On its {s.fig(FK.GROUND_RADIUS_M).value:.3f} m plate ({radius.value:.2f} λ) the monopole's "
                      f"input impedance moves from {s.fig(FK.GROUND_Z_REFERENCE_OHM).value} Ω to "
                      f"{s.fig(FK.GROUND_Z_PLATE_OHM).value} Ω: a match made for a large ground reads VSWR "
-                     f"{shift.value:.2f} against the {limit:g} limit.", shift)]
+                     f"{shift.value:.2f}:1 against the {limit:.2f}:1 limit.", shift)]
     if lost.value > HORIZON_LOSS_LIMIT_DB:
         return [make("ground-plane-effect", *s.ids, lost.value, HORIZON_LOSS_LIMIT_DB, "dB",
                      f"On its {radius.value:.2f} λ plate the monopole loses {lost.value:.1f} dB of horizon gain "

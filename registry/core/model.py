@@ -306,6 +306,7 @@ class Policy(Sourced):
     """Pitch angle (degrees, nose up and down) the coverage rule checks, by must_see region."""
     cosite_services: FrozenMap = field(default_factory=FrozenMap)
     """Service id → co-site figure key → (value, source): the policy's overrides of the service table."""
+    action_raised_counts_open: bool = True
 
     def vswr_limit_for(self, service: str) -> float:
         return self.vswr_limit_by_service.get(service, self.vswr_limit)

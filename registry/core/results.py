@@ -331,3 +331,8 @@ class Discrepancy:
     reviewer: str = ""
     review_comment: str = ""
     review_reference: str = ""
+    review_date: str = ""
+    """The review's date (ISO), "" without a review."""
+    is_open: bool = True
+    """Open for the merge gate, the chips and the counts: no review, a reopened one, or a disposition that
+    leaves the fault in place (`rulebook.FAULT_REMAINS_STATES`) unless the policy says otherwise."""

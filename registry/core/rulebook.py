@@ -41,3 +41,7 @@ OPEN_STATES = ("open", "reopened")
 """Derived states: no review yet, or the value changed since the reviewer saw it."""
 
 ALL_STATES = OPEN_STATES + REVIEW_STATES
+
+FAULT_REMAINS_STATES = ("action-raised",)
+"""Dispositions that leave the fault fitted (an action raised is not an action done): the finding stays
+open for the merge gate, the chips and the counts unless the policy's `action_raised_counts_open` is false."""

@@ -26,6 +26,7 @@ from registry.load.yamlsource import YamlDoc, read_yaml
 
 SHIPPED_DIR = Path(__file__).parent.parent / "data"
 _COSITE_POLICY = {"cosite_max_harmonic_order": int, "cosite_small_margin_db": float}
+_REVIEW_POLICY = {"action_raised_counts_open": bool}
 _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "sources")
 _COVERAGE_POLICY = ("coverage_bank_deg", "coverage_pitch_deg")  # maps by must_see region, merged key by key
 
@@ -303,4 +304,5 @@ class _Run:
             **{key: kind(merged[key]) for key, kind in _COSITE_POLICY.items() if key in merged},
             **{key: FrozenMap({k: float(v) for k, v in merged[key].items()}) for key in _COVERAGE_POLICY if key in merged},
             cosite_services=policy_cosite.build(merged.get(policy_cosite.KEY, {})),
+            **{key: kind(merged[key]) for key, kind in _REVIEW_POLICY.items() if key in merged},
         )

@@ -108,7 +108,7 @@ def figure_lines(result: Comparison) -> list[str]:
         if item.owner != owner:
             owner = item.owner
             lines.append(f"  {item.scope} {owner}")
-        lines.append(f"    {item.key:<32} {figure_text(item.old, item.unit)} → {figure_text(item.new, item.unit)}"
+        lines.append(f"    {item.key:<32} {figure_text(item.old, item.unit, item.key)} → {figure_text(item.new, item.unit, item.key)}"
                      + (f"  ({delta_text(item)})" if delta_text(item) else ""))
     return lines
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 from typing import Any
 
 from registry.output.comparison import FigureChange
+from registry.output.numbers import number_text
 
 TEXT_WIDTH = 60
 
@@ -25,9 +26,10 @@ def show(value: Any, unit: str = "") -> str:
     return f"{text} {unit}" if unit else text
 
 
-def figure_text(value: Any, unit: str) -> str:
+def figure_text(value: Any, unit: str, key: str = "") -> str:
+    """A computed figure by its quantity (`output.numbers`); registry values as typed (`show`)."""
     if isinstance(value, float):
-        return f"{value:.4g}" + (f" {unit}" if unit else "")
+        return number_text(value, unit, key)
     return show(value, unit)
 
 

@@ -1,27 +1,17 @@
 """The `check` command's report: terminal text grouped by aircraft, JSON and CSV."""
 from __future__ import annotations
 
-import csv
-import io
-import json
+import re
 from collections import Counter
-from dataclasses import asdict
+from collections.abc import Mapping
+from pathlib import Path
 
 from registry.core.model import Fleet
 from registry.core.results import Discrepancy, Figure, FleetResults
-from registry.core.rulebook import ALL_STATES, SEVERITIES
-from registry.output.safe_text import json_for_terminal, spreadsheet_cell, terminal_line
-
-FIELDS = ("id", "rule", "severity", "aircraft", "position", "value", "limit", "unit", "message", "method",
-          "source", "review", "reviewer", "review_reference", "review_comment")
-"""The columns of `check --format csv/json`; "source" is the finding's registry line (`Discrepancy.src`)."""
-
-
-def exported(item: Discrepancy) -> dict:
-    """A finding as the `check` exports name its fields."""
-    row = asdict(item)
-    row["source"] = row.pop("src")
-    return {name: row[name] for name in FIELDS}
+from registry.core.rulebook import ALL_STATES, FAULT_REMAINS_STATES, SEVERITIES
+from registry.output import findings_export
+from registry.output.numbers import number_text
+from registry.output.safe_text import json_for_terminal, terminal_line
 
 
 def matches(craft, services, aircraft: list[str] | None, service: list[str] | None) -> bool:
@@ -42,25 +32,36 @@ def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = 
     return out
 
 
-def as_json(found: list[Discrepancy], stale: list, as_of: str) -> str:
-    """The report as JSON; control characters that JSON leaves as they are come out as \\u escapes."""
-    return json_for_terminal(json.dumps({
-        "as_of": as_of,
-        "discrepancies": [exported(item) for item in found],
-        "stale_reviews": [{"discrepancy": review.discrepancy, "state": review.state,
-                           "source": f"{review.src.path}:{review.src.line}"} for review in stale],
-    }, indent=2, ensure_ascii=False)) + "\n"
+def selected_aircraft(fleet: Fleet, filters: Mapping[str, list[str]]) -> list:
+    """The aircraft a filtered report lists: those named, or those with an installation of a named service."""
+    return [craft for craft in fleet.aircraft.values()
+            if matches(craft, [i.service for i in craft.installations.values()] or [""],
+                       filters.get("aircraft"), filters.get("service"))]
 
 
-def as_csv(found: list[Discrepancy]) -> str:
-    """The report as CSV, each text cell neutralised for spreadsheets (`safe_text.spreadsheet_cell`).
-    Lines end in CR LF (RFC 4180, section 2), so a cell holding a carriage return is quoted too."""
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\r\n")
-    writer.writerow(FIELDS)
-    for item in found:
-        writer.writerow(["" if value is None else spreadsheet_cell(value) for value in exported(item).values()])
-    return buffer.getvalue()
+def filters_text(filters: Mapping[str, list[str]]) -> str:
+    """"aircraft QX-TCE; severity blocking", or "" without filters."""
+    return "; ".join(f"{name} {', '.join(values)}" for name, values in filters.items() if values)
+
+
+def stale_selected(stale: list, aircraft: list) -> list:
+    ids = {craft.id for craft in aircraft}
+    return [review for review in stale if review.aircraft_id in ids]
+
+
+def as_json(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str,
+            filters: Mapping[str, list[str]] | None = None) -> str:
+    """The report as JSON (`findings_export`); control characters JSON leaves as they are come out as \\u escapes."""
+    filters = filters or {}
+    kept = stale_selected(stale, selected_aircraft(fleet, filters))
+    return json_for_terminal(findings_export.as_json(
+        findings_export.rows(found, fleet), [findings_export.stale_entry(r, Path(fleet.data_dir)) for r in kept],
+        as_of, filters))
+
+
+def as_csv(fleet: Fleet, found: list[Discrepancy]) -> str:
+    """The report as CSV (`findings_export`: the audit page's download has the same bytes)."""
+    return findings_export.as_csv(findings_export.rows(found, fleet))
 
 
 def counts_line(found: list[Discrepancy]) -> str:
@@ -69,44 +70,67 @@ def counts_line(found: list[Discrepancy]) -> str:
     severities = ", ".join(f"{by_severity[name]} {name}" for name in SEVERITIES)
     states = ", ".join(f"{by_state[name]} {name}" for name in ALL_STATES if by_state[name])
     noun = "discrepancy" if len(found) == 1 else "discrepancies"
-    return f"{len(found)} {noun} ({severities}); review: {states or 'none'}"
+    still_open = sum(1 for item in found if item.is_open)
+    return f"{len(found)} {noun} ({severities}), {still_open} open; review: {states or 'none'}"
 
 
-def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str) -> str:
-    """Grouped by aircraft, each with its counts; then stale reviews; then the fleet's totals. Every line
-    is cleared of control characters and escape sequences (`safe_text.terminal_line`)."""
+def value_seen(item: Discrepancy) -> str:
+    """What to write as a review's value_seen, when the value shown is rounded from it."""
+    if not isinstance(item.value, float):
+        return ""
+    shown = re.match(r"-?\d+(\.\d+)?", number_text(item.value, item.unit, item.rule))
+    if shown and float(shown.group()) == item.value:
+        return ""
+    return f" (value_seen: {item.value!r})"
+
+
+def review_text(item: Discrepancy) -> str:
+    """The review part of a finding's line: state, who, reference, date, and whether it still counts as open."""
+    text = item.review
+    if item.reviewer:
+        text += f" by {item.reviewer}" + (f", {item.review_reference}" if item.review_reference else "")
+        text += f", {item.review_date}" if item.review_date else ""
+    if item.review in FAULT_REMAINS_STATES:
+        text += ": fault still fitted, counts as open" if item.is_open else ": counts as closed (policy)"
+    return text
+
+
+def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str,
+            filters: Mapping[str, list[str]] | None = None, total: int | None = None) -> str:
+    """Grouped by aircraft (only the aircraft selected), each with its counts; then stale reviews; then the
+    totals. A filtered report says what was filtered first. Every line is cleared of control characters and
+    escape sequences (`safe_text.terminal_line`)."""
+    filters = filters or {}
+    shown = selected_aircraft(fleet, filters)
     lines = [f"{fleet.operator}: {len(fleet.aircraft)} aircraft, "
-             f"{sum(len(a.installations) for a in fleet.aircraft.values())} installations, as of {as_of}", ""]
-    for craft in fleet.aircraft.values():
+             f"{sum(len(a.installations) for a in fleet.aircraft.values())} installations, as of {as_of}"]
+    if filters_text(filters):
+        lines.append(f"filtered: {filters_text(filters)}: {len(found)} of {total if total is not None else len(found)} "
+                     f"findings, {len(shown)} of {len(fleet.aircraft)} aircraft listed; the exit code counts "
+                     f"only these findings")
+    lines.append("")
+    for craft in shown:
         mine = [item for item in found if item.aircraft == craft.id]
         lines.append(f"{craft.registration} ({craft.id}, {craft.airframe}): {counts_line(mine)}")
         for item in mine:
-            value = f"{item.value}{(' ' + item.unit) if item.unit else ''}"
-            review = item.review
-            if item.reviewer:
-                review += f" by {item.reviewer}" + (f", {item.review_reference}" if item.review_reference else "")
-            lines.append(f"  [{item.severity}] {item.id}  ({review})")
+            lines.append(f"  [{item.severity}] {item.id}  ({review_text(item)})")
             lines.append(f"      {item.message}")
-            lines.append(f"      value {value}, limit {item.limit}; {item.src}")
+            lines.append(f"      value {number_text(item.value, item.unit, item.rule)}, "
+                         f"limit {number_text(item.limit, item.unit, item.rule)}{value_seen(item)}; {item.src}")
         lines.append("")
-    for review in stale:
+    kept = stale_selected(stale, shown)
+    for review in kept:
         lines.append(f"stale review: {review.src.path}:{review.src.line}: {review.discrepancy} "
                      f"({review.state}) matches no current discrepancy")
-    if stale:
+    if kept:
         lines.append("")
-    lines.append(f"fleet: {counts_line(found)}")
+    lines.append(f"{'selected' if filters_text(filters) else 'fleet'}: {counts_line(found)}")
     return "\n".join(terminal_line(line) for line in lines) + "\n"
 
 
 def format_value(figure: Figure) -> str:
-    value = figure.value
-    if isinstance(value, float) and value != value:
-        return "n/a"
-    if isinstance(value, float):
-        text = f"{value:.4g}" if abs(value) < 1e5 else f"{value:.6g}"
-    else:
-        text = "—" if value is None else str(value)
-    return f"{text} {figure.unit}".rstrip()
+    """A figure as `check --details` prints it: by its quantity (`output.numbers`)."""
+    return number_text(figure.value, figure.unit, figure.key)
 
 
 def details(fleet: Fleet, results: FleetResults, aircraft: list[str] | None = None,

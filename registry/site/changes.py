@@ -53,7 +53,7 @@ def changes_page(result: Comparison, *, aircraft_href: Callable[[str], str],
                       for item in result.items if item.kind != "aircraft"],
         "discrepancies": [discrepancy_row(item, registration(item.aircraft), install_href) for item in result.discrepancies],
         "figures": [{"scope": item.scope, "owner": item.owner, "key": item.key, "label": item.label,
-                     "old": figure_text(item.old, item.unit), "new": figure_text(item.new, item.unit),
+                     "old": figure_text(item.old, item.unit, item.key), "new": figure_text(item.new, item.unit, item.key),
                      "delta": delta_text(item),
                      "href": install_href(item.aircraft, item.positions[0]) if item.aircraft else None}
                     for item in result.figures],

@@ -14,10 +14,11 @@ from markupsafe import Markup
 from registry.output.comparison import Comparison
 from registry.core.model import Fleet
 from registry.core.results import Discrepancy, Figure, FleetResults
-from registry.core.rulebook import OPEN_STATES
+from registry.check.reviews import finding_order
 from registry.site.format import fmt
 from registry.site.info import BuildInfo
 from registry.site.labels import severity_rank
+from registry.site.pages_registry import line_href
 from registry.site.paths import anchor
 
 PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent.parent) + "/"
@@ -44,7 +45,7 @@ class FigureCells:
             if len(self.seen) > self.LIMIT:
                 self.seen.clear()
             cells = Markup(self.macros.figure_cells({
-                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value),
+                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value, figure.unit, figure.key),
                 "unit": figure.unit, "formula": figure.formula,
                 "inputs": tuple((name, value) for name, value in figure.inputs), "source": figure.source}))
             if plain is not None:
@@ -58,7 +59,7 @@ class SiteData:
 
     fleet: Fleet
     results: FleetResults
-    discrepancies: tuple[Discrepancy, ...]   # most severe first, then by id
+    discrepancies: tuple[Discrepancy, ...]   # in `check.reviews.finding_order` (by id), as everywhere
     build: BuildInfo
     comparison: Comparison | None
     by_position: Mapping[tuple[str, str], list[Discrepancy]]
@@ -82,16 +83,18 @@ class SiteData:
 
     def status_of(self, aircraft_id: str, position: str) -> str:
         """The most severe open finding at an installation, or "clear"."""
-        open_items = [d for d in self.by_position.get((aircraft_id, position), []) if d.review in OPEN_STATES]
+        open_items = [d for d in self.by_position.get((aircraft_id, position), []) if d.is_open]
         return min((d.severity for d in open_items), key=severity_rank, default="clear")
 
     def marks(self, aircraft_id: str, position: str | None = None) -> tuple[str, ...]:
         """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
         return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
 
-    def figure_view(self, figure: Figure) -> tuple[Markup, str]:
-        """A figure's row in a figure table: its cells up to the registry line, and its registry line."""
-        return self.figure_cells(figure), self.src_text(figure.src) if figure.src else ""
+    def figure_view(self, figure: Figure) -> tuple[Markup, str, str | None]:
+        """A figure's row in a figure table: its cells up to the registry line, its registry line, and the
+        link to that line on its registry file's page (None when it has none)."""
+        src = self.src_text(figure.src) if figure.src else ""
+        return self.figure_cells(figure), src, line_href(src, self.fleet.data_dir)
 
 
 def pattern_of(results: FleetResults, aircraft_id: str, position: str) -> str | None:
@@ -120,7 +123,7 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
     reviews_of: dict[str, list] = defaultdict(list)
     for name, review in fleet.reviews.items():
         reviews_of[name.split("/", 1)[0]].append(review)
-    ordered = tuple(sorted(discrepancies, key=findings_order))
+    ordered = tuple(sorted(discrepancies, key=finding_order))
     by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
     by_aircraft: dict[str, list[Discrepancy]] = defaultdict(list)
     place_findings(by_position, by_aircraft, ordered)
@@ -134,7 +137,7 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
 
 def with_findings(data: SiteData, discrepancies: Iterable[Discrepancy]) -> SiteData:
     """The same context with the fleet's findings in it."""
-    ordered = tuple(sorted(discrepancies, key=findings_order))
+    ordered = tuple(sorted(discrepancies, key=finding_order))
     by_position: dict[tuple[str, str], list[Discrepancy]] = defaultdict(list)
     by_aircraft: dict[str, list[Discrepancy]] = defaultdict(list)
     place_findings(by_position, by_aircraft, ordered)
@@ -143,16 +146,11 @@ def with_findings(data: SiteData, discrepancies: Iterable[Discrepancy]) -> SiteD
 
 def place_findings(by_position: dict[tuple[str, str], list[Discrepancy]], by_aircraft: dict[str, list[Discrepancy]],
                    ordered: Iterable[Discrepancy]) -> None:
-    """File findings (most severe first, then by id) under their aircraft and each of their positions."""
+    """File findings (in `finding_order`) under their aircraft and each of their positions."""
     for item in ordered:
         by_aircraft[item.aircraft].append(item)
         for position in item.position.split("+"):
             by_position[(item.aircraft, position)].append(item)
-
-
-def findings_order(item: Discrepancy) -> tuple[int, str]:
-    """Most severe first, then by id: the order of findings on every page."""
-    return severity_rank(item.severity), item.id
 
 
 class AircraftPieces(NamedTuple):

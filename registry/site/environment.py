@@ -6,7 +6,7 @@ from typing import Iterator
 
 import jinja2
 
-from registry.site.format import exact, fmt
+from registry.site.format import exact, fmt, vswr_text
 from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, STATUS_LABELS
 
 TEMPLATE_DIR = Path(__file__).resolve().parent.parent.parent / "site_templates"
@@ -39,6 +39,7 @@ def environment() -> jinja2.Environment:
     )
     env.filters["fmt"] = fmt
     env.filters["exact"] = exact
+    env.filters["vswr"] = vswr_text
     env.globals.update(severity_labels=SEVERITY_LABELS, status_labels=STATUS_LABELS, state_labels=STATE_LABELS,
                        nav_items=NAV_ITEMS)
     return env

@@ -1,8 +1,8 @@
-"""The site's one set of text formatters: numbers, register values, bands, locations and notes."""
+"""The site's one set of text formatters: numbers (by quantity, through `output.numbers`, the rule the
+terminal uses too), register values, bands, locations, field labels and notes."""
 from __future__ import annotations
 
 import functools
-import math
 import re
 from typing import Any, Iterable
 
@@ -10,6 +10,8 @@ import markdown
 import nh3
 
 from registry.core.results import Figure
+from registry.output.numbers import number_text
+from registry.site.labels import field_label
 
 NONE_TEXT = "—"
 """Shown where there is no value."""
@@ -19,29 +21,17 @@ NOTES_TAGS = {"p", "br", "strong", "em", "b", "i", "code", "pre", "ul", "ol", "l
 SAFE_LINK = re.compile(r"^(https?:|mailto:)", re.IGNORECASE)
 
 
-def _number(number: float) -> str:
-    """A number (not NaN) to five significant figures, without trailing zeros."""
-    if not math.isfinite(number):
-        return "∞" if number > 0 else "−∞"
-    if number == 0:
-        return "0"
-    decimals = min(max(0, 4 - math.floor(math.log10(abs(number)))), 8)
-    text = f"{number:.{decimals}f}"
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return text.replace("-", "−")
-
-
-def fmt(value: Any, unit: str = "") -> str:
-    """A value for display: numbers to five significant figures without trailing zeros."""
+def fmt(value: Any, unit: str = "", key: str = "") -> str:
+    """A value for display, by quantity (`output.numbers`: digits suited to the unit, VSWR as n.nn:1 when
+    the figure key or rule names one); "n/a" never carries a unit; minus signs typeset as U+2212."""
     if value is None:
         return NONE_TEXT
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, (int, float)) and math.isnan(value):
-        return "n/a"  # the figure does not apply (a cut that never falls 3 dB, no side lobe); no unit
-    text = _number(float(value)) if isinstance(value, (int, float)) else str(value)
-    return f"{text} {unit}" if unit and text != NONE_TEXT else text
+    return number_text(value, unit, key, minus="−")
+
+
+def vswr_text(value: Any) -> str:
+    """A VSWR as n.nn:1 (a registry value too: 1.62 → "1.62:1")."""
+    return NONE_TEXT if value is None else number_text(value, key="vswr", minus="−")
 
 
 def exact(value: Any, unit: str = "") -> str:
@@ -53,8 +43,8 @@ def exact(value: Any, unit: str = "") -> str:
 
 
 def fmt_figure(figure: Figure | None) -> str:
-    """A computed figure's value with its unit, or the no-value mark."""
-    return fmt(figure.value, figure.unit) if figure is not None else NONE_TEXT
+    """A computed figure's value with its unit (by its quantity), or the no-value mark."""
+    return fmt(figure.value, figure.unit, figure.key) if figure is not None else NONE_TEXT
 
 
 def words(name: str) -> str:
@@ -66,12 +56,25 @@ def bands_text(bands: Iterable[tuple[float, float]]) -> str:
     return ", ".join(f"{exact(low)}–{exact(high)} MHz" for low, high in bands)
 
 
+def field_rows(fields: Any) -> list[tuple[str, str, str]]:
+    """Registry fields (an antenna's geometry) as (label in words, value as typed with its unit, field
+    name): "element_diameter_m: 0.012" → ("Element diameter", "0.012 m", "element_diameter_m")."""
+    rows = []
+    for name, value in fields.items():
+        label, unit = field_label(name)
+        shown = exact(value, unit) if isinstance(value, (int, float)) and not isinstance(value, bool) \
+            else geometry_text(value)
+        rows.append((label, shown, name))
+    return rows
+
+
 def geometry_text(value: Any) -> str:
+    """A registry value as typed; a nested mapping's keys in words with their units."""
     if isinstance(value, tuple):
         return "; ".join(geometry_text(item) for item in value)
     if hasattr(value, "items"):
-        return ", ".join(f"{key} {geometry_text(item)}" for key, item in value.items())
-    return fmt(value)
+        return ", ".join(f"{label.lower()} {shown}" for label, shown, _ in field_rows(value))
+    return exact(value)
 
 
 def location_text(location: Any, unit: str, separator: str = " · ") -> str:

@@ -11,7 +11,7 @@ from registry.core.model import Cable, Service
 from registry.site.band_chart import band_chart
 from registry.site import plots
 from registry.site.context import SiteData
-from registry.site.format import bands_text, exact, fmt, geometry_text, words
+from registry.site.format import bands_text, exact, field_rows, fmt, vswr_text, words
 from registry.site.context import AircraftPieces
 from registry.site.pages import File, Output, page
 from registry.site.paths import antenna_path, cable_path, cable_plot_path, service_anchor
@@ -39,12 +39,12 @@ def antenna_pages(data: SiteData, pieces: Pieces) -> list[Output]:
                           key=lambda p: (p.freq_mhz, p.key))
         rows.append({"id": model.id, "href": antenna_path(model.id), "description": model.description,
                      "kind": words(model.kind), "polarisation": model.polarisation,
-                     "impedance": fmt(model.impedance_ohm, "Ω"), "rated_vswr": fmt(model.rated_vswr),
+                     "impedance": fmt(model.impedance_ohm, "Ω"), "rated_vswr": vswr_text(model.rated_vswr),
                      "bands": bands_text(model.bands_mhz), "uses": uses_count})
         outputs.append(page(antenna_path(model.id), "antenna.html", "antennas", model.id,
                             [("Antennas", "antennas.html"), (model.id, None)],
                             model=model, kind=words(model.kind), bands=bands_text(model.bands_mhz),
-                            geometry=[(key, geometry_text(value)) for key, value in model.geometry.items()],
+                            geometry=field_rows(model.geometry),
                             patterns=[pattern_view(data, p, model.id) for p in patterns],
                             uses_count=uses_count, uses_rows=uses_rows, src=data.model_src(model)))
     outputs.append(page("antennas.html", "antennas.html", "antennas", "Antenna models", [], models=rows))

@@ -12,6 +12,7 @@ from markupsafe import Markup, escape
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft
 from registry.core.results import AircraftCosite, CositeHit, CositeIntermod, CositePath, Figure
+from registry.output.numbers import number_text
 from registry.output.report import format_value
 from registry.site.context import SiteData
 from registry.site.pages import Page, page
@@ -235,10 +236,10 @@ def type_cosite_pages(data: SiteData) -> list[Page]:
             state = ("excused" if each[0][1].excused_by else "unrated" if worst is None else
                      "blocking" if worst < 0 else "concern" if worst < small else "ok")
             rows.append({"tx": key[0], "rx": key[1], "services": f"{each[0][1].tx_service} → {each[0][1].rx_service}",
-                         "state": state, "worst": "—" if worst is None else f"{worst:.4g} dB",
+                         "state": state, "worst": "—" if worst is None else number_text(worst, "dB"),
                          "excused_by": each[0][1].excused_by,
                          "each": [{"registration": a.registration, "href": cosite_path(a.id),
-                                   "margin": "—" if c.margin_db is None else f"{c.margin_db:.4g} dB",
+                                   "margin": "—" if c.margin_db is None else number_text(c.margin_db, "dB"),
                                    "what": c.what} for a, c in each]})
         pages.append(page(type_cosite_path(airframe.id), "cosite_type.html", "fleet",
                           f"{airframe.name} interference", [("Fleet", "index.html"), (airframe.name, None)],

@@ -25,7 +25,8 @@ from registry.incremental import DiskCache, key_of
 from registry.core.progress import QUIET, Progress
 from registry.core.model import Aircraft, Fleet
 from registry.core.results import AircraftPart, Discrepancy, FleetResults, PairResult
-from registry.site.context import (AircraftPieces, SiteData, findings_order, patterns_by_model, place_findings,
+from registry.check.reviews import finding_order
+from registry.site.context import (AircraftPieces, SiteData, patterns_by_model, place_findings,
                                    site_data, with_findings)
 from registry.site.environment import CHANGES_NAV, NAV_ITEMS, environment, static_files
 from registry.site.format import plain_text
@@ -189,7 +190,7 @@ class AircraftRun:
         results.installations.update(part.installations)
         if part.cosite is not None:
             results.cosite[aircraft.id] = part.cosite
-        place_findings(self.data.by_position, self.data.by_aircraft, sorted(findings, key=findings_order))
+        place_findings(self.data.by_position, self.data.by_aircraft, sorted(findings, key=finding_order))
         try:
             return self.render(aircraft, {}, part.pairs)
         finally:

@@ -9,10 +9,11 @@ from typing import Any, Iterable
 
 from registry.core.model import Aircraft, Installation
 from registry.core.results import Discrepancy, Figure, PatternResult
-from registry.core.rulebook import ALL_STATES, OPEN_STATES, SEVERITIES
+from registry.core.rulebook import OPEN_STATES, SEVERITIES
 from registry.site.context import SiteData
-from registry.site.format import NONE_TEXT, exact, fmt, words
-from registry.site.labels import FIGURE_GROUPS
+from registry.site.format import NONE_TEXT, exact, fmt, vswr_text, words
+from registry.site.labels import FIGURE_GROUPS, STATE_KEYS, state_key
+from registry.site.pages_registry import line_href
 from registry.site.paths import (aircraft_path, anchor, antenna_path, cable_path, installation_path,
                                  pattern_plot_path)
 
@@ -32,22 +33,27 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
         "aircraft_href": aircraft_path(item.aircraft) if aircraft else "index.html",
         "position": item.position, "positions": positions, "services": services,
         "href": installation_path(item.aircraft, first) if first else None,
-        "value": fmt(item.value, item.unit), "limit": fmt(item.limit, item.unit),
+        "value": fmt(item.value, item.unit, item.rule), "limit": fmt(item.limit, item.unit, item.rule),
         "value_raw": item.value, "limit_raw": item.limit, "unit": item.unit,
         "message": item.message, "method": item.method, "src": data.src_text(item.src),
+        "src_href": line_href(data.src_text(item.src), data.fleet.data_dir),
         "review": item.review, "reviewer": item.reviewer, "review_comment": item.review_comment,
-        "review_reference": item.review_reference, "is_open": item.review in OPEN_STATES,
+        "review_reference": item.review_reference, "review_date": item.review_date, "is_open": item.is_open,
+        "state_key": state_key(item.review, item.is_open),
     }
 
 
 def severity_matrix(items: Iterable[Discrepancy]) -> dict[str, Any]:
-    """Discrepancies counted by severity and review state (states nobody is in left out)."""
-    counts = Counter((d.severity, d.review) for d in items)
-    states = [s for s in ALL_STATES if any(counts[(sev, s)] for sev in SEVERITIES)] or list(OPEN_STATES)
+    """Discrepancies counted by severity and review state as the badges show it (`state_key`; states
+    nobody is in left out); "open" counts what still counts as open (`Discrepancy.is_open`)."""
+    items = list(items)
+    counts = Counter((d.severity, state_key(d.review, d.is_open)) for d in items)
+    still_open = Counter(d.severity for d in items if d.is_open)
+    states = [s for s in STATE_KEYS if any(counts[(sev, s)] for sev in SEVERITIES)] or list(OPEN_STATES)
     return {
         "states": states,
         "rows": [{"severity": sev, "cells": [counts[(sev, s)] for s in states],
-                  "open": sum(counts[(sev, s)] for s in OPEN_STATES), "total": sum(counts[(sev, s)] for s in ALL_STATES)}
+                  "open": still_open[sev], "total": sum(counts[(sev, s)] for s in STATE_KEYS)}
                  for sev in SEVERITIES],
     }
 
@@ -64,7 +70,7 @@ def installation_row(data: SiteData, aircraft: Aircraft, installation: Installat
         "location": installation.location, "surface": words(installation.surface),
         "cable": installation.feeder.cable, "cable_href": cable_path(installation.feeder.cable),
         "length": exact(installation.feeder.length_m, "m"),
-        "measured_vswr": exact(measured.vswr) if measured and measured.vswr is not None else NONE_TEXT,
+        "measured_vswr": vswr_text(measured.vswr) if measured and measured.vswr is not None else NONE_TEXT,
         "measured_date": measured.date.isoformat() if measured else "",
         "status": data.status_of(aircraft.id, installation.position),
         "changed": bool(data.marks(aircraft.id, installation.position)),

@@ -10,6 +10,9 @@
   /* ---------- sortable tables: <table data-sortable>, <th data-sort="text|num"> ---------- */
   function cellValue(row, index, kind) {
     var cell = row.cells[index];
+    if (kind === "unit") {  /* by unit first, then by value: values of different units are never compared */
+      return [cell ? norm(cell.getAttribute("data-unit")) : "", cellValue(row, index, "num")];
+    }
     if (!cell) { return kind === "num" ? -Infinity : ""; }
     var raw = cell.hasAttribute("data-value") ? cell.getAttribute("data-value") : cell.textContent.trim();
     if (kind === "num") {
@@ -17,6 +20,17 @@
       return isNaN(number) ? -Infinity : number;
     }
     return norm(raw);
+  }
+
+  function compare(x, y) {
+    if (Array.isArray(x)) {
+      for (var i = 0; i < x.length; i += 1) {
+        var part = compare(x[i], y[i]);
+        if (part !== 0) { return part; }
+      }
+      return 0;
+    }
+    return x < y ? -1 : x > y ? 1 : 0;
   }
 
   function makeSortable(table) {
@@ -41,7 +55,7 @@
         rows.forEach(function (row, position) { row.setAttribute("data-order", String(position)); });
         rows.sort(function (a, b) {
           var x = cellValue(a, index, kind), y = cellValue(b, index, kind);
-          var result = x < y ? -1 : x > y ? 1 : 0;
+          var result = compare(x, y);
           if (result === 0) {
             result = Number(a.getAttribute("data-order")) - Number(b.getAttribute("data-order"));
             return result;
@@ -110,6 +124,14 @@
         out.textContent = String(byState[out.getAttribute("data-count-state")] || 0);
       });
       if (emptyNote) { emptyNote.hidden = shown !== 0; }
+      var also = document.getElementById(form.getAttribute("data-also-filter") || "");
+      if (also) {  /* rows with some of the attributes (stale reviews: aircraft) follow those filters */
+        Array.prototype.forEach.call(also.tBodies[0].rows, function (row) {
+          row.hidden = !selects.every(function (select) {
+            return !row.hasAttribute("data-" + select.name) || matches(row, select);
+          });
+        });
+      }
       var parts = selects.filter(function (s) { return s.value; }).map(function (s) {
         return encodeURIComponent(s.name) + "=" + encodeURIComponent(s.value);
       });
@@ -117,6 +139,7 @@
       if (history.replaceState && location.hash !== hash) {
         history.replaceState(null, "", hash || location.pathname + location.search);
       }
+      table.dispatchEvent(new CustomEvent("filtered", { detail: { selects: selects } }));
     }
 
     selects.forEach(function (select) { select.addEventListener("change", apply); });
@@ -129,6 +152,78 @@
     form.hidden = false;
     document.querySelectorAll("[data-needs-script]").forEach(function (el) { el.hidden = false; });
     apply();
+  }
+
+  /* ---------- audit worksheet: copy a finding id; downloads of exactly the rows a filter leaves ---------- */
+  function setupCopy(button) {
+    button.hidden = false;
+    button.addEventListener("click", function () {
+      var text = button.getAttribute("data-copy");
+      function done(ok) {
+        button.textContent = ok ? "Copied" : "Select and copy";
+        setTimeout(function () { button.textContent = "Copy id"; }, 1500);
+      }
+      function fallback() {
+        var code = button.parentNode.querySelector(".fid-text");
+        var range = document.createRange();
+        range.selectNodeContents(code);
+        var selection = window.getSelection();
+        selection.removeAllRanges();
+        selection.addRange(range);
+        var ok = false;
+        try { ok = document.execCommand("copy"); } catch (error) { ok = false; }
+        done(ok);
+      }
+      if (navigator.clipboard && window.isSecureContext) {
+        navigator.clipboard.writeText(text).then(function () { done(true); }, fallback);
+      } else {
+        fallback();
+      }
+    });
+  }
+
+  function setupDownloads(table, data) {
+    var links = { csv: document.querySelector("[data-download='csv']"), json: document.querySelector("[data-download='json']") };
+    var note = document.querySelector("[data-download-note]");
+    var urls = {};
+    function link(kind, text, type, name) {
+      if (urls[kind]) { URL.revokeObjectURL(urls[kind]); }
+      urls[kind] = URL.createObjectURL(new Blob([text], { type: type }));
+      links[kind].href = urls[kind];
+      links[kind].setAttribute("download", name);
+    }
+    table.addEventListener("filtered", function (event) {
+      var shown = {};
+      Array.prototype.forEach.call(table.tBodies[0].rows, function (row) {
+        if (!row.hidden) { shown[row.getAttribute("data-id")] = true; }
+      });
+      var ids = data.order.filter(function (id) { return shown[id]; });
+      var filters = {};
+      var aircraft = "", rule = "";
+      event.detail.selects.forEach(function (select) {
+        if (select.value) { filters[select.name] = [select.value]; }
+        if (select.name === "aircraft") { aircraft = select.value; }
+        if (select.name === "rule") { rule = select.value; }
+      });
+      var stale = data.stale.filter(function (entry) {
+        return (!aircraft || entry.aircraft === aircraft) && (!rule || entry.discrepancy.split("/").pop() === rule);
+      });
+      var filtered = Object.keys(filters).length > 0;
+      var suffix = filtered ? "-filtered" : "";
+      link("csv", data.bom + data.header + ids.map(function (id) { return data.rows[id].csv; }).join(""),
+           "text/csv;charset=utf-8", "findings" + suffix + ".csv");
+      var documentOut = { as_of: data.as_of, filters: filters, columns: data.columns,
+                          discrepancies: ids.map(function (id) { return data.rows[id].json; }),
+                          stale_reviews: stale, build: data.build };
+      link("json", JSON.stringify(documentOut, null, 2) + "\n", "application/json", "findings" + suffix + ".json");
+      links.csv.textContent = "Download CSV (" + ids.length + (ids.length === 1 ? " finding)" : " findings)");
+      links.json.textContent = "Download JSON (" + ids.length + (ids.length === 1 ? " finding)" : " findings)");
+      if (note) {
+        note.textContent = filtered ? "The downloads hold the " + ids.length + " findings shown (filtered), in the " +
+          "columns and order of build.py check --format csv." : "The downloads hold every finding, in the columns " +
+          "and order of build.py check --format csv (UTF-8 with a byte-order mark).";
+      }
+    });
   }
 
   /* ---------- search over window.AERIALBOOK_SEARCH (loaded from search-index.js) ---------- */
@@ -217,6 +312,10 @@
 
   document.addEventListener("DOMContentLoaded", function () {
     document.querySelectorAll("table[data-sortable]").forEach(makeSortable);
+    document.querySelectorAll("button.copy[data-copy]").forEach(setupCopy);
+    var exported = document.getElementById("audit-export");
+    var worksheet = document.getElementById("audit-table");
+    if (exported && worksheet) { setupDownloads(worksheet, JSON.parse(exported.textContent)); }
     document.querySelectorAll("form[data-filter-for]").forEach(setupFilters);
     var box = document.querySelector("form[data-search]");
     if (box) { setupSearch(box); }

@@ -148,10 +148,10 @@ def test_audit_filter_from_link_hash_and_sorting(page, demo_site):
     header = p.locator("#audit-table thead th", has_text="Aircraft")
     header.locator("button").click()
     assert header.get_attribute("aria-sort") == "ascending"
-    names = p.eval_on_selector_all("#audit-table tbody tr td:nth-child(2)", "cells => cells.map(c => c.innerText)")
+    names = p.eval_on_selector_all("#audit-table tbody tr td:nth-child(3)", "cells => cells.map(c => c.innerText)")
     assert names == sorted(names, key=str.lower)
     header.locator("button").click()
-    names = p.eval_on_selector_all("#audit-table tbody tr td:nth-child(2)", "cells => cells.map(c => c.innerText)")
+    names = p.eval_on_selector_all("#audit-table tbody tr td:nth-child(3)", "cells => cells.map(c => c.innerText)")
     assert names == sorted(names, key=str.lower, reverse=True)
 
 
@@ -212,7 +212,7 @@ def test_site_works_under_a_sub_path_of_a_web_server(page, sub_path_url):
     p.select_option("#filter-severity", "blocking")
     assert p.locator("output[data-count='shown']").inner_text().isdigit()
     download = p.request.get(sub_path_url + "audit/discrepancies.csv")
-    assert download.ok and download.text().startswith("id,severity")
+    assert download.ok and download.text().startswith("\ufeffid,severity")  # UTF-8 byte-order mark first
     assert page.errors == []
 
 

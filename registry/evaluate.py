@@ -86,17 +86,17 @@ def evaluate_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, wor
                    progress: Progress = QUIET, lazy: bool = False) -> FleetResults:
     """All figures and rule findings of the fleet. With `lazy`, an unchanged aircraft contributes its
     summary only; its full figures stay in the cache until `FleetResults.load` asks for them."""
-    plan = prepare(fleet, as_of, cache_dir, lazy)
+    plan = prepare(fleet, as_of, cache_dir, lazy, workers)
     compute(plan, workers, progress)
     return finish(plan)
 
 
-def prepare(fleet: Fleet, as_of: date, cache_dir: Path | None = None, lazy: bool = False) -> Plan:
+def prepare(fleet: Fleet, as_of: date, cache_dir: Path | None = None, lazy: bool = False, workers: int = 1) -> Plan:
     """Take every unchanged aircraft from the cache, and work out in this process what the aircraft still
     to compute share (patterns, modelled impedances), so that workers forked afterwards inherit it. Every
     pattern the fleet shows is then in `results.patterns`, named after the first model that uses it."""
     plan = Plan(fleet, as_of, FleetResults(cables=cable_results(fleet)), Stores.at(cache_dir), {}, {}, [], lazy, {})
-    plan.todo.extend(_reuse(fleet, as_of, plan.stores, plan.results, plan.known, lazy))
+    plan.todo.extend(_reuse(fleet, as_of, plan.stores, plan.results, plan.known, lazy, workers))
     for pattern_key, pattern in shared_figures(fleet, [aircraft_id for aircraft_id, _ in plan.todo]).items():
         if pattern_key not in plan.known:
             plan.known[pattern_key] = pattern
@@ -128,23 +128,26 @@ def finish(plan: Plan) -> FleetResults:
 
 
 def _reuse(fleet: Fleet, as_of: date, stores: Stores, results: FleetResults, known: dict[str, PatternResult],
-           lazy: bool) -> list[tuple[str, str]]:
-    """With `lazy`, take each unchanged aircraft's summary from the cache; the (aircraft id, key) of
-    those still to compute (every aircraft without `lazy`: their full figures are wanted)."""
+           lazy: bool, workers: int = 1) -> list[tuple[str, str]]:
+    """With `lazy`, take each unchanged aircraft's summary from the cache (read and checked over
+    `workers` processes); the (aircraft id, key) of those still to compute (every aircraft without
+    `lazy`: their full figures are wanted)."""
+    keys = {aircraft_id: key_of(fleet.input_keys[aircraft_id], as_of.isoformat()) if aircraft_id in fleet.input_keys
+            else "" for aircraft_id in fleet.aircraft}
+    results.aircraft_keys.update((aircraft_id, key) for aircraft_id, key in keys.items() if key)
+    wanted = [key if lazy else "" for key in keys.values()]
+    summaries = ordered_map(lambda key: stores.summaries.get(key) if key else None, wanted,
+                            workers if any(wanted) else 1)
     todo = []
-    for aircraft in fleet.aircraft.values():
-        key = key_of(fleet.input_keys[aircraft.id], as_of.isoformat()) if aircraft.id in fleet.input_keys else ""
-        if key:
-            results.aircraft_keys[aircraft.id] = key
-        summary = stores.summaries.get(key) if key and lazy else None
+    for (aircraft_id, key), summary in zip(keys.items(), summaries):
         usable = (isinstance(summary, AircraftSummary)
                   and all(_known_pattern(pattern_key, known, stores.patterns)
                           for pattern_key in set(summary.pattern_of.values()) if pattern_key))
         if not usable:  # not computed before, or gone from the cache
-            todo.append((aircraft.id, key))
+            todo.append((aircraft_id, key))
             continue
-        results.summaries[aircraft.id] = summary
-        results.unloaded.add(aircraft.id)
+        results.summaries[aircraft_id] = summary
+        results.unloaded.add(aircraft_id)
     return todo
 
 

@@ -148,7 +148,7 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
         with collector_paused():
             progress.stage("reading the registry", 1)
             fleet = load(data_dir, cache_root, workers)
-            plan = evaluate.prepare(fleet, as_of, cache_root, lazy=True)
+            plan = evaluate.prepare(fleet, as_of, cache_root, lazy=True, workers=workers)
             progress.advance()
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()

@@ -55,12 +55,17 @@ class Cache(Protocol):
 def cached_map(task: Callable[[Any], Any], items: Sequence[Any], keys: Sequence[str | None], cache: Cache,
                workers: int = 1, progress: Progress = QUIET) -> list[Any]:
     """task(item) for every item, in order: an item whose key is in `cache` is read from it, the others
-    are computed by `ordered_map` over `workers` processes and written back. A key of None (an input
-    that could not be read) is always computed and never kept."""
-    found = [cache.get(key) if key else None for key in keys]
-    missing = [n for n, hit in enumerate(found) if hit is None]
-    for n, value in zip(missing, ordered_map(lambda n: task(items[n]), missing, workers, progress)):
-        found[n] = value
-        if keys[n]:
-            cache.put(keys[n], value)
-    return found
+    are computed and written back, all shared out by `ordered_map` over `workers` processes (reading and
+    checking an entry costs a few milliseconds too). A key of None (an input that could not be read) is
+    always computed and never kept."""
+
+    def one(n: int) -> Any:
+        key = keys[n]
+        found = cache.get(key) if key else None
+        if found is None:
+            found = task(items[n])
+            if key:
+                cache.put(key, found)
+        return found
+
+    return list(ordered_map(one, range(len(items)), workers, progress))

@@ -180,3 +180,21 @@ def test_search_index_holds_the_interference_pages(demo_fleet, demo_site):
     entry = pages["aircraft/qx-tja/interference.html"]
     listed = re.search(r"not analysed \(no protection threshold\) ([^·]+)", entry["text"]).group(1).strip()
     assert set(listed.split(", ")) == {position for position, _ in part.cosite.not_analysed}
+
+
+def test_a_type_page_cell_is_the_worse_of_harmonic_and_intermodulation():
+    # the cell of a transmitter → receiver path is its worst margin (the minimum, by definition): here the
+    # intermodulation product DME1 makes in GNSS1 with XPDR1 (−3 dB) is worse than DME1's harmonic (+4 dB)
+    from registry.core.results import AircraftCosite, CositeHit, CositeIntermod, CositePath, cosite_cells
+
+    hit = CositeHit(2, 787.0, 788.0, 0, 0.0, 1574.0, 1576.0, (), 4.0)
+    path = CositePath(aircraft="qx-a", tx="DME1", rx="GNSS1", tx_service="dme", rx_service="gnss_l1", hits=(hit,))
+    other = CositePath(aircraft="qx-a", tx="XPDR1", rx="GNSS1", tx_service="xpdr", rx_service="gnss_l1", hits=())
+    product = CositeIntermod("qx-a", "DME1", "XPDR1", "GNSS1", "2f1 − f2", 3, (1040.0, 1041.0), (1090.0, 1090.0),
+                             (990.0, 992.0), generator="DME1", margin_db=-3.0)
+    excused = product._replace(margin_db=-40.0, excused_by="lband")
+    cells = {cell.tx: cell for cell in cosite_cells(AircraftCosite("qx-a", (path, other), (product, excused)))}
+    assert cells["DME1"].margin_db == -3.0 and "intermodulation 2f1 − f2 with XPDR1" in cells["DME1"].what
+    assert cells["XPDR1"].margin_db is None  # DME1 makes the product, not XPDR1; the excused one counts for none
+    only_harmonic = cosite_cells(AircraftCosite("qx-a", (path,), (product._replace(margin_db=9.0),)))
+    assert only_harmonic[0].margin_db == 4.0 and only_harmonic[0].what.startswith("2nd harmonic")

@@ -232,13 +232,24 @@ class CositeCell(NamedTuple):
 
 
 def cosite_cells(cosite: AircraftCosite | None) -> tuple[CositeCell, ...]:
-    """Each path of an aircraft's co-site analysis as its worst hit."""
+    """Each path of an aircraft's co-site analysis as its worst: the worst harmonic, or the worst
+    intermodulation product the path's transmitter makes in its receiver when that margin is lower."""
+    if cosite is None:
+        return ()
+    products: dict[tuple[str, str], list[CositeIntermod]] = {}
+    for item in cosite.intermod:
+        if item.margin_db is not None and not item.excused_by:
+            products.setdefault((item.generator or item.tx_a, item.rx), []).append(item)
     cells = []
-    for path in cosite.paths if cosite is not None else ():
+    for path in cosite.paths:
         worst = path.worst
-        cells.append(CositeCell(path.tx, path.rx, path.tx_service, path.rx_service,
-                                worst.margin_db if worst is not None else None, path.excused_by,
-                                f"{worst.product}, {worst.channels}" if worst is not None else ""))
+        margin = worst.margin_db if worst is not None else None
+        what = f"{worst.product}, {worst.channels}" if worst is not None else ""
+        product = min(products.get((path.tx, path.rx), ()), key=lambda item: item.margin_db, default=None)
+        if product is not None and not path.excused_by and (margin is None or product.margin_db < margin):
+            other = product.tx_b if (product.generator or product.tx_a) == product.tx_a else product.tx_a
+            margin, what = product.margin_db, f"intermodulation {product.product} with {other}"
+        cells.append(CositeCell(path.tx, path.rx, path.tx_service, path.rx_service, margin, path.excused_by, what))
     return tuple(cells)
 
 

@@ -30,6 +30,7 @@ from registry.core import figure_keys as FK
 from registry.core.errors import EXIT_INTERNAL
 
 PyNEC = pytest.importorskip("PyNEC")
+import nec_reference  # noqa: E402 - tests/nec_reference.py, after PyNEC is known to be there
 
 MHZ = 1e6
 
@@ -105,17 +106,7 @@ def test_site_length_rule_matches_nec2_resonant_height(demo_fleet):
 
 def _nec_folded_z(length_m: float, radius_m: float, spacing_m: float, freq_hz: float, nseg: int = 41) -> complex:
     """NEC-2 folded dipole: both conductors and the two end wires, fed at the centre of the first."""
-    ctx = PyNEC.nec_context()
-    geo = ctx.get_geometry()
-    geo.wire(1, nseg, 0, 0, -length_m / 2, 0, 0, length_m / 2, radius_m, 1.0, 1.0)
-    geo.wire(2, nseg, spacing_m, 0, -length_m / 2, spacing_m, 0, length_m / 2, radius_m, 1.0, 1.0)
-    geo.wire(3, 1, 0, 0, length_m / 2, spacing_m, 0, length_m / 2, radius_m, 1.0, 1.0)
-    geo.wire(4, 1, 0, 0, -length_m / 2, spacing_m, 0, -length_m / 2, radius_m, 1.0, 1.0)
-    ctx.geometry_complete(0)
-    ctx.ex_card(0, 1, nseg // 2 + 1, 0, 1.0, 0, 0, 0, 0, 0)
-    ctx.fr_card(0, 1, freq_hz / MHZ, 0)
-    ctx.xq_card(0)
-    return complex(ctx.get_input_parameters(0).get_impedance()[0])
+    return nec_reference.folded_dipole_z(length_m, radius_m, spacing_m, freq_hz, nseg)
 
 
 def test_site_folded_dipole_resonant_length_within_1_percent_of_nec2(demo_fleet):

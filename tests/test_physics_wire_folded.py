@@ -24,6 +24,7 @@ from registry.physics.segmentation import Unmodellable
 from registry.physics.wave import folded_resonant_length_rule, wavelength_m
 
 PyNEC = pytest.importorskip("PyNEC")
+import nec_reference  # noqa: E402 - tests/nec_reference.py, after PyNEC is known to be there
 
 F0 = 300e6  # our own choice; geometries are given in wavelengths
 LAM = wavelength_m(F0)
@@ -32,19 +33,7 @@ LAM = wavelength_m(F0)
 def _nec_folded_z(length_m, radius_m, spacing_m, freq_hz=F0):
     n = int(min(41, length_m / (4 * radius_m)))
     n -= (n + 1) % 2
-    ctx = PyNEC.nec_context()
-    geo = ctx.get_geometry()
-    geo.wire(1, n, 0, 0, -length_m / 2, 0, 0, length_m / 2, radius_m, 1.0, 1.0)
-    geo.wire(2, n, spacing_m, 0, -length_m / 2, spacing_m, 0, length_m / 2, radius_m, 1.0, 1.0)
-    geo.wire(3, 1, 0, 0, length_m / 2, spacing_m, 0, length_m / 2, radius_m, 1.0, 1.0)
-    geo.wire(4, 1, 0, 0, -length_m / 2, spacing_m, 0, -length_m / 2, radius_m, 1.0, 1.0)
-    ctx.geometry_complete(0)
-    if length_m / n < 8 * radius_m:
-        ctx.set_extended_thin_wire_kernel(True)
-    ctx.ex_card(0, 1, n // 2 + 1, 0, 1.0, 0, 0, 0, 0, 0)
-    ctx.fr_card(0, 1, freq_hz / 1e6, 0)
-    ctx.xq_card(0)
-    return complex(ctx.get_input_parameters(0).get_impedance()[0])
+    return nec_reference.folded_dipole_z(length_m, radius_m, spacing_m, freq_hz, n, extended_kernel_below_radii=8)
 
 
 # (a/lambda, s/a): thin to fat conductors (the demo's glide-slope element is a/lambda 2.2e-3, s/a 10), close

@@ -24,6 +24,7 @@ from registry.physics.wave import end_effect_factor, resonant_length_m, waveleng
 from registry.physics.wire import Wire, build_structure, impedance_matrix, solve_structure
 
 PyNEC = pytest.importorskip("PyNEC")
+import nec_reference  # noqa: E402 - tests/nec_reference.py, after PyNEC is known to be there
 
 F0 = 137e6  # our own choice: top of the VHF communication band
 LAM = wavelength_m(F0)
@@ -131,18 +132,7 @@ def test_yagi_gain_front_to_back_and_impedance_match_nec2(name):
 def test_folded_dipole_loop_against_nec2():
     radius, spacing = 0.0015, 0.03
     for length in (0.46 * LAM, 0.48 * LAM):
-        nseg = 21
-        ctx = PyNEC.nec_context()
-        geo = ctx.get_geometry()
-        geo.wire(1, nseg, 0, 0, -length / 2, 0, 0, length / 2, radius, 1.0, 1.0)
-        geo.wire(2, nseg, spacing, 0, -length / 2, spacing, 0, length / 2, radius, 1.0, 1.0)
-        geo.wire(3, 1, 0, 0, length / 2, spacing, 0, length / 2, radius, 1.0, 1.0)
-        geo.wire(4, 1, 0, 0, -length / 2, spacing, 0, -length / 2, radius, 1.0, 1.0)
-        ctx.geometry_complete(0)
-        ctx.ex_card(0, 1, nseg // 2 + 1, 0, 1.0, 0, 0, 0, 0, 0)
-        ctx.fr_card(0, 1, F0 / 1e6, 0)
-        ctx.xq_card(0)
-        z_nec = ctx.get_input_parameters(0).get_impedance()[0]
+        z_nec = nec_reference.folded_dipole_z(length, radius, spacing, F0, nseg=21)
         z = solve_wire_antenna("folded_dipole", {"length_m": length, "diameter_m": 2 * radius,
                                                  "spacing_m": spacing}, [F0]).z_in_ohm[0]
         assert abs(z - z_nec) <= 0.05 * abs(z_nec)

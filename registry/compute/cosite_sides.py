@@ -66,6 +66,8 @@ class Side:
                                     where(self.service, key))
         loss = result.figure(FK.FEEDER_TOTAL_LOSS_DB) if result is not None else None
         self.feeder = loss if loss is not None and isinstance(loss.value, float) else None
+        self.receive: tuple[list[Figure], str] | None = None
+        """`receive_figures` of this side, once worked out."""
 
     def value(self, key: str) -> Any:
         return self.values[key][0]
@@ -80,15 +82,25 @@ class Side:
 
 
 class Geometry:
-    """How two antennas of the aircraft couple: the pair isolation figures and the coordinate unit."""
+    """How two antennas of the aircraft couple: the pair isolation figures and the coordinate unit; and
+    the couplings worked out so far (an aircraft's intermodulation products ask for the same ones again
+    and again)."""
 
     def __init__(self, unit: str, pairs: list[PairResult]):
         self.unit = unit
         self.isolation = {frozenset((pair.position_a, pair.position_b)): pair for pair in pairs}
+        self.couplings: dict[tuple[str, str, float], tuple[Figure, ...]] = {}
 
 
 def coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) -> list[Figure]:
     """The coupling (dB, negative) between two installations' antennas at freq_mhz, with how it was estimated."""
+    key = (tx.position, rx.position, freq_mhz)
+    if key not in geometry.couplings:
+        geometry.couplings[key] = tuple(_coupling_figures(tx, rx, geometry, freq_mhz))
+    return list(geometry.couplings[key])
+
+
+def _coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) -> list[Figure]:
     pair = geometry.isolation.get(frozenset((tx.position, rx.position)))
     iso = pair.figure(FK.PAIR_ISOLATION_DB) if pair is not None else None
     at = pair.figure(FK.PAIR_FREQ_MHZ) if pair is not None else None
@@ -120,6 +132,12 @@ def figure_of(side: Side, key: str, fk: str, label: str, unit: str) -> Figure:
 
 def receive_figures(rx: Side) -> tuple[list[Figure], str]:
     """The receive feeder (only for a threshold at the receiver's input), the plane and the threshold."""
+    if rx.receive is None:
+        rx.receive = _receive_figures(rx)
+    return list(rx.receive[0]), rx.receive[1]
+
+
+def _receive_figures(rx: Side) -> tuple[list[Figure], str]:
     plane = rx.value("protection_plane") or "receiver_input"
     plane_figure = figure_of(rx, "protection_plane", FK.COSITE_THRESHOLD_PLANE,
                              "Where the threshold applies", "")._replace(value=PLANE_WORDS[plane])

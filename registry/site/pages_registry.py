@@ -6,6 +6,7 @@ inert text on the page. Shipped files (the tool's own `registry/data/...`) are n
 """
 from __future__ import annotations
 
+import functools
 import re
 from pathlib import Path
 
@@ -28,15 +29,23 @@ def registry_page_path(relative: str) -> str:
     return f"registry/{safe}.html"
 
 
+@functools.lru_cache(maxsize=65536)
 def line_href(src_text: str, data_dir: Path) -> str | None:
     """The link of a registry line ("aircraft/qx-tce.yaml:76", relative to the data folder), or None when
-    it names no YAML file of the data folder (a shipped file, a sweep file, no line)."""
+    it names no YAML file of the data folder (a shipped file, a sweep file, no line). Kept per line in a
+    process: a page shows dozens of figures from the same lines, and a build does not change its data."""
     match = LINE_SRC.match(src_text or "")
     if not match:
         return None
     if not is_registry_file(match["path"], Path(data_dir)):
         return None
     return f"{registry_page_path(match['path'])}#L{match['line']}"
+
+
+def forget() -> None:
+    """Drop what `line_href` and `is_registry_file` kept: a new build may see other files (`serve`)."""
+    line_href.cache_clear()
+    is_registry_file.cache_clear()
 
 
 REGISTRY_FILES = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml")
@@ -55,6 +64,7 @@ def registry_files(data_dir: Path) -> list[str]:
     return sorted(found)
 
 
+@functools.lru_cache(maxsize=4096)
 def is_registry_file(relative: str, data_dir: Path) -> bool:
     """`relative` is one of `registry_files(data_dir)`."""
     parts = relative.split("/")

@@ -16,7 +16,7 @@ from typing import Any, Iterable
 import jinja2
 
 from registry.site import plots
-from registry.site import plot_files
+from registry.site import pages_registry, plot_files
 from registry.site import search as sitesearch
 from registry.incremental import ordered_map
 from registry.output.comparison import Comparison
@@ -95,6 +95,7 @@ def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, compa
     figures or summary yet), the static files. The aircraft pages can be rendered from here on, one by
     one as their figures come (`AircraftRun.render_fresh`)."""
     env = environment()
+    pages_registry.forget()  # links to registry lines are kept per process; this build's files may differ
     store = plot_store or plots.PlotStore()
     model_patterns = patterns_by_model(fleet, results) if model_patterns is None else model_patterns
     patterns = plot_files.pattern_plots(results, model_patterns, store, workers)

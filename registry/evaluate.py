@@ -146,7 +146,7 @@ def _reuse(fleet: Fleet, as_of: date, stores: Stores, results: FleetResults, kno
         if not usable:  # not computed before, or gone from the cache
             todo.append((aircraft_id, key))
             continue
-        results.summaries[aircraft_id] = summary
+        _keep(results, aircraft_id, summary)
         results.unloaded.add(aircraft_id)
     return todo
 
@@ -165,9 +165,11 @@ def compute(plan: Plan, workers: int, progress: Progress = QUIET, then: Then | N
         part, summary, patterns = evaluate_aircraft(fleet, aircraft, as_of)
         fresh = {pattern_key: pattern for pattern_key, pattern in patterns.items() if pattern_key not in sent}
         sent.update(fresh)
+        if key:
+            stores.summaries.put(key, summary)  # here, in the worker: encoding it takes milliseconds
         if then is not None:
             return None, summary, fresh, then(aircraft, part, summary)
-        if key and plan.lazy:
+        if plan.lazy:  # the summary only: the parent never holds the whole fleet's figures
             return None, summary, fresh, None
         return part, summary, fresh, None
 
@@ -180,15 +182,22 @@ def compute(plan: Plan, workers: int, progress: Progress = QUIET, then: Then | N
             results.unloaded.add(aircraft_id)
         else:
             plan.parts[aircraft_id] = part
-        results.summaries[aircraft_id] = summary
+        _keep(results, aircraft_id, summary)
         done[aircraft_id] = extra
         for pattern_key, pattern in patterns.items():
             if pattern_key not in plan.known:
                 plan.known[pattern_key] = pattern
                 stores.patterns.put(pattern_key, pattern)
-        if key:
-            stores.summaries.put(key, summary)
     return done
+
+
+def _keep(results: FleetResults, aircraft_id: str, summary: AircraftSummary) -> None:
+    """An aircraft's summary, with its share of the build record packed apart (`record.pack_share`: a
+    tenth of its size, held until the record is written)."""
+    if summary.record is not None:
+        results.records[aircraft_id] = record.pack_share(summary.record)
+        summary = summary._replace(record=None)
+    results.summaries[aircraft_id] = summary
 
 
 def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],
@@ -196,9 +205,6 @@ def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],
     """Gather the aircraft's results in id order: the same fleet gives the same results."""
     for aircraft_id, aircraft in fleet.aircraft.items():
         summary = results.summaries[aircraft_id]
-        if summary.record is not None:  # the record text is kept once, apart
-            results.records[aircraft_id] = summary.record
-            results.summaries[aircraft_id] = summary._replace(record=None)
         if aircraft_id in parts:
             results.installations.update(parts[aircraft_id].installations)
             results.pairs += parts[aircraft_id].pairs

@@ -14,7 +14,8 @@ import dataclasses
 import functools
 import json
 import math
-from collections.abc import Callable, Iterable, Mapping
+import zlib
+from collections.abc import Callable, Iterable, Iterator, Mapping
 from datetime import date
 from pathlib import Path
 from typing import Any, NamedTuple
@@ -171,6 +172,22 @@ def share_text(share: Mapping[str, Any]) -> ShareText:
                      _json(share.get("cosite", {}))[1:-1])
 
 
+Packed = tuple[bytes, ...]
+"""An aircraft's `ShareText` as the main process holds it until the record is written (`pack_share`)."""
+
+
+def pack_share(share: ShareText) -> Packed:
+    """Each text of an aircraft's share compressed apart (zlib, fastest level): the shares are mostly
+    repeated keys and labels, a tenth of their size packed, and the main process holds every aircraft's
+    until the record is written."""
+    return tuple(zlib.compress(text.encode("utf-8"), 1) for text in share)
+
+
+def unpack_field(packed: Packed, field_index: int) -> str:
+    """One text of a packed share (0 aircraft, 1 installations, 2 pairs, 3 co-site)."""
+    return zlib.decompress(packed[field_index]).decode("utf-8")
+
+
 def to_record(outcome) -> dict[str, Any]:
     """The record of one pipeline run (`pipeline.Outcome`) as plain JSON data: what `to_text` writes."""
     return json.loads(to_text(outcome))
@@ -181,27 +198,31 @@ def to_text(outcome) -> str:
     return "".join(to_chunks(outcome))
 
 
-def to_chunks(outcome) -> Chunks:
+def to_chunks(outcome) -> Iterator[str]:
     """The record of one pipeline run (`pipeline.Outcome`) as the JSON text `dumps` would give, but for
     line breaks: each aircraft's share of a per-aircraft map (the registry's aircraft, the installation,
     pair and co-site figures) is on a line of its own, so that two records can be compared aircraft by
     aircraft without parsing what both hold alike (`record_lines`).
 
-    Each aircraft's share is taken as text (`ShareText`, made where it was computed) and joined in the
-    order `dumps` sorts keys: registry.aircraft by id, and the installation and pair maps (keys
-    `<aircraft>/...`) by `<aircraft>/`, which orders them as the whole keys would be. In pieces, to be
-    written one after the other (`to_text` joins them)."""
+    Each aircraft's share is taken as text (`ShareText`, made where it was computed, held packed) and
+    joined in the order `dumps` sorts keys: registry.aircraft by id, and the installation and pair maps
+    (keys `<aircraft>/...`) by `<aircraft>/`, which orders them as the whole keys would be. In pieces,
+    one aircraft's text unpacked at a time, to be written one after the other (`to_text` joins them)."""
     fleet, results = outcome.fleet, outcome.results
     data_dir = Path(fleet.data_dir)
-    shares: dict[str, ShareText] = {}
+    packed: dict[str, Packed] = {}
     for craft in fleet.aircraft.values():
         share = results.records.get(craft.id)
         if share is None:
-            share = share_text(aircraft_record(
+            share = pack_share(share_text(aircraft_record(
                 craft, {key: result for key, result in results.installations.items() if key[0] == craft.id},
-                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir, results.cosite.get(craft.id)))
-        shares[craft.id] = share
-    by_prefix = sorted(shares, key=lambda aircraft_id: aircraft_id + "/")
+                [pair for pair in results.pairs if pair.aircraft == craft.id], data_dir, results.cosite.get(craft.id))))
+        packed[craft.id] = share
+    by_prefix = sorted(packed, key=lambda aircraft_id: aircraft_id + "/")
+
+    def texts(field_index: int, ids: Iterable[str]) -> Iterator[str]:
+        return (unpack_field(packed[aircraft_id], field_index) for aircraft_id in ids)
+
     patterns = {key: {"antenna": pattern.antenna, "kind": pattern.kind,
                       "freq_mhz": round_sig(pattern.freq_mhz, FIGURE_DIGITS), "metrics": figures(pattern.metrics)}
                 for key, pattern in results.patterns.items()}
@@ -211,13 +232,13 @@ def to_chunks(outcome) -> Chunks:
         entry = plain(item, data_dir, FIGURE_DIGITS)
         entry["source"] = relative_src(item.src, data_dir)
         discrepancies[item.id] = entry
-    text = _object({
+    yield from _object({
         "format_version": _json(FORMAT_VERSION),
         "generator": _json({"name": "aerialbook", "version": __version__}),
         "as_of": _json(outcome.as_of.isoformat()),
         "fleet": _json({"operator": fleet.operator, "title": fleet.title}),
         "registry": _object({
-            "aircraft": _lines({aircraft_id: share.aircraft for aircraft_id, share in shares.items()}),
+            "aircraft": _lines(zip(sorted(packed), texts(0, sorted(packed)))),
             "airframes": _json({key: plain(value, data_dir) for key, value in fleet.airframes.items()}),
             "antennas": _json({key: plain(value, data_dir) for key, value in fleet.antennas.items()}),
             "cables": _json({key: plain(value, data_dir) for key, value in fleet.cables.items()}),
@@ -225,9 +246,9 @@ def to_chunks(outcome) -> Chunks:
             "policy": _json(plain(fleet.policy, data_dir)),
         }),
         "figures": _object({
-            "installations": _joined(shares[aircraft_id].installations for aircraft_id in by_prefix),
-            "pairs": _joined(shares[aircraft_id].pairs for aircraft_id in by_prefix),
-            "cosite": _joined(shares[aircraft_id].cosite for aircraft_id in by_prefix),
+            "installations": _joined(texts(1, by_prefix)),
+            "pairs": _joined(texts(2, by_prefix)),
+            "cosite": _joined(texts(3, by_prefix)),
             "patterns": _json(patterns),
             "cables": _json(cables),
         }),
@@ -235,40 +256,47 @@ def to_chunks(outcome) -> Chunks:
         "stale_reviews": _json(sorted(({"discrepancy": review.discrepancy, "state": review.state}
                                        for review in outcome.stale_reviews), key=lambda entry: entry["discrepancy"])),
     })
-    text.append("\n")
-    return text
+    yield "\n"
 
 
 def _json(value: Any) -> str:
     return json.dumps(value, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
 
 
-Chunks = list[str]
-"""JSON text in pieces, joined once at the end: the record runs to a hundred megabytes at 1,000 aircraft,
-and joining level by level would copy it at every level."""
+Chunks = Iterable[str]
+"""JSON text in pieces, written (or joined) once at the end: the record runs to a hundred megabytes at
+1,000 aircraft, and joining level by level would copy it at every level."""
 
 
-def _object(members: Mapping[str, str | Chunks]) -> Chunks:
-    """A JSON object from already encoded values, keys sorted as `dumps` sorts them."""
-    out = ["{"]
+def _object(members: Mapping[str, str | Chunks]) -> Iterator[str]:
+    """A JSON object from already encoded values (text, or pieces of text made as they are asked for),
+    keys sorted as `dumps` sorts them."""
+    yield "{"
     for n, key in enumerate(sorted(members)):
-        out.append(("," if n else "") + _json(key) + ":")
+        yield ("," if n else "") + _json(key) + ":"
         value = members[key]
-        out += [value] if isinstance(value, str) else value
-    out.append("}")
-    return out
+        if isinstance(value, str):
+            yield value
+        else:
+            yield from value
+    yield "}"
 
 
-def _joined(members: Iterable[str]) -> Chunks:
+def _joined(members: Iterable[str]) -> Iterator[str]:
     """A JSON object from runs of already encoded, already ordered members ("" for none), one aircraft's
     run on each line (`record_lines`)."""
-    runs = [run for run in members if run]
-    return ["{\n", ",\n".join(runs), "\n}"]
+    yield "{\n"
+    first = True
+    for run in members:
+        if run:
+            yield run if first else ",\n" + run
+            first = False
+    yield "\n}"
 
 
-def _lines(members: Mapping[str, str]) -> Chunks:
-    """A JSON object from already encoded values keyed by aircraft id, one member on each line."""
-    return _joined(_json(key) + ":" + members[key] for key in sorted(members))
+def _lines(members: Iterable[tuple[str, str]]) -> Iterator[str]:
+    """A JSON object from (aircraft id, encoded value) pairs in id order, one member on each line."""
+    return _joined(_json(key) + ":" + value for key, value in members)
 
 
 def dumps(record: Mapping[str, Any]) -> str:

@@ -16,6 +16,7 @@ from registry.site.context import SiteData
 from registry.site.format import bands_text, fmt_figure, location_text, notes_html, words
 from registry.site.labels import STATUS_LABELS
 from registry.site.pages import Output, Page, Plot, page
+from registry.site.pages_registry import aircraft_registry_page
 from registry.site.paths import aircraft_path, anchor, installation_path, root_of, vswr_plot_path
 from registry.site.views import (discrepancy_view, feeder_breakdown, figure_groups, installation_row, pattern_view,
                                  severity_matrix)
@@ -27,6 +28,9 @@ Pairs = Mapping[tuple[str, str], list[PairResult]]
 def aircraft_outputs(data: SiteData, aircraft: Aircraft, pairs_of: Pairs) -> list[Output]:
     """The aircraft's page, its installations' pages and the VSWR plots they show."""
     outputs: list[Output] = [aircraft_page(data, aircraft)]
+    own_file = aircraft_registry_page(data, aircraft)
+    if own_file is not None:
+        outputs.append(own_file)
     for installation in aircraft.installations.values():
         outputs.append(installation_page(data, aircraft, installation, pairs_of))
         result = data.results.installations.get((aircraft.id, installation.position))

@@ -12,6 +12,8 @@ from pathlib import Path
 
 from typing import TYPE_CHECKING
 
+from markupsafe import Markup
+
 from registry.site.pages import Output, page
 
 if TYPE_CHECKING:  # context.py links figures' registry lines through `line_href`
@@ -82,12 +84,31 @@ def file_lines(path: Path) -> list[str] | None:
 
 
 def registry_pages(data: "SiteData") -> list[Output]:
-    """A page for every YAML file of the data folder."""
+    """A page for every YAML file of the data folder but the aircraft files (each is rendered with its
+    aircraft's pages, `aircraft_registry_page`, and reused with them when unchanged)."""
     data_dir = Path(data.fleet.data_dir)
-    outputs: list[Output] = []
-    for relative in registry_files(data_dir):
-        lines = file_lines(data_dir / relative)
-        outputs.append(page(registry_page_path(relative), "registry_file.html", "audit", relative,
-                            [("Audit", "audit.html"), (relative, None)], file=relative,
-                            lines=list(enumerate(lines or [], start=1)), too_large=lines is None))
-    return outputs
+    return [registry_page(data_dir, relative) for relative in registry_files(data_dir)
+            if not relative.startswith("aircraft/")]
+
+
+def aircraft_registry_page(data: "SiteData", aircraft) -> Output | None:
+    """The page of the aircraft's own registry file, or None when it is not one of the data folder's."""
+    data_dir = Path(data.fleet.data_dir)
+    relative = data.src_text(str(aircraft.src.path))
+    return registry_page(data_dir, relative) if is_registry_file(relative, data_dir) else None
+
+
+def registry_page(data_dir: Path, relative: str) -> Output:
+    """One registry file's page: its lines numbered and anchored, the text escaped."""
+    lines = file_lines(data_dir / relative)
+    return page(registry_page_path(relative), "registry_file.html", "audit", relative,
+                [("Audit", "audit.html"), (relative, None)], file=relative,
+                source=source_html(lines or []), too_large=lines is None)
+
+
+LINE = Markup('<span class="line" id="L{0}"><a class="ln" href="#L{0}">{0}</a>{1}\n</span>')
+
+
+def source_html(lines: list[str]) -> Markup:
+    """The lines as the page's source listing; each line's text escaped (Markup.format escapes it)."""
+    return Markup("").join(LINE.format(number, text) for number, text in enumerate(lines, start=1))

@@ -136,8 +136,9 @@ def run(args: argparse.Namespace) -> int:
     if args.command == "check":
         cache_dir = None if args.no_cache else Path(args.cache or os.environ.get("AERIALBOOK_CACHE_DIR")
                                                    or ".aerialbook-cache")
-        # the figures themselves are computed only for --details; the findings come from the cache
-        return run_check(args, pipeline.run(data_dir, cache_dir=cache_dir, lazy=not args.details))
+        # the findings of unchanged aircraft come from the cache; --details computes the figures of the
+        # aircraft it prints only (`run_check`)
+        return run_check(args, pipeline.run(data_dir, cache_dir=cache_dir, lazy=True))
     if args.command == "build":
         baseline = None
         if args.compare:
@@ -182,6 +183,8 @@ def run_check(args: argparse.Namespace, outcome) -> int:
         sys.stdout.write(report.as_csv(fleet, found))
     else:
         if args.details:
+            outcome.results.load([craft.id for craft in fleet.aircraft.values() if report.matches(
+                craft, [item.service for item in craft.installations.values()], args.aircraft, args.service)])
             sys.stdout.write(report.details(fleet, outcome.results, args.aircraft, args.service))
         sys.stdout.write(report.as_text(fleet, found, outcome.stale_reviews, as_of, filters,
                                         total=len(outcome.discrepancies)))

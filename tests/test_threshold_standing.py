@@ -80,8 +80,8 @@ def test_methods_page_has_one_table_of_every_threshold(demo_site, demo_fleet):
     assert {html_text.unescape(standing) for standing, _ in rows} <= set(STANDINGS) | {"not given"}
     # the demo fleet's policy overrides: shown beside the shipped value, with the fleet's own source
     assert "dme: im5_conversion_loss_db" in names
-    assert "fleet policy: 100 (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in table
-    assert re.search(r"<code>measurement_max_age_days</code></th><td class=\"num\">548</td>(?:(?!</tr>).)*set by the fleet", table, re.S)
+    assert "fleet policy: 100 dB (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in table
+    assert re.search(r"<code>measurement_max_age_days</code></th><td class=\"num\">548 days</td>(?:(?!</tr>).)*set by the fleet", table, re.S)
 
 
 def test_each_finding_shows_its_limits_source(demo_site):

@@ -98,7 +98,7 @@ def _shape(kind: str, x: float, y: float, r: float) -> str:
     if kind == "note":
         return (f"M{n(x - r)},{n(y)} A{n(r)},{n(r)} 0 1,0 {n(x + r)},{n(y)} "
                 f"A{n(r)},{n(r)} 0 1,0 {n(x - r)},{n(y)} Z")
-    s = r * 1.1
+    s = r * 1.4
     tick = ((-1.0, -0.05), (-0.4, 0.55), (1.0, -0.85), (1.0, -0.35), (-0.4, 1.05), (-1.0, 0.45))
     return "M" + " L".join(f"{n(x + s * dx)},{n(y + s * dy)}" for dx, dy in tick) + " Z"
 

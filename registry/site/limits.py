@@ -14,7 +14,8 @@ from registry.check.rules import IMPEDANCE_TOLERANCE_PCT
 from registry.compute.element import HORIZON_LOSS_LIMIT_DB
 from registry.core.model import POLICY_KEYS, Fleet, Policy, Service
 from registry.load.fleet import SHIPPED_DIR
-from registry.site.format import fmt
+from registry.site.format import bands_text, fmt, vswr_text
+from registry.site.labels import field_label
 
 STANDINGS = ("sourced", "common practice", "unverified", "operator's choice")
 """The standings a threshold can have, in the words the source texts begin with."""
@@ -105,11 +106,17 @@ def limit_source(fleet: Fleet, rule: str, services: list[str], unit: str = "") -
     return FIXED_LIMIT.get(rule, NOT_GIVEN)
 
 
-def _value_text(value: Any) -> str:
+def _value_text(value: Any, key: str = "") -> str:
+    """A threshold's value by its quantity: VSWR as n.nn:1, bands as ranges in MHz, a unit read off the key's
+    last word (`connector_loss_db` is in dB)."""
+    if key.startswith("vswr_limit") and isinstance(value, (int, float)):
+        return vswr_text(value)
+    if key.endswith("bands_mhz") and isinstance(value, (tuple, list)):
+        return bands_text(value)
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, (int, float)):
-        return fmt(value)
+        return fmt(value, field_label(key)[1] if key else "")
     if isinstance(value, (tuple, list)):
         return "; ".join(_value_text(v) for v in value)
     if hasattr(value, "items"):
@@ -118,7 +125,8 @@ def _value_text(value: Any) -> str:
 
 
 def _row(group: str, name: str, value: Any, source: str, where, src_text, override: str = "") -> dict[str, str]:
-    return {"group": group, "name": name, "value": _value_text(value), "standing": standing_of(source),
+    key = (name.split(": ")[0] if group == "Policy" else name.split(": ")[-1]).split(".")[0]
+    return {"group": group, "name": name, "value": _value_text(value, key), "standing": standing_of(source),
             "source": source or NOT_GIVEN, "override": override,
             "src": src_text(f"{where.path}:{where.line}") if where else ""}
 
@@ -158,7 +166,7 @@ def service_threshold_rows(service: Service, policy: Policy, src_text) -> list[d
         override = own
         if key in overrides:
             value, policy_text = overrides[key][0], overrides[key][1]
-            override = f"fleet policy: {_value_text(value)} ({policy_text})"
+            override = f"fleet policy: {_value_text(value, key)} ({policy_text})"
         rows.append(_row("Co-site", f"{service.id}: {key}", getattr(service, key, ""), str(source),
                          service.where(key), src_text, override))
     return rows

@@ -172,7 +172,7 @@ def stage_command(stage: str, data: Path, out: Path) -> list[str]:
 
 
 def accepted(stage: str, run: Run) -> bool:
-    """build: exit 0; check: 0, or 1 (open blocking discrepancies: the planted faults); diff: 0 (the
+    """build: exit 0; check: 0, or 1 (open unserviceable discrepancies: the planted faults); diff: 0 (the
     same) for "diff same", 1 (they differ) for "diff one"."""
     expected = {"build": (0,), "check": (0, 1), "diff same": (0,), "diff one": (1,)}[stage]
     return run.ok and run.exit_code in expected

@@ -43,8 +43,8 @@ def add_check_and_build(commands) -> None:
     """The `check` and `build` commands' arguments."""
     check = commands.add_parser(
         "check", help="validate the registry, compute every figure and report the discrepancies",
-        description="Exit 0 when no blocking discrepancy is open, 1 when one is, 2 on data or usage errors. "
-                    "A blocking finding whose review is action-raised stays open (the fault is still fitted) "
+        description="Exit 0 when no unserviceable discrepancy is open, 1 when one is, 2 on data or usage errors. "
+                    "An unserviceable finding whose review is action-raised stays open (the fault is still fitted) "
                     "unless the policy's action_raised_counts_open is false. With filters, only the findings "
                     "selected are listed and counted for the exit code.")
     check.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",

@@ -38,7 +38,7 @@ class Fleet:
 
 
 def finding(**changes) -> Discrepancy:
-    fields = dict(id="qx-tqa/VHF1/feeder-loss", rule="feeder-loss", severity="concern", aircraft="qx-tqa",
+    fields = dict(id="qx-tqa/VHF1/feeder-loss", rule="feeder-loss", severity="query", aircraft="qx-tqa",
                   position="VHF1", value=3.4, limit=3.0, unit="dB", message="m", method="",
                   src="/data/fleet/aircraft/qx-tqa.yaml:36")
     fields.update(changes)
@@ -155,8 +155,8 @@ def test_action_raised_finding_shows_open_on_the_drawing_and_the_fleet_overview(
     # the demo's action-raised review on QX-TCE's marker beacon: the 75 Ω cable is still fitted
     _, site = built
     aircraft = (site / "aircraft" / "qx-tce.html").read_text(encoding="utf-8")
-    assert re.search(r'class="mark st-blocking[^"]*" href="\.\./aircraft/qx-tce/MKR\.html"', aircraft)
+    assert re.search(r'class="mark st-unserviceable[^"]*" href="\.\./aircraft/qx-tce/MKR\.html"', aircraft)
     installation = (site / "aircraft" / "qx-tce" / "MKR.html").read_text(encoding="utf-8")
-    assert '<span class="sev sev-blocking">' in installation.split('id="findings"', 1)[0]
+    assert '<span class="sev sev-unserviceable">' in installation.split('id="findings"', 1)[0]
     record = json.loads((site / "record.json").read_text(encoding="utf-8"))
     assert record["discrepancies"]["qx-tce/MKR/impedance-match"]["is_open"] is True

@@ -59,16 +59,16 @@ def test_service_filter_lists_only_aircraft_with_that_service(demo_data, demo_fl
 
 
 def test_severity_filter_says_what_it_kept(demo_data, capsys):
-    code, text = run(capsys, str(demo_data), "--severity", "advisory")
-    assert "filtered: severity advisory:" in text
-    assert all(line.startswith("  [advisory]") for line in text.splitlines() if line.startswith("  ["))
-    assert code == 0  # only advisory findings selected: none counts for the gate
+    code, text = run(capsys, str(demo_data), "--severity", "note")
+    assert "filtered: severity note:" in text
+    assert all(line.startswith("  [note]") for line in text.splitlines() if line.startswith("  ["))
+    assert code == 0  # only note findings selected: none counts for the gate
 
 
 def test_json_export_names_its_filters(demo_data, capsys):
-    _, out = run(capsys, str(demo_data), "--aircraft", "qx-tce", "--severity", "blocking", "--format", "json")
+    _, out = run(capsys, str(demo_data), "--aircraft", "qx-tce", "--severity", "unserviceable", "--format", "json")
     document = json.loads(out)
-    assert document["filters"] == {"aircraft": ["qx-tce"], "severity": ["blocking"]}
+    assert document["filters"] == {"aircraft": ["qx-tce"], "severity": ["unserviceable"]}
     assert [item["id"] for item in document["discrepancies"]] == ["qx-tce/MKR/impedance-match"]
 
 

@@ -30,7 +30,7 @@ def test_uncovered_band_covers_every_service_band():
 
 
 def discrepancy(value=3.4):
-    return Discrepancy(id="qx-aaa/VHF1/feeder-loss", rule="feeder-loss", severity="concern", aircraft="qx-aaa",
+    return Discrepancy(id="qx-aaa/VHF1/feeder-loss", rule="feeder-loss", severity="query", aircraft="qx-aaa",
                        position="VHF1", value=value, limit=3.0, unit="dB", message="m", method="", src="")
 
 
@@ -56,11 +56,11 @@ def test_review_without_discrepancy_is_stale():
 
 
 @pytest.mark.parametrize("severity, state, fails", [
-    ("blocking", "open", True), ("blocking", "reopened", True), ("blocking", "accepted", False),
-    ("blocking", "action-raised", True), ("blocking", "no-fault", False), ("concern", "open", False),
-    ("advisory", "open", False), ("concern", "action-raised", False),
+    ("unserviceable", "open", True), ("unserviceable", "reopened", True), ("unserviceable", "accepted", False),
+    ("unserviceable", "action-raised", True), ("unserviceable", "no-fault", False), ("query", "open", False),
+    ("note", "open", False), ("query", "action-raised", False),
 ])
-def test_gate_fails_only_on_open_blocking(severity, state, fails):
+def test_gate_fails_only_on_open_unserviceable(severity, state, fails):
     # the product's own definition (docs/registry-format.md): an action raised leaves the fault fitted
     item = replace(discrepancy(), severity=severity)
     reviewed = checks.apply_reviews([item], FrozenMap({item.id: review(item.value, state)})) \
@@ -86,8 +86,8 @@ def test_reopened_review_is_open_whatever_the_switch():
 
 
 def test_findings_are_ordered_by_id_whatever_their_severity():
-    items = [replace(discrepancy(), id="qx-aaa/VHF2/isolation", severity="advisory"),
-             replace(discrepancy(), id="qx-aaa/MKR/band-coverage", severity="blocking"),
-             replace(discrepancy(), id="qx-aaa/DME1/feeder-loss", severity="concern")]
+    items = [replace(discrepancy(), id="qx-aaa/VHF2/isolation", severity="note"),
+             replace(discrepancy(), id="qx-aaa/MKR/band-coverage", severity="unserviceable"),
+             replace(discrepancy(), id="qx-aaa/DME1/feeder-loss", severity="query")]
     assert [d.id for d in checks.check_fleet(items, FrozenMap({}))] == [
         "qx-aaa/DME1/feeder-loss", "qx-aaa/MKR/band-coverage", "qx-aaa/VHF2/isolation"]

@@ -64,7 +64,7 @@ def test_planted_problem_is_one_finding_with_channels_order_and_margin(demo_flee
     found = cosite_discrepancies(demo_fleet, tja.cosite)
     assert [item.id for item in found] == ["qx-tja/GNSS1+VHF3/cosite"]
     item = found[0]
-    assert item.severity == "blocking" and item.unit == "dB" and item.value < 0 and item.limit == 0.0
+    assert item.severity == "unserviceable" and item.unit == "dB" and item.value < 0 and item.limit == 0.0
     assert "channels 121.108–121.258 MHz (19 at 8.333 kHz), 13th harmonic" in item.message
     assert f"margin {item.value:.1f} dB" in item.message
     assert item.src.endswith("qx-tja.yaml:" + item.src.rsplit(":", 1)[1])  # the pool unit's line
@@ -78,7 +78,7 @@ def test_small_margin_is_the_lesser_finding(demo_fleet, tja):
     assert not any(item.id.endswith("/cosite-small") for item in cosite_discrepancies(demo_fleet, tja.cosite))
     fleet = dataclasses.replace(demo_fleet, policy=dataclasses.replace(demo_fleet.policy, cosite_small_margin_db=15.0))
     found = {item.id: item for item in cosite_discrepancies(fleet, tja.cosite)}
-    assert found["qx-tja/GNSS1+VHF1/cosite-small"].severity == "concern"
+    assert found["qx-tja/GNSS1+VHF1/cosite-small"].severity == "query"
     assert found["qx-tja/GNSS1+VHF1/cosite-small"].value == pytest.approx(margin, abs=1e-3)
 
 

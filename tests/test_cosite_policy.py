@@ -163,7 +163,8 @@ def test_methods_page_lays_out_the_cosite_method_with_sources_and_standing(demo_
         assert f"<th scope=\"row\">{step}</th>" in section
     assert "ITU-R SM.329-13 §1.1.1" in section and "ITU-R SM.1134-1" in section
     assert "common practice, no source" in section and "antenna&#39;s port" in section
-    assert "dme.im5_conversion_loss_db = 100 (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in html
+    assert "<code>dme: im5_conversion_loss_db</code>" in html  # the one threshold table, with the policy's override
+    assert "fleet policy: 100 dB (operator&#39;s choice: radio specification TCA-RS-12 §4.5" in html
 
 
 def test_search_index_holds_the_interference_pages(demo_fleet, demo_site):

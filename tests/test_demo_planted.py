@@ -44,7 +44,7 @@ def test_check_finds_exactly_the_planted_problems(capsys):
     for item in found:  # every discrepancy points at the registry line its value came from
         path, line = item["source"].rsplit(":", 1)
         assert (DEMO / path).is_file() and path.endswith(".yaml") and int(line) > 0  # relative to the data folder
-    assert code == 1  # blocking problems are open in the demo
+    assert code == 1  # unserviceable problems are open in the demo
 
 
 def test_clean_aircraft_has_no_discrepancy(capsys):
@@ -66,36 +66,36 @@ def reviewed_copy(tmp_path, reviews: list[dict]) -> Path:
     return data
 
 
-def test_accepting_every_blocking_problem_opens_the_gate(tmp_path, capsys):
-    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "blocking")
-    blocking = json.loads(out)["discrepancies"]
-    assert blocking
+def test_accepting_every_unserviceable_problem_opens_the_gate(tmp_path, capsys):
+    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "unserviceable")
+    unserviceable = json.loads(out)["discrepancies"]
+    assert unserviceable
     reviews = [{"id": item["id"], "state": "accepted", "reviewer": "R. Marlow", "date": "2026-12-01",
-                "reference": "ENG-2026-0001", "value_seen": item["value"]} for item in blocking]
+                "reference": "ENG-2026-0001", "value_seen": item["value"]} for item in unserviceable]
     code, out = run_check(capsys, str(reviewed_copy(tmp_path, reviews)), "--format", "json")
     assert code == 0
     found = {item["id"]: item for item in json.loads(out)["discrepancies"]}
     assert all(found[item["id"]]["review"] == "accepted" and not found[item["id"]]["counts_open"]
-               for item in blocking)
+               for item in unserviceable)
 
 
 def test_an_action_raised_keeps_the_gate_shut_unless_the_policy_says_otherwise(tmp_path, capsys):
     # an action raised is not an action done: the fault is still fitted (docs/registry-format.md, reviews)
-    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "blocking")
-    blocking = json.loads(out)["discrepancies"]
+    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "unserviceable")
+    unserviceable = json.loads(out)["discrepancies"]
     reviews = [{"id": item["id"], "state": "action-raised", "reviewer": "R. Marlow", "date": "2026-12-01",
-                "reference": "CR-2026-0001", "value_seen": item["value"]} for item in blocking]
+                "reference": "CR-2026-0001", "value_seen": item["value"]} for item in unserviceable]
     data = reviewed_copy(tmp_path, reviews)
     code, out = run_check(capsys, str(data), "--format", "json")
     assert code == 1
     found = {item["id"]: item for item in json.loads(out)["discrepancies"]}
     assert all(found[item["id"]]["review"] == "action-raised" and found[item["id"]]["counts_open"]
-               for item in blocking)
+               for item in unserviceable)
     with (data / "policy.yaml").open("a", encoding="utf-8") as policy:
         policy.write("\naction_raised_counts_open: false\n")
     code, out = run_check(capsys, str(data), "--format", "json")
     assert code == 0
-    assert not any(item["counts_open"] for item in json.loads(out)["discrepancies"] if item["severity"] == "blocking")
+    assert not any(item["counts_open"] for item in json.loads(out)["discrepancies"] if item["severity"] == "unserviceable")
 
 
 def test_the_demo_action_raised_review_leaves_qx_tce_open(capsys):
@@ -121,15 +121,15 @@ def test_the_policy_switch_is_schema_checked(tmp_path, capsys):
 
 
 def test_review_reopens_when_the_value_changes(tmp_path, capsys):
-    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "blocking")
-    blocking = json.loads(out)["discrepancies"]
+    _, out = run_check(capsys, str(DEMO), "--format", "json", "--severity", "unserviceable")
+    unserviceable = json.loads(out)["discrepancies"]
     reviews = [{"id": item["id"], "state": "accepted", "reviewer": "R. Marlow", "date": "2026-12-01",
-                "comment": "seen", "value_seen": item["value"]} for item in blocking]
+                "comment": "seen", "value_seen": item["value"]} for item in unserviceable]
     reviews[0]["value_seen"] = "something else"
     code, out = run_check(capsys, str(reviewed_copy(tmp_path, reviews)), "--format", "json")
     assert code == 1
     states = {item["id"]: item["review"] for item in json.loads(out)["discrepancies"]}
-    assert states[blocking[0]["id"]] == "reopened"
+    assert states[unserviceable[0]["id"]] == "reopened"
 
 
 def test_csv_and_text_carry_the_same_problems(capsys):

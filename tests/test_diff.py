@@ -439,10 +439,10 @@ def test_changed_severity_is_reported(pair):
     old, _ = pair
     before = record.to_record(pipeline.run(old))
     after = json.loads(record.dumps(before))
-    after["discrepancies"]["qx-fca/GS1/element-length"]["severity"] = "blocking"  # as a rule change would do
+    after["discrepancies"]["qx-fca/GS1/element-length"]["severity"] = "unserviceable"  # as a rule change would do
     result = compare_records(before, after)
     [change] = result.discrepancies
     assert change.aspects == (FieldChange("severity", before["discrepancies"]["qx-fca/GS1/element-length"]
-                                               ["severity"], "blocking"),)
+                                               ["severity"], "unserviceable"),)
     assert result.counts()["severity_changes"] == 1 and not result.same
-    assert "             severity: concern → blocking\n" in as_text(result)
+    assert "             severity: query → unserviceable\n" in as_text(result)

@@ -230,7 +230,7 @@ def test_a_typing_slip_gives_an_unmodellable_finding(one_aircraft):
     out = io.StringIO()
     with contextlib.redirect_stdout(out), contextlib.redirect_stderr(io.StringIO()):
         code = main(["check", str(one_aircraft)])
-    assert code == 0  # a concern, not a blocking finding: check's exit code stays 0
+    assert code == 0  # a query, not an unserviceable finding: check's exit code stays 0
     text = out.getvalue()
     assert "qx-tca/VHF1/unmodellable" in text
     assert "too short for its radius" in text

@@ -125,13 +125,13 @@ def small_results() -> FleetResults:
 
 def small_discrepancies() -> list[Discrepancy]:
     return [
-        Discrepancy("qx-tqa/VHF1+VHF2/isolation", "isolation", "concern", "qx-tqa", "VHF1+VHF2", 31.0, 40.0, "dB",
+        Discrepancy("qx-tqa/VHF1+VHF2/isolation", "isolation", "query", "qx-tqa", "VHF1+VHF2", 31.0, 40.0, "dB",
                     "Isolation 31 dB below the 40 dB minimum", "Friis free-space", "/data/fleet/aircraft/qx-tqa.yaml:13"),
-        Discrepancy("qx-tqa/XPDR1/measurement-age", "measurement-age", "advisory", "qx-tqa", "XPDR1", 800, 730,
+        Discrepancy("qx-tqa/XPDR1/measurement-age", "measurement-age", "note", "qx-tqa", "XPDR1", 800, 730,
                     "days", "Measurement is 800 days old", "policy age", "/data/fleet/aircraft/qx-tqa.yaml:60",
                     review="accepted", reviewer="A. Fictional", review_reference="ENG-1", review_date="2026-01-10",
                     is_open=False),
-        Discrepancy("qx-tqa/VHF2/feeder-loss", "feeder-loss", "blocking", "qx-tqa", "VHF2", 3.4, 3.0, "dB",
+        Discrepancy("qx-tqa/VHF2/feeder-loss", "feeder-loss", "unserviceable", "qx-tqa", "VHF2", 3.4, 3.0, "dB",
                     "Feeder loss 3.4 dB above the 3 dB budget", "loss budget", "/data/fleet/aircraft/qx-tqa.yaml:36"),
     ]
 
@@ -184,9 +184,9 @@ def test_links_are_relative_to_each_page_depth():
 
 def test_status_marks_worst_open_severity():
     html = text(site(), "aircraft/qx-tqa.html")
-    # VHF2 has an open blocking finding, VHF1 an open concern (pair), XPDR1 only an accepted one
-    assert re.search(r'class="mark st-blocking[^"]*" href="../aircraft/qx-tqa/VHF2.html"', html)
-    assert re.search(r'class="mark st-concern[^"]*" href="../aircraft/qx-tqa/VHF1.html"', html)
+    # VHF2 has an open unserviceable finding, VHF1 an open query (pair), XPDR1 only an accepted one
+    assert re.search(r'class="mark st-unserviceable[^"]*" href="../aircraft/qx-tqa/VHF2.html"', html)
+    assert re.search(r'class="mark st-query[^"]*" href="../aircraft/qx-tqa/VHF1.html"', html)
     assert re.search(r'class="mark st-clear[^"]*" href="../aircraft/qx-tqa/XPDR1.html"', html)
 
 
@@ -208,7 +208,7 @@ def test_discrepancy_links_go_to_installation_and_audit_rows_carry_filters():
     html = text(site(), "audit.html")
     row = re.search(r'<tr id="d-qx-tqa__VHF2__feeder-loss"[^>]*>', html).group(0)
     assert 'data-aircraft="qx-tqa"' in row and 'data-service="vhf_com"' in row
-    assert 'data-severity="blocking"' in row and 'data-state="open open-any"' in row
+    assert 'data-severity="unserviceable"' in row and 'data-state="open open-any"' in row
     pair = re.search(r'<tr id="d-qx-tqa__VHF1--VHF2__isolation"[^>]*>', html).group(0)
     assert 'data-service="vhf_com"' in pair
     assert 'href="aircraft/qx-tqa/VHF2.html">VHF2</a>' in html

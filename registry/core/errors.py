@@ -10,9 +10,9 @@ from dataclasses import dataclass
 from typing import Iterable, NamedTuple
 
 EXIT_OK = 0
-"""Success (`check`: no blocking finding open; `diff`: the two builds are the same)."""
+"""Success (`check`: no unserviceable finding open; `diff`: the two builds are the same)."""
 EXIT_FINDINGS = 1
-"""`check`: a blocking finding is open; `diff`: the two builds differ."""
+"""`check`: an unserviceable finding is open; `diff`: the two builds differ."""
 EXIT_DATA = 2
 """A data or usage error: the user can fix it."""
 EXIT_INTERNAL = 3

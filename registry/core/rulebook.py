@@ -5,29 +5,29 @@ A finding's id ends with its rule's name (`<aircraft>/<position>/<rule>`), revie
 """
 from __future__ import annotations
 
-SEVERITIES = ("blocking", "concern", "advisory")
-"""Severity names, most severe first. `blocking` left open makes `check` exit 1: the installation cannot
-do its job as recorded; `concern` an engineer must judge it; `advisory` the record needs attention."""
+SEVERITIES = ("unserviceable", "query", "note")
+"""Severity names, most severe first. `unserviceable` left open makes `check` exit 1: the installation cannot
+do its job as recorded; `query` an engineer must judge it; `note` the record needs attention."""
 
 RULE_SEVERITY = {
-    "element-length": "concern",
-    "band-coverage": "blocking",
-    "vswr-bandwidth": "concern",
-    "measured-vswr": "blocking",
-    "feeder-loss": "concern",
-    "impedance-match": "blocking",
-    "cable-frequency": "blocking",
-    "isolation": "concern",
-    "ground-plane": "blocking",
-    "antenna-suitability": "concern",
-    "measurement-age": "advisory",
-    "missing-data": "advisory",
-    "unmodellable": "concern",
-    "cosite": "blocking",
-    "cosite-small": "concern",
-    "skin-position": "concern",
-    "coverage": "concern",
-    "ground-plane-effect": "concern",
+    "element-length": "query",
+    "band-coverage": "unserviceable",
+    "vswr-bandwidth": "query",
+    "measured-vswr": "unserviceable",
+    "feeder-loss": "query",
+    "impedance-match": "unserviceable",
+    "cable-frequency": "unserviceable",
+    "isolation": "query",
+    "ground-plane": "unserviceable",
+    "antenna-suitability": "query",
+    "measurement-age": "note",
+    "missing-data": "note",
+    "unmodellable": "query",
+    "cosite": "unserviceable",
+    "cosite-small": "query",
+    "skin-position": "query",
+    "coverage": "query",
+    "ground-plane-effect": "query",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

@@ -40,7 +40,7 @@ def selected_aircraft(fleet: Fleet, filters: Mapping[str, list[str]]) -> list:
 
 
 def filters_text(filters: Mapping[str, list[str]]) -> str:
-    """"aircraft QX-TCE; severity blocking", or "" without filters."""
+    """"aircraft QX-TCE; severity unserviceable", or "" without filters."""
     return "; ".join(f"{name} {', '.join(values)}" for name, values in filters.items() if values)
 
 

@@ -86,18 +86,21 @@ class Drawing:
 
 
 def _shape(kind: str, x: float, y: float, r: float) -> str:
-    """Marker path by status, so status reads without colour: diamond, triangle, circle, square."""
-    if kind == "blocking":
+    """Marker path by status, the shapes the badges and tables use too (site.css, partials/badges.html), so
+    status reads without colour: unserviceable a diamond ◆, query a triangle ▲, note a circle ●, no open
+    findings a tick ✓."""
+    if kind == "unserviceable":
         s = r * 1.35
         return f"M{n(x)},{n(y - s)} L{n(x + s)},{n(y)} L{n(x)},{n(y + s)} L{n(x - s)},{n(y)} Z"
-    if kind == "concern":
+    if kind == "query":
         s = r * 1.3
         return f"M{n(x)},{n(y - s)} L{n(x + s)},{n(y + s * 0.75)} L{n(x - s)},{n(y + s * 0.75)} Z"
-    if kind == "advisory":
+    if kind == "note":
         return (f"M{n(x - r)},{n(y)} A{n(r)},{n(r)} 0 1,0 {n(x + r)},{n(y)} "
                 f"A{n(r)},{n(r)} 0 1,0 {n(x - r)},{n(y)} Z")
-    s = r * 0.85
-    return f"M{n(x - s)},{n(y - s)} H{n(x + s)} V{n(y + s)} H{n(x - s)} Z"
+    s = r * 1.4
+    tick = ((-1.0, -0.05), (-0.4, 0.55), (1.0, -0.85), (1.0, -0.35), (-0.4, 1.05), (-1.0, 0.45))
+    return "M" + " L".join(f"{n(x + s * dx)},{n(y + s * dy)}" for dx, dy in tick) + " Z"
 
 
 def label_levels(items: list[tuple[str, float, float]], char_w: float, pad: float) -> dict[str, int]:

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from registry.core.rulebook import FAULT_REMAINS_STATES, SEVERITIES
 
-SEVERITY_LABELS = {"blocking": "Blocking", "concern": "Concern", "advisory": "Advisory"}
+SEVERITY_LABELS = {"unserviceable": "Unserviceable", "query": "Query", "note": "Note"}
 STATUS_LABELS = {**SEVERITY_LABELS, "clear": "No open findings"}
 STATE_LABELS = {"open": "Open", "reopened": "Reopened", "accepted": "Accepted",
                 "action-raised": "Action raised", "no-fault": "No fault found",

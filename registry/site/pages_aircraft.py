@@ -75,7 +75,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
                 matrix=severity_matrix(items), src=data.model_src(aircraft),
                 shape={"text": shape_text(airframe), "assumptions": shape_of(airframe).assumptions},
                 change_marks=data.marks(aircraft.id), change_anchor="aircraft",
-                status_kinds=("blocking", "concern", "advisory", "clear"))
+                status_kinds=("unserviceable", "query", "note", "clear"))
 
 
 def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs) -> list[dict[str, Any]]:

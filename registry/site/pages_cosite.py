@@ -72,7 +72,7 @@ def cell(path: CositePath | None, same: bool, small_db: float, notes: Notes) -> 
         return {"state": "excused", "text": f"excused: {path.excused_by}", "hits": ()}
     worst = path.worst
     margin = worst.margin_db if worst is not None else None
-    state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db
+    state = ("unrated" if margin is None else "unserviceable" if margin < 0 else "query" if margin < small_db
              else "ok")
     text = margin_text(worst) if margin is not None else "no level"
     others = [{"product": hit.product, "channels": hit.channels,
@@ -166,7 +166,7 @@ def intermod_order(item: CositeIntermod) -> tuple:
 def intermod_view(item: CositeIntermod, small_db: float, notes: Notes, number: int) -> dict[str, Any]:
     """One product's row: where it lands, which transmitter makes it, its margin and its arithmetic."""
     margin = item.margin_db
-    state = ("unrated" if margin is None else "blocking" if margin < 0 else "concern" if margin < small_db else "ok")
+    state = ("unrated" if margin is None else "unserviceable" if margin < 0 else "query" if margin < small_db else "ok")
     missing = [f.label for f in item.figures if f.value is None]
     text = (format_value(next(f for f in item.figures if f.key == FK.COSITE_MARGIN_DB)) if margin is not None
             else "no level" + (f" ({'; '.join(missing)}: not given)" if missing else ""))
@@ -234,7 +234,7 @@ def type_cosite_pages(data: SiteData) -> list[Page]:
             rated = [c.margin_db for _, c in each if c.margin_db is not None]
             worst = min(rated) if rated else None
             state = ("excused" if each[0][1].excused_by else "unrated" if worst is None else
-                     "blocking" if worst < 0 else "concern" if worst < small else "ok")
+                     "unserviceable" if worst < 0 else "query" if worst < small else "ok")
             rows.append({"tx": key[0], "rx": key[1], "services": f"{each[0][1].tx_service} → {each[0][1].rx_service}",
                          "state": state, "worst": "—" if worst is None else number_text(worst, "dB"),
                          "excused_by": each[0][1].excused_by,

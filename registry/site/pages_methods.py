@@ -1,15 +1,13 @@
 """The methods page: every figure's formula and source as used across the fleet, the checks, the policy."""
 from __future__ import annotations
 
-from registry.compute.cosite import METHODS as COSITE_METHODS
-from registry.core.model import POLICY_KEYS
-
 from collections import Counter, defaultdict
 from typing import Any
 
+from registry.compute.cosite import METHODS as COSITE_METHODS
 from registry.core.results import figure_uses
 from registry.site.context import SiteData
-from registry.site.format import NONE_TEXT, fmt
+from registry.site.limits import standing_counts, threshold_rows
 from registry.site.labels import FIGURE_GROUPS
 from registry.site.pages import Output, page
 from registry.site.paths import anchor
@@ -71,31 +69,10 @@ def check_rows(data: SiteData) -> list[dict[str, Any]]:
             for rule, entry in sorted(checks.items())]
 
 
-def policy_rows(data: SiteData) -> list[dict[str, str]]:
-    """The policy's limits as the register sets them, with their sources and registry lines."""
-    policy = data.fleet.policy
-    rows = []
-    for key in POLICY_KEYS:
-        value = getattr(policy, key)
-        if key == "min_isolation_db":
-            text = "; ".join(f"{' + '.join(rule.services)}: {fmt(rule.isolation_db)} dB"
-                             for rule in value) or NONE_TEXT
-        elif key == "cosite_services":
-            text = "; ".join(f"{service}.{name} = {fmt(figure[0]) if isinstance(figure[0], (int, float)) else figure[0]}"
-                             f" ({figure[1]})" for service, figures in value.items()
-                             for name, figure in figures.items()) or NONE_TEXT
-        elif hasattr(value, "items"):
-            text = ", ".join(f"{k}: {fmt(v)}" for k, v in value.items()) or NONE_TEXT
-        else:
-            text = fmt(value)
-        where = policy.where(key)
-        rows.append({"key": key, "value": text, "source": str(policy.sources.get(key, "")),
-                     "src": data.src_text(f"{where.path}:{where.line}")})
-    return rows
-
-
 def methods_page(data: SiteData) -> Output:
+    thresholds = threshold_rows(data.fleet, data.src_text)
     return page("methods.html", "methods.html", "methods", "Methods and cautions", [],
-                groups=figure_catalogue(figure_tally(data)), checks=check_rows(data), policy=policy_rows(data),
+                groups=figure_catalogue(figure_tally(data)), checks=check_rows(data), thresholds=thresholds,
+                standing_counts=standing_counts(thresholds),
                 cosite=[{"step": step, "formula": formula, "source": source, "standing": standing}
                         for step, formula, source, standing in COSITE_METHODS])

@@ -13,6 +13,7 @@ from registry.core.rulebook import OPEN_STATES, SEVERITIES
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT, exact, fmt, vswr_text, words
 from registry.site.labels import FIGURE_GROUPS, STATE_KEYS, state_key
+from registry.site.limits import limit_source
 from registry.site.pages_registry import line_href
 from registry.site.paths import (aircraft_path, anchor, antenna_path, cable_path, installation_path,
                                  pattern_plot_path)
@@ -40,6 +41,7 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
         "review": item.review, "reviewer": item.reviewer, "review_comment": item.review_comment,
         "review_reference": item.review_reference, "review_date": item.review_date, "is_open": item.is_open,
         "state_key": state_key(item.review, item.is_open),
+        "limit_source": limit_source(data.fleet, item.rule, services, item.unit),
     }
 
 

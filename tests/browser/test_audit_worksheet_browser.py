@@ -60,7 +60,7 @@ def test_audit_filters_drive_the_downloads(worksheet):
     document = json.loads(download(page, "json"))
     assert document["filters"] == {"aircraft": ["qx-tce"]}
     assert [item["id"] for item in document["discrepancies"]] == shown
-    page.select_option("#filter-severity", "blocking")
+    page.select_option("#filter-severity", "unserviceable")
     document = json.loads(download(page, "json"))
     assert [item["id"] for item in document["discrepancies"]] == [MKR] == visible_ids(page)
     page.locator("#audit-table").screenshot(path=str(SHOTS / "audit-filtered.png"))

@@ -209,7 +209,7 @@ def test_site_works_under_a_sub_path_of_a_web_server(page, sub_path_url):
     p.wait_for_url(re.compile(r"/intranet/fleet/aircraft/[^/]+/[^/]+\.html$"))
     assert images_ok(p) == []
     p.goto(sub_path_url + "audit.html")
-    p.select_option("#filter-severity", "blocking")
+    p.select_option("#filter-severity", "unserviceable")
     assert p.locator("output[data-count='shown']").inner_text().isdigit()
     download = p.request.get(sub_path_url + "audit/discrepancies.csv")
     assert download.ok and download.text().startswith("\ufeffid,severity")  # UTF-8 byte-order mark first

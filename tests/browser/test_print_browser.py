@@ -31,12 +31,38 @@ def test_the_aircraft_report_prints_with_its_title_block(browser, sub_path_url):
         assert page.locator("dd.print-only").first.is_visible()
         assert not page.locator(".site-nav").is_visible() and not page.locator(".quick-search").is_visible()
         page.screenshot(path=str(SHOTS / "report-qx-tce-print.png"), full_page=True)
-        pdf = page.pdf(format="A4", print_background=True)
-        (SHOTS / "report-qx-tce.pdf").write_bytes(pdf)
-        assert pdf.count(b"/Type /Page\n") + pdf.count(b"/Type /Page ") + pdf.count(b"/Type /Page>") >= 1
+        assert_every_printed_page_is_headed(page, "report-qx-tce", "QX-TCE")
         page.emulate_media(media="screen")
         assert not page.locator("dd.print-only").first.is_visible()
         assert page.locator(".title-block").evaluate("el => getComputedStyle(el).display") != "table-header-group"
+    finally:
+        context.close()
+
+
+def assert_every_printed_page_is_headed(page, name: str, subject: str) -> int:
+    """Print `page` to PDF as chromium does, read each page's text back (pypdfium2) and check the title
+    block heads it and its foot says "page x of y". Returns the page count."""
+    import pypdfium2
+
+    path = SHOTS / f"{name}.pdf"
+    path.write_bytes(page.pdf(format="A4", print_background=True))
+    document = pypdfium2.PdfDocument(str(path))
+    count = len(document)
+    for number in range(count):
+        text = document[number].get_textpage().get_text_range()
+        for expected in ("Operator", "Data revision", "Build date", subject, f"page {number + 1} of {count}"):
+            assert expected in text, f"{name}.pdf page {number + 1}: no {expected!r}"
+        document[number].render(scale=1.2).to_pil().save(str(SHOTS / f"{name}-page{number + 1}.png"))
+    document.close()
+    return count
+
+
+def test_the_fleet_report_carries_its_title_block_on_every_printed_page(browser, sub_path_url):
+    SHOTS.mkdir(parents=True, exist_ok=True)
+    context, page = printed(browser, sub_path_url + "report.html")
+    try:
+        pages = assert_every_printed_page_is_headed(page, "report-fleet", "Tern Coast Airlink")
+        assert pages > page.locator(".report-aircraft").count()  # each aircraft starts a page of its own
     finally:
         context.close()
 

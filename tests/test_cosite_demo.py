@@ -20,7 +20,7 @@ from registry.compute.aircraft import compute_aircraft
 from registry.core import figure_keys as FK
 from registry.core.base import FrozenMap
 from registry.output import record
-from registry.output.compare import compare_figures
+from registry.output.compare import compare_figures, compare_pairs
 from registry.output.comparison import Tolerance
 
 AS_OF = date(2026, 12, 2)
@@ -100,7 +100,7 @@ def test_suppression_line_excuses_the_lband_family_and_only_it(demo_fleet, tja):
 
 
 def test_record_and_diff_carry_the_margins(demo_fleet, tja):
-    """A new radio's harmonic appears in `diff` as a co-site figure that appeared."""
+    """A new radio's harmonic appears in `diff` as a co-site path that was added, with its margin."""
     new = record.cosite_record(tja.cosite)
     entry = new["qx-tja/VHF3+GNSS1"]
     assert entry["figures"]["cosite.margin_db.h13"]["value"] == pytest.approx(
@@ -108,9 +108,10 @@ def test_record_and_diff_carry_the_margins(demo_fleet, tja):
     old = {key: value for key, value in new.items() if key != "qx-tja/VHF3+GNSS1"}
     shape = lambda cosite: {"registry": {"aircraft": {"qx-tja": {}}},  # noqa: E731
                             "figures": {"installations": {}, "pairs": {}, "cables": {}, "cosite": cosite}}
-    changes = compare_figures(shape(old), shape(new), {}, {}, Tolerance())
-    assert {(c.scope, c.owner, c.key, c.old) for c in changes} >= {
-        ("co-site", "qx-tja/VHF3+GNSS1", "cosite.margin_db.h13", None)}
+    assert compare_figures(shape(old), shape(new), {}, {}, Tolerance()) == []  # listed whole, not figure by figure
+    added = compare_pairs(shape(old), shape(new), {})
+    assert [(c.scope, c.owner, c.change) for c in added] == [("co-site", "qx-tja/VHF3+GNSS1", "added")]
+    assert entry["figures"]["cosite.margin_db.h13"]["label"] in added[0].summary
 
 
 def test_interference_page_agrees_with_check_details(demo_site, capsys):

@@ -3,6 +3,7 @@ re-reviewed; figures beyond the tolerance; the command's outputs and exit codes;
 the site's changes page."""
 import json
 import os
+import re
 import shutil
 import subprocess
 from pathlib import Path
@@ -100,7 +101,11 @@ def test_changed_cable_length_is_shown_field_by_field_and_moves_the_feeder_figur
     assert main(["diff", str(old), str(new)]) == 1
     out = capsys.readouterr().out
     assert "  changed  qx-fca/DME1\n             feeder.length_m: 6.1 → 5\n" in out
-    assert "feeder.cable_loss_db" in out and "(-18.0 %)" in out
+    # a loss in dB moves by a difference in dB, not a percentage of a level (issue 15, item 5)
+    line = next(line for line in out.splitlines() if line.strip().startswith("feeder.cable_loss_db"))
+    shown = re.search(r"\(([-+]\d+(?:\.\d+)?) dB\)$", line)
+    assert shown and "%" not in line
+    assert float(shown.group(1)) == pytest.approx(cable.new - cable.old, abs=0.006)
 
 
 def test_a_loss_brought_under_budget_resolves_the_discrepancy(pair):

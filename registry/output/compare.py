@@ -7,6 +7,9 @@ disappears from an aircraft and exactly one appears on the same aircraft with th
 service and feeder cable, the two are one installation that moved (or whose position was renamed); any
 other disappearance or appearance is a removal or an addition. Discrepancy ids and pair figures of a
 moved installation are followed to its new position id.
+
+Both sides are evaluated at one date, NEW's: OLD is re-based to it first (`rebase.rebased`), so that no
+measurement age, and no finding of one, differs merely because the two were computed on different days.
 """
 from __future__ import annotations
 
@@ -15,8 +18,9 @@ from collections.abc import Mapping
 from typing import Any
 
 from registry.output.comparison import (Comparison, DiscrepancyChange, FieldChange, FigureChange, InstallationChange,
-                                        ItemChange, SideInfo, Tolerance)
-from registry.output.display import show
+                                        ItemChange, PairChange, SideInfo, Tolerance)
+from registry.output.display import figure_text, show
+from registry.output.rebase import rebased
 
 CATALOGUES = (("airframes", "airframe"), ("antennas", "antenna model"), ("cables", "cable"),
               ("services", "service"))
@@ -74,8 +78,10 @@ def find_moves(removed: dict[tuple[str, str], Mapping[str, Any]], added: dict[tu
 
 def compare(old: Mapping[str, Any], new: Mapping[str, Any], tolerance: Tolerance = Tolerance(),
             old_label: str = "OLD", new_label: str = "NEW") -> Comparison:
-    """What changed from the `old` record to the `new` one."""
-    result = Comparison(SideInfo(old_label, old["as_of"]), SideInfo(new_label, new["as_of"]), tolerance)
+    """What changed from the `old` record to the `new` one, both evaluated at NEW's date."""
+    result = Comparison(SideInfo(old_label, old["as_of"]), SideInfo(new_label, new["as_of"]), tolerance,
+                        at=new["as_of"])
+    old = rebased(old, new["as_of"])
     old_aircraft, new_aircraft = old["registry"]["aircraft"], new["registry"]["aircraft"]
     result.registrations = {**{key: craft["registration"] for key, craft in old_aircraft.items()},
                             **{key: craft["registration"] for key, craft in new_aircraft.items()}}
@@ -86,6 +92,7 @@ def compare(old: Mapping[str, Any], new: Mapping[str, Any], tolerance: Tolerance
     renamed = {old_key: new_key[1] for old_key, new_key in identity.items() if old_key != new_key}
     result.discrepancies = compare_discrepancies(old["discrepancies"], new["discrepancies"], renamed, tolerance)
     result.figures = compare_figures(old, new, identity, renamed, tolerance)
+    result.pairs = compare_pairs(old, new, renamed)
     return result
 
 
@@ -143,12 +150,13 @@ def compare_installations(before_all: Mapping[tuple[str, str], Mapping[str, Any]
     return out, identity
 
 
-def follow(owner: str, renamed: Mapping[tuple[str, str], str]) -> str:
-    """An `<aircraft>/<positions>[/<rule>]` id from OLD with moved positions renamed (pairs re-sorted)."""
+def follow(owner: str, renamed: Mapping[tuple[str, str], str], ordered: bool = False) -> str:
+    """An `<aircraft>/<positions>[/<rule>]` id from OLD with moved positions renamed (pairs re-sorted,
+    unless `ordered`: a co-site path keeps its transmitter first)."""
     aircraft_id, _, rest = owner.partition("/")
     positions, slash, rule = rest.partition("/")
     names = [renamed.get((aircraft_id, name), name) for name in positions.split("+")]
-    return f"{aircraft_id}/{'+'.join(sorted(names) if len(names) > 1 else names)}{slash}{rule}"
+    return f"{aircraft_id}/{'+'.join(sorted(names) if len(names) > 1 and not ordered else names)}{slash}{rule}"
 
 
 REVIEW_FIELDS = ("review", "reviewer", "review_reference", "review_comment")
@@ -230,15 +238,46 @@ def compare_figures(old: Mapping[str, Any], new: Mapping[str, Any], identity: Ma
         entry = new_pairs[key]
         out += compare_figure_maps("pair", key, entry["aircraft"], tuple(entry["positions"]),
                                    old_pairs[key]["figures"], entry["figures"], tolerance)
-    old_cosite, new_cosite = old["figures"].get("cosite", {}), new["figures"].get("cosite", {})
-    both = set(old["registry"]["aircraft"]) & set(new["registry"]["aircraft"])
-    for key in sorted(k for k in set(old_cosite) | set(new_cosite) if k.split("/")[0] in both):
-        entry = new_cosite.get(key) or old_cosite[key]
+    old_cosite = {follow(key, renamed, ordered=True): entry for key, entry in old["figures"].get("cosite", {}).items()}
+    new_cosite = new["figures"].get("cosite", {})
+    for key in sorted(set(old_cosite) & set(new_cosite)):
+        entry = new_cosite[key]
         out += compare_figure_maps("co-site", key, entry["aircraft"], (entry["tx"], entry["rx"]),
-                                   old_cosite.get(key, {}).get("figures", {}),
-                                   new_cosite.get(key, {}).get("figures", {}), tolerance)
+                                   old_cosite[key]["figures"], entry["figures"], tolerance)
     old_cables, new_cables = old["figures"]["cables"], new["figures"]["cables"]
     for key in sorted(set(old_cables) & set(new_cables)):
         out += compare_figure_maps("cable", key, None, (), old_cables[key]["figures"], new_cables[key]["figures"],
                                    tolerance)
+    return out
+
+
+PAIR_SUMMARY_KEYS = ("pair.distance_m", "pair.isolation_db", "pair.min_isolation_db", "pair.model")
+"""What an added or removed antenna pair is summed up by; a co-site path by all its margins."""
+
+
+def pair_summary(figures: Mapping[str, Any], keys: tuple[str, ...] | None = None) -> str:
+    shown = [key for key in (keys if keys is not None else sorted(figures)) if key in figures]
+    return "; ".join(f"{figures[key]['label']} {figure_text(figures[key]['value'], figures[key]['unit'], key)}"
+                     for key in shown) or "no figures"
+
+
+def compare_pairs(old: Mapping[str, Any], new: Mapping[str, Any], renamed: Mapping[tuple[str, str], str]
+                  ) -> list[PairChange]:
+    """Antenna pairs and co-site paths on one side only (those of an added or removed installation
+    included; not those of an aircraft added or removed whole), with what their figures say, sorted by
+    aircraft, owner and change."""
+    both = set(old["registry"]["aircraft"]) & set(new["registry"]["aircraft"])
+    out = []
+    for scope, section, ordered, keys in (("pair", "pairs", False, PAIR_SUMMARY_KEYS), ("co-site", "cosite", True, None)):
+        before = {follow(key, renamed, ordered): entry for key, entry in old["figures"].get(section, {}).items()}
+        after = new["figures"].get(section, {})
+        for change, side, other in (("added", after, before), ("removed", before, after)):
+            for key in set(side) - set(other):
+                entry = side[key]
+                if entry["aircraft"] not in both:
+                    continue
+                positions = tuple(key.split("/", 1)[1].split("+"))
+                out.append(PairChange(scope, key, entry["aircraft"], positions, change,
+                                      pair_summary(entry["figures"], keys)))
+    out.sort(key=lambda item: (item.aircraft, item.scope, item.owner, item.change))
     return out

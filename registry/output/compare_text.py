@@ -16,7 +16,7 @@ FIELD_INDENT = "             "
 def as_text(result: Comparison) -> str:
     """The terminal summary: aircraft, installations, catalogues, discrepancies, figures, then the counts."""
     lines = header_lines(result)
-    for section in (aircraft_lines, installation_lines, catalogue_lines, discrepancy_lines, figure_lines):
+    for section in (aircraft_lines, installation_lines, catalogue_lines, discrepancy_lines, pair_lines, figure_lines):
         body = section(result)
         if body:
             lines += body + [""]
@@ -28,11 +28,20 @@ def header_lines(result: Comparison) -> list[str]:
     """Which two sides, as of which dates, and the tolerance; then a blank line."""
     lines = [f"OLD  {result.old.label}, as of {result.old.as_of}",
              f"NEW  {result.new.label}, as of {result.new.as_of}"]
-    if result.old.as_of != result.new.as_of:
-        lines.append("note: the as-of dates differ, so measurement ages move with them")
+    note = date_note(result)
+    if note:
+        lines.append(f"note: {note}")
     lines.append(f"tolerance: relative {result.tolerance.rel * 100:g} %, absolute {result.tolerance.abs:g}")
     lines.append("")
     return lines
+
+
+def date_note(result: Comparison) -> str:
+    """What the comparison did about two sides dated differently ("" when they are dated alike)."""
+    if result.old.as_of == result.new.as_of:
+        return ""
+    return (f"both sides evaluated as of {result.at}: OLD's measurement ages, and the measurement-age "
+            f"findings they give, re-based from {result.old.as_of}, so nothing differs by the dates alone")
 
 
 def field_lines(changes: Iterable[FieldChange]) -> list[str]:
@@ -99,6 +108,17 @@ def discrepancy_lines(result: Comparison) -> list[str]:
     return lines
 
 
+def pair_lines(result: Comparison) -> list[str]:
+    """Antenna pairs and co-site paths added or removed, each with its figures."""
+    if not result.pairs:
+        return []
+    lines = ["Pairs added and removed"]
+    for item in result.pairs:
+        lines.append(f"  {item.change:<9}{item.scope} {item.owner}")
+        lines.append(f"{FIELD_INDENT}{item.summary}")
+    return lines
+
+
 def figure_lines(result: Comparison) -> list[str]:
     if not result.figures:
         return []
@@ -121,7 +141,8 @@ def summary_line(result: Comparison) -> str:
             f"{c['installations_moved']} moved, {c['installations_changed']} changed; "
             f"discrepancies: {c['discrepancies_new']} new, {c['discrepancies_resolved']} resolved, "
             f"{c['severity_changes']} changed severity, {c['review_changes']} changed review, "
-            f"{c['value_changes']} changed value; figures moved: {c['figures_moved']}; "
+            f"{c['value_changes']} changed value; pairs: {c['pairs_added']} added, {c['pairs_removed']} removed; "
+            f"figures moved: {c['figures_moved']}; "
             f"aircraft and catalogue entries changed: {sum(1 for _ in result.items)}")
 
 
@@ -131,11 +152,12 @@ def to_dict(result: Comparison) -> dict[str, Any]:
         data = asdict(item)
         data["positions"] = list(item.positions)
         data["relative_pct"] = None if item.relative_pct is None else round(item.relative_pct, 4)
+        data["difference"] = None if item.difference is None else round(item.difference, 6)
         return data
 
     return {
         "format_version": build_record.FORMAT_VERSION,
-        "old": asdict(result.old), "new": asdict(result.new),
+        "old": asdict(result.old), "new": asdict(result.new), "evaluated_as_of": result.at,
         "tolerance": {"relative": result.tolerance.rel, "absolute": result.tolerance.abs},
         "same": result.same,
         "counts": result.counts(),
@@ -143,6 +165,7 @@ def to_dict(result: Comparison) -> dict[str, Any]:
         "installations": [asdict(item) for item in result.installations],
         "discrepancies": [asdict(item) for item in result.discrepancies],
         "figures": [figure(item) for item in result.figures],
+        "pairs": [{**asdict(item), "positions": list(item.positions)} for item in result.pairs],
     }
 
 

@@ -97,6 +97,27 @@ class FigureChange:
             return 100.0 * (self.new - self.old) / abs(self.old)
         return None
 
+    @property
+    def difference(self) -> float | None:
+        """new − old in the figure's own unit (for a dB figure: the change in dB), None unless both are numbers."""
+        if is_number(self.old) and is_number(self.new):
+            return self.new - self.old
+        return None
+
+
+@dataclass(frozen=True)
+class PairChange:
+    """A pair of antennas (scope `pair`: isolation) or a transmitter → receiver path (scope `co-site`)
+    present on one side only; `owner` is its key in NEW (OLD's, followed to NEW's positions, for a
+    removal), `summary` its figures on the side that has it."""
+
+    scope: str
+    owner: str
+    aircraft: str
+    positions: tuple[str, ...]
+    change: str
+    summary: str
+
 
 @dataclass(frozen=True)
 class SideInfo:
@@ -111,16 +132,19 @@ class Comparison:
     old: SideInfo
     new: SideInfo
     tolerance: Tolerance
+    at: str = ""
+    """The one date both sides are evaluated at (NEW's): OLD's measurement ages are re-based to it."""
     items: list[ItemChange] = field(default_factory=list)
     installations: list[InstallationChange] = field(default_factory=list)
     discrepancies: list[DiscrepancyChange] = field(default_factory=list)
     figures: list[FigureChange] = field(default_factory=list)
+    pairs: list[PairChange] = field(default_factory=list)
     registrations: dict[str, str] = field(default_factory=dict)
     new_positions: frozenset[tuple[str, str]] = frozenset()
 
     @property
     def same(self) -> bool:
-        return not (self.items or self.installations or self.discrepancies or self.figures)
+        return not (self.items or self.installations or self.discrepancies or self.figures or self.pairs)
 
     def aircraft(self, aircraft_id: str) -> ItemChange | None:
         """The change of the aircraft's own fields (registration, serial, modifications...), or None."""
@@ -137,6 +161,10 @@ class Comparison:
 
     def figures_of(self, aircraft_id: str, position: str | None = None) -> list[FigureChange]:
         return [item for item in self.figures if item.aircraft == aircraft_id
+                and (position is None or position in item.positions)]
+
+    def pairs_of(self, aircraft_id: str, position: str | None = None) -> list[PairChange]:
+        return [item for item in self.pairs if item.aircraft == aircraft_id
                 and (position is None or position in item.positions)]
 
     def marks(self, aircraft_id: str, position: str | None = None) -> tuple[str, ...]:
@@ -160,6 +188,10 @@ class Comparison:
         findings = self.discrepancies_of(aircraft_id, position)
         if findings:
             out.append(f"{len(findings)} finding{'s' if len(findings) > 1 else ''} changed")
+        for change in ("added", "removed"):
+            pairs = [item for item in self.pairs_of(aircraft_id, position) if item.change == change]
+            if pairs:
+                out.append(f"{len(pairs)} pair{'s' if len(pairs) > 1 else ''} {change}")
         moved = self.figures_of(aircraft_id, position)
         if moved:
             out.append(f"{len(moved)} figure{'s' if len(moved) > 1 else ''} moved")
@@ -185,6 +217,7 @@ class Comparison:
             "review_changes": sum(1 for i in found if has_aspect(i, "review")),
             "value_changes": sum(1 for i in found if has_aspect(i, "value") or has_aspect(i, "limit")),
             "figures_moved": len(self.figures),
+            "pairs_added": count(self.pairs, "added"), "pairs_removed": count(self.pairs, "removed"),
         }
 
 

@@ -5,7 +5,7 @@ from collections.abc import Callable, Iterable
 from dataclasses import asdict
 from typing import Any
 
-from registry.output.compare_text import summary_line
+from registry.output.compare_text import date_note, summary_line
 from registry.output.comparison import Comparison, DiscrepancyChange, FieldChange
 from registry.output.display import delta_text, figure_text, show
 
@@ -34,9 +34,11 @@ def changes_page(result: Comparison, *, aircraft_href: Callable[[str], str],
     aircraft_ids = sorted({item.id for item in result.items if item.kind == "aircraft"}
                           | {item.aircraft for item in result.installations}
                           | {item.aircraft for item in result.discrepancies}
-                          | {item.aircraft for item in result.figures if item.aircraft})
+                          | {item.aircraft for item in result.figures if item.aircraft}
+                          | {item.aircraft for item in result.pairs})
     return {
-        "old": asdict(result.old), "new": asdict(result.new), "same": result.same,
+        "old": asdict(result.old), "new": asdict(result.new), "same": result.same, "at": result.at,
+        "date_note": date_note(result),
         "tolerance": {"rel_pct": show(result.tolerance.rel * 100), "abs": show(result.tolerance.abs)},
         "counts": result.counts(),
         "aircraft": [{"id": key, "registration": registration(key), "href": craft_href(key),
@@ -57,6 +59,10 @@ def changes_page(result: Comparison, *, aircraft_href: Callable[[str], str],
                      "delta": delta_text(item),
                      "href": install_href(item.aircraft, item.positions[0]) if item.aircraft else None}
                     for item in result.figures],
+        "pairs": [{"scope": item.scope, "owner": item.owner, "change": item.change, "summary": item.summary,
+                   "registration": registration(item.aircraft),
+                   "href": install_href(item.aircraft, item.positions[0]) if item.change == "added" else None}
+                  for item in result.pairs],
         "summary": summary_line(result),
     }
 

@@ -37,6 +37,7 @@ from registry.site.pages_cosite import cosite_outputs, type_cosite_pages
 from registry.site.pages_catalogue import antenna_pages, cable_pages, services_page
 from registry.site.pages_fleet import audit_pages, fleet_page, search_pages
 from registry.site.pages_methods import methods_page
+from registry.site.pages_print import report_pages
 from registry.site.paths import SEARCH_PATHS, aircraft_path, installation_path
 from registry.site.views import installation_row
 
@@ -136,6 +137,7 @@ def fleet_wide_pages(data: SiteData, pieces: dict[str, AircraftPieces], store: p
     outputs.append(methods_page(data))
     outputs += type_cosite_pages(data)
     outputs += search_pages(data, pieces)
+    outputs += report_pages(data)
     if data.comparison is not None:
         outputs.append(page("changes.html", "changes.html", "changes", "Changes in this build",
                             [("Fleet", "index.html"), ("Changes", None)],

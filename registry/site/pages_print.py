@@ -31,13 +31,24 @@ def aircraft_report_path(aircraft_id: str) -> str:
     return f"reports/{aircraft_id}.html"
 
 
+FLEET_SCHEDULES_UP_TO = 50
+"""The fleet's report lists every installation of every aircraft up to this many aircraft; above, its
+aircraft sections hold their modifications and findings, and each aircraft's own report its schedule
+(a thousand aircraft's schedules would print to a thousand pages)."""
+
+
 def report_pages(data: SiteData) -> list[Output]:
     """The fleet's report and each aircraft's."""
+    return [fleet_report_page(data)] + aircraft_report_pages(data)
+
+
+def aircraft_report_pages(data: SiteData) -> list[Output]:
+    """Each aircraft's report."""
     as_of = as_of_date(Path(data.fleet.data_dir)).isoformat()
     stale = stale_reviews(list(data.discrepancies), data.fleet.reviews)
-    sections = [aircraft_section(data, aircraft, stale) for aircraft in data.fleet.aircraft.values()]
-    outputs: list[Output] = [fleet_report(data, sections, as_of)]
-    for aircraft, section in zip(data.fleet.aircraft.values(), sections):
+    outputs: list[Output] = []
+    for aircraft in data.fleet.aircraft.values():
+        section = aircraft_section(data, aircraft, stale)
         outputs.append(page(aircraft_report_path(aircraft.id), "report.html", "fleet",
                             f"{aircraft.registration}: printable report",
                             [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
@@ -45,6 +56,15 @@ def report_pages(data: SiteData) -> list[Output]:
                             block=title_block(data, aircraft.registration, as_of, section["identity"]),
                             fleet=None, sections=[section], screen_link=(aircraft_path(aircraft.id), "aircraft page")))
     return outputs
+
+
+def fleet_report_page(data: SiteData) -> Output:
+    """The fleet's report: every aircraft's section (without the schedules above FLEET_SCHEDULES_UP_TO)."""
+    as_of = as_of_date(Path(data.fleet.data_dir)).isoformat()
+    stale = stale_reviews(list(data.discrepancies), data.fleet.reviews)
+    schedules = len(data.fleet.aircraft) <= FLEET_SCHEDULES_UP_TO
+    sections = [aircraft_section(data, aircraft, stale, schedules) for aircraft in data.fleet.aircraft.values()]
+    return fleet_report(data, sections, as_of)
 
 
 def fleet_report(data: SiteData, sections: list[dict[str, Any]], as_of: str) -> Output:
@@ -56,6 +76,7 @@ def fleet_report(data: SiteData, sections: list[dict[str, Any]], as_of: str) -> 
                 [("Fleet", "index.html"), ("Printable report", None)],
                 block=title_block(data, data.fleet.site_title, as_of, f"{len(rows)} aircraft"),
                 fleet={"aircraft": rows, "matrix": severity_matrix(data.discrepancies), "severities": SEVERITIES},
+                schedule_limit=FLEET_SCHEDULES_UP_TO,
                 sections=sections, screen_link=("index.html", "fleet overview"))
 
 
@@ -65,9 +86,10 @@ def title_block(data: SiteData, subject: str, as_of: str, detail: str) -> dict[s
             "revision": data.build.revision, "built": data.build.time, "as_of": as_of, "version": data.build.version}
 
 
-def aircraft_section(data: SiteData, aircraft: Aircraft, stale: list) -> dict[str, Any]:
-    """One aircraft's part of a report: who it is, its installation schedule, its modifications, its
-    findings with their dispositions, and the reviews on file whose finding has gone."""
+def aircraft_section(data: SiteData, aircraft: Aircraft, stale: list, schedule: bool = True) -> dict[str, Any]:
+    """One aircraft's part of a report: who it is, its installation schedule (None without `schedule`: it
+    is in the aircraft's own report), its modifications, its findings with their dispositions, and the
+    reviews on file whose finding has gone."""
     airframe = data.fleet.airframes.get(aircraft.airframe)
     items = data.by_aircraft.get(aircraft.id, [])
     return {
@@ -75,7 +97,8 @@ def aircraft_section(data: SiteData, aircraft: Aircraft, stale: list) -> dict[st
         "identity": ", ".join(part for part in (airframe.name if airframe else aircraft.airframe,
                                                 f"serial {aircraft.serial}" if aircraft.serial else "") if part),
         "coord_unit": airframe.coord_unit if airframe else "",
-        "schedule": [schedule_row(data, aircraft, installation) for installation in aircraft.installations.values()],
+        "schedule": [schedule_row(data, aircraft, installation) for installation in aircraft.installations.values()]
+        if schedule else None, "report_href": aircraft_report_path(aircraft.id), "count": len(aircraft.installations),
         "modifications": sorted(aircraft.modifications, key=lambda m: (m.date, m.ref), reverse=True),
         "matrix": severity_matrix(items),
         "findings": [finding_entry(data, item) for item in items],

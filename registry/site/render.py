@@ -37,7 +37,7 @@ from registry.site.pages_cosite import cosite_outputs, type_cosite_pages
 from registry.site.pages_catalogue import antenna_pages, cable_pages, services_page
 from registry.site.pages_fleet import audit_pages, fleet_page, search_pages
 from registry.site.pages_methods import methods_page
-from registry.site.pages_print import report_pages
+from registry.site.pages_print import aircraft_report_pages, fleet_report_page
 from registry.site.paths import SEARCH_PATHS, aircraft_path, installation_path
 from registry.site.views import installation_row
 
@@ -119,7 +119,23 @@ def finish_site(site: SiteRun, discrepancies: Iterable[Discrepancy], pieces: dic
     pieces.update(site.aircraft.render_all(files, workers, progress, skip=set(pieces)))
     progress.stage("rendering fleet pages", 1)
     files.update(site.put(fleet_wide_pages(data, pieces, site.store)))
+    files.update(render_shared_out(site, aircraft_report_pages(data), workers))
     return dict(sorted(files.items()))
+
+
+def render_shared_out(site: SiteRun, outputs: list[Output], workers: int) -> dict[str, str | bytes]:
+    """Render `outputs`: over worker processes that hand each file to the writer when there is one (the
+    aircraft's printable reports, re-rendered every build), else here; the files not yet written."""
+    if site.aircraft.writer is None:
+        return site.put(outputs)
+
+    def one(n: int) -> None:
+        for path, content in site.put([outputs[n]]).items():
+            site.aircraft.writer(path, content)
+
+    for _ in ordered_map(one, range(len(outputs)), workers):
+        pass
+    return {}
 
 
 def shared_context(data: SiteData) -> dict[str, Any]:
@@ -137,7 +153,7 @@ def fleet_wide_pages(data: SiteData, pieces: dict[str, AircraftPieces], store: p
     outputs.append(methods_page(data))
     outputs += type_cosite_pages(data)
     outputs += search_pages(data, pieces)
-    outputs += report_pages(data)
+    outputs.append(fleet_report_page(data))
     if data.comparison is not None:
         outputs.append(page("changes.html", "changes.html", "changes", "Changes in this build",
                             [("Fleet", "index.html"), ("Changes", None)],

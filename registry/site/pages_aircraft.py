@@ -16,6 +16,7 @@ from registry.site.context import SiteData
 from registry.site.format import bands_text, fmt_figure, location_text, notes_html, words
 from registry.site.labels import STATUS_LABELS
 from registry.site.pages import Output, Page, Plot, page
+from registry.site.technician import technician_card
 from registry.site.paths import aircraft_path, anchor, installation_path, root_of, vswr_plot_path
 from registry.site.views import (discrepancy_view, feeder_breakdown, figure_groups, installation_row, pattern_view,
                                  severity_matrix)
@@ -149,5 +150,6 @@ def installation_page(data: SiteData, aircraft: Aircraft, installation: Installa
                 pairs=pair_rows(data, aircraft, installation, pairs_of),
                 **coverage_views(data, aircraft, installation, service),
                 discrepancies=[discrepancy_view(data, d) for d in items],
+                card=technician_card(aircraft, installation, airframe.coord_unit),
                 notes=Markup(notes_html(installation.notes)), src=data.model_src(installation),
                 sweep_name=measured.sweep.name if measured and measured.sweep else "")

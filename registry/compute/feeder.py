@@ -155,7 +155,8 @@ def receive_figures(installation: Installation, feeder_loss_db: float | str | No
     inputs = (("G", f"{amp.gain_db:g} dB"), ("NF", f"{amp.noise_figure_db:g} dB"), ("L", f"{feeder_loss_db:.2f} dB"))
     return figures + [
         Figure(FK.RECEIVE_NET_GAIN_DB, "Gain left at the receiver's input", amp.gain_db - feeder_loss_db, "dB",
-               "G − L (L: the total feeder loss)", inputs, FEEDER_SOURCE, src_gain),
+               "G − L (L: the total feeder loss)", inputs,
+               "arithmetic: the amplifier's gain less the total feeder loss (figures above)", src_gain),
         Figure(FK.RECEIVE_NOISE_FIGURE_DB, "Noise figure of amplifier and feeder",
                noise.amplifier_and_feeder_noise_figure_db(amp.noise_figure_db, amp.gain_db, feeder_loss_db), "dB",
                "NF = 10·log₁₀(F_a + (L − 1)/G_a), ratios", inputs, NOISE_SOURCE, src_nf),

@@ -16,10 +16,10 @@ from registry.site.context import SiteData
 from registry.site.format import bands_text, fmt_figure, location_text, notes_html, words
 from registry.site.labels import STATUS_LABELS
 from registry.site.pages import Output, Page, Plot, page
-from registry.site.technician import technician_card
 from registry.site.paths import aircraft_path, anchor, installation_path, root_of, vswr_plot_path
 from registry.site.views import (discrepancy_view, feeder_breakdown, figure_groups, installation_row, pattern_view,
                                  severity_matrix)
+from registry.site.technician import technician_card
 
 Pairs = Mapping[tuple[str, str], list[PairResult]]
 """Co-site pairs by (aircraft id, position), each list ordered by the pair's positions."""

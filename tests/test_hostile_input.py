@@ -258,6 +258,8 @@ SCHEMA = json.loads((Path(cli.__file__).parent / "schemas" / "aircraft.schema.js
 
 def numeric_fields(schema: dict, parts: tuple = ()) -> list[tuple[tuple, dict]]:
     """Every number or whole number an installation may hold, with its schema (ranges included)."""
+    if "$ref" in schema:  # a shared definition (feeder, measured, ...): "#/$defs/<name>"
+        return numeric_fields(SCHEMA["$defs"][schema["$ref"].rsplit("/", 1)[-1]], parts)
     if schema.get("type") in ("number", "integer"):
         return [(parts, schema)]
     found = []
@@ -309,8 +311,11 @@ def test_extreme_valid_numbers_never_crash_check(one_aircraft, capsys, data):
         holder = item
         for name in parts[:-1]:
             holder = holder.setdefault(name, {"type": "plate"} if name == "ground_plane" else {})
-        if parts[0] == "measured":
+        if parts[0] in ("measured", "bonding"):
             holder.setdefault("date", date(2026, 1, 1))
+        if parts[0] == "amplifier":
+            holder.update({key: value for key, value in (("gain_db", 26.0), ("noise_figure_db", 2.0), ("source", "x"))
+                           if key not in holder})
         inside = getattr(OUTLINE, parts[-1], None)  # a coordinate: often inside the airframe, to reach compute
         values = extreme(schema) if inside is None else st.one_of(extreme(schema), st.floats(*inside))
         holder[parts[-1]] = data.draw(values)

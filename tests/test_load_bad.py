@@ -89,6 +89,36 @@ EXPECTED = {
         'antennas.yaml:28:5: error: models[2].geometry.spacing_m: found nothing, expected a value (the key is required)',
         "antennas.yaml:28:67: error: models[2].geometry.spacing: found an unknown key 'spacing', expected one of element_length_m, element_diameter_m, spacing_m (did you mean 'spacing_m'?)",
     ],
+    "hardware_fields_wrong": [
+        # every hardware field of an installation and its feeder, each wrong in its own way, in one run
+        'aircraft/qx-fcb.yaml:11:21: error: installations[0].antenna_serial: found 20417, expected text (put it in quotes)',
+        'aircraft/qx-fcb.yaml:12:19: error: installations[0].access_panel: found empty text, expected some text',
+        "aircraft/qx-fcb.yaml:13:36: error: installations[0].bonding.resistance_milliohm: found '2 mohm', expected a number without a unit (the unit is in the key name)",
+        "aircraft/qx-fcb.yaml:13:50: error: installations[0].bonding.date: found '2026-02-30', expected a real date written YYYY-MM-DD",
+        "aircraft/qx-fcb.yaml:15:16: error: installations[0].manuals[0].kind: found 'amm', expected one of maintenance, wiring, parts, other",
+        'aircraft/qx-fcb.yaml:16:9: error: installations[0].manuals[1].ref: found nothing, expected a value (the key is required)',
+        "aircraft/qx-fcb.yaml:21:32: error: installations[0].feeder.antenna_end.connector: found 'TCN', expected one of BNC, TNC, N, C, HN, SC, SMA, SMB, SMC, QMA, UHF, MHV, twinax, triax, other (did you mean 'TNC'?)",
+        "aircraft/qx-fcb.yaml:22:43: error: installations[0].feeder.radio_end.gender: found 'plug', expected one of male, female",
+        'aircraft/qx-fcb.yaml:24:11: error: installations[0].feeder.adapter_parts[0].part_number: found nothing, expected a value (the key is required)',
+        'aircraft/qx-fcb.yaml:25:51: error: installations[0].feeder.radio_unit.rack: found empty text, expected some text',
+    ],
+    "shared_antenna_mistakes": [
+        # what a schema cannot check: adapters counted otherwise than listed, and the services a splitter feeds
+        # checked like any installation (references, positions unique in the aircraft)
+        'aircraft/qx-fcb.yaml:15:7: error: installations[0].feeder.adapters: found 2, with 1 adapter listed in adapter_parts, expected as many adapters as adapter_parts lists (or leave adapters out to count them)',
+        "aircraft/qx-fcb.yaml:25:11: error: installations[0].splitter.feeds[0].service: found 'ops_dta', expected a service id from the shipped table or services.yaml (did you mean 'ops_data'?)",
+        "aircraft/qx-fcb.yaml:26:20: error: installations[0].splitter.feeds[0].feeder.cable: found 'FXC-40', expected a cable id from cables.yaml (did you mean 'FXC-400'?)",
+        "aircraft/qx-fcb.yaml:30:5: error: installations[1].position: found 'VHF2' again (first on line 27), expected each position in this aircraft once, ignoring upper and lower case",
+    ],
+    "splitter_fields_wrong": [
+        # an active antenna's amplifier and a splitter: ranges, kinds, the source required, and a service fed
+        # through the splitter takes the owner's antenna (no antenna key of its own)
+        'aircraft/qx-fcb.yaml:11:5: error: installations[0].amplifier.source: found nothing, expected a value (the key is required)',
+        'aircraft/qx-fcb.yaml:11:47: error: installations[0].amplifier.noise_figure_db: found 45, expected a number between 0 and 20 dB',
+        "aircraft/qx-fcb.yaml:18:13: error: installations[0].splitter.kind: found 'combiner', expected one of splitter, diplexer",
+        'aircraft/qx-fcb.yaml:19:16: error: installations[0].splitter.loss_db: found -1, expected a number between 0 and 30 dB',
+        "aircraft/qx-fcb.yaml:24:11: error: installations[0].splitter.feeds[0].antenna: found an unknown key 'antenna', expected one of position, service, feeder, measured, installed, notes, radio, access_panel, manuals",
+    ],
     "id_not_file_name": [
         "airframes/fx-20.yaml:2:1: error: id: found 'fx-21' in the file fx-20.yaml, expected the id to equal the file name ('fx-20')",
     ],
@@ -163,7 +193,7 @@ EXPECTED = {
         "aircraft/qx-fcb.yaml:12:7: error: installations[0].feeder.cable: found 'FXC-40', expected a cable id from cables.yaml (did you mean 'FXC-400'?)",
     ],
     "unknown_key": [
-        "aircraft/qx-fcb.yaml:15:7: error: installations[0].feeder.adaptors: found an unknown key 'adaptors', expected one of cable, length_m, connectors, adapters (did you mean 'adapters'?)",
+        "aircraft/qx-fcb.yaml:15:7: error: installations[0].feeder.adaptors: found an unknown key 'adaptors', expected one of cable, length_m, connectors, adapters, antenna_end, radio_end, adapter_parts, radio_unit (did you mean 'adapters'?)",
     ],
     "unknown_service": [
         "aircraft/qx-fcb.yaml:7:5: error: installations[0].service: found 'vhf_comm', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",

@@ -12,7 +12,7 @@ import numpy as np
 
 from registry.core import figure_keys as FK
 from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
-from registry.physics import feeder, mismatch, sweep
+from registry.physics import feeder, mismatch, noise, sweep
 from registry.core.results import CableResult, Curve, Figure
 from registry.core.sources import where
 
@@ -69,9 +69,12 @@ def vswr_for_mismatch(figures: list[Figure], model: AntennaModel) -> tuple[float
 
 def feeder_figures(installation: Installation, model: AntennaModel, service: Service, cable: Cable,
                    policy: Policy, figures_so_far: list[Figure]) -> list[Figure]:
-    """Feeder loss at the highest frequency of the service: cable, connectors, adapters, mismatch."""
+    """Feeder loss at the highest frequency of the service: cable, connectors, adapters, splitter, mismatch;
+    with an active antenna, the receive chain's gain and noise figure (`receive_figures`)."""
     with np.errstate(all="ignore"):  # a value that is not finite is said so on its figure (`finite`)
-        return finite(_feeder_figures(installation, model, service, cable, policy, figures_so_far))
+        figures = _feeder_figures(installation, model, service, cable, policy, figures_so_far)
+        total = next(figure.value for figure in figures if figure.key == FK.FEEDER_TOTAL_LOSS_DB)
+        return finite(figures + receive_figures(installation, total))
 
 
 def _feeder_figures(installation: Installation, model: AntennaModel, service: Service, cable: Cable,
@@ -83,8 +86,10 @@ def _feeder_figures(installation: Installation, model: AntennaModel, service: Se
     cable_db = float(feeder.cable_loss_db(fit, freq_mhz * MHZ, run.length_m))
     connector_db = run.connectors * policy.connector_loss_db
     adapter_db = run.adapters * policy.adapter_loss_db
+    splitter = installation.splitter
+    splitter_db = splitter.loss_db if splitter is not None else 0.0
     vswr, vswr_from = vswr_for_mismatch(figures_so_far, model)
-    budget = feeder.feeder_budget(cable_db, (connector_db, adapter_db), vswr)
+    budget = feeder.feeder_budget(cable_db, (connector_db, adapter_db, splitter_db), vswr)
     src_len = where(installation, "feeder.length_m")
     table_top = max(freq for freq, _ in cable.attenuation_db_per_100m)
     return [
@@ -101,16 +106,60 @@ def _feeder_figures(installation: Installation, model: AntennaModel, service: Se
         Figure(FK.FEEDER_ADAPTER_LOSS_DB, "Adapter loss", adapter_db, "dB", "n · L_a",
                (("n", str(run.adapters)), ("L_a", f"{policy.adapter_loss_db:g} dB")), "fleet policy",
                where(installation, "feeder.adapters")),
+        *splitter_figures(installation),
         Figure(FK.FEEDER_MISMATCH_LOSS_DB, "Mismatch loss", budget.mismatch_loss_db, "dB",
                "ML = −10·log₁₀(1 − |Γ|²), |Γ| = (VSWR − 1)/(VSWR + 1)",
                (("VSWR", f"{vswr:.2f} ({vswr_from})"),), "Pozar, Microwave Engineering, 4th ed., §2.3"),
         Figure(FK.FEEDER_RETURN_LOSS_DB, "Return loss at the antenna", budget.return_loss_db, "dB",
                "RL = −20·log₁₀|Γ|", source="Pozar, Microwave Engineering, 4th ed., §2.3"),
         Figure(FK.FEEDER_TOTAL_LOSS_DB, "Total feeder loss", budget.total_loss_db, "dB",
-               "cable + connectors + adapters + mismatch",
+               "cable + connectors + adapters + " + ("splitter + " if splitter else "") + "mismatch",
                (("budget", f"{policy.feeder_loss_budget_for(service.id):g} dB"),), FEEDER_SOURCE, src_len),
         Figure(FK.FEEDER_DELIVERED_PCT, "Power reaching the antenna", 100.0 * budget.delivered_fraction, "%",
                "10^(−total/10) · 100", source=FEEDER_SOURCE, src=src_len),
+    ]
+
+
+SPLIT_FORMULA = "L_s: the insertion loss from the antenna to this service's port, added to the feeder's"
+
+
+def splitter_figures(installation: Installation) -> list[Figure]:
+    """The loss of the splitter or diplexer between the antenna and this service's feeder (none without one)."""
+    splitter = installation.splitter
+    if splitter is None:
+        return []
+    owner = installation.shared_from or installation.position
+    return [Figure(FK.FEEDER_SPLITTER_LOSS_DB, f"{splitter.kind.capitalize()} loss", splitter.loss_db, "dB",
+                   SPLIT_FORMULA, (("part", splitter.part_number), ("antenna of", owner),
+                                   ("feeds", ", ".join((owner, *splitter.feeds)))),
+                   splitter.source, where(splitter, "loss_db"))]
+
+
+NOISE_SOURCE = ("Friis, Noise figures of radio receivers, Proc. IRE 32 (1944): F = F1 + (F2 − 1)/G1; "
+                "a passive loss L at 290 K has F = L (Pozar, Microwave Engineering, 4th ed., ch. 10, from memory)")
+
+
+def receive_figures(installation: Installation, feeder_loss_db: float | str | None) -> list[Figure]:
+    """An active antenna's receive chain: its amplifier, the gain left at the receiver after the feeder, and
+    the noise figure of amplifier and feeder by Friis's cascade formula (`physics.noise`)."""
+    amp = installation.amplifier
+    if amp is None:
+        return []
+    src_gain, src_nf = where(amp, "gain_db"), where(amp, "noise_figure_db")
+    figures = [Figure(FK.RECEIVE_AMPLIFIER_GAIN_DB, "Antenna amplifier gain", amp.gain_db, "dB", source=amp.source,
+                      src=src_gain),
+               Figure(FK.RECEIVE_AMPLIFIER_NOISE_FIGURE_DB, "Antenna amplifier noise figure", amp.noise_figure_db, "dB",
+                      source=amp.source, src=src_nf)]
+    if not isinstance(feeder_loss_db, float) or not math.isfinite(feeder_loss_db):
+        return figures
+    inputs = (("G", f"{amp.gain_db:g} dB"), ("NF", f"{amp.noise_figure_db:g} dB"), ("L", f"{feeder_loss_db:.2f} dB"))
+    return figures + [
+        Figure(FK.RECEIVE_NET_GAIN_DB, "Gain left at the receiver's input", amp.gain_db - feeder_loss_db, "dB",
+               "G − L (L: the total feeder loss)", inputs,
+               "arithmetic: the amplifier's gain less the total feeder loss (figures above)", src_gain),
+        Figure(FK.RECEIVE_NOISE_FIGURE_DB, "Noise figure of amplifier and feeder",
+               noise.amplifier_and_feeder_noise_figure_db(amp.noise_figure_db, amp.gain_db, feeder_loss_db), "dB",
+               "NF = 10·log₁₀(F_a + (L − 1)/G_a), ratios", inputs, NOISE_SOURCE, src_nf),
     ]
 
 

@@ -14,6 +14,8 @@ from datetime import date
 from pathlib import Path
 
 from registry.core.base import FrozenMap, Sourced
+from registry.core.hardware import (AdapterPart, Amplifier, Bonding, ConnectorEnd, ManualRef,  # noqa: F401
+                                    RadioUnit, Splitter)
 
 SURFACES = ("top", "bottom", "fin", "nose", "tail", "wing_left", "wing_right", "side_left", "side_right")
 
@@ -40,10 +42,15 @@ class GroundPlane(Sourced):
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Feeder(Sourced):
+    """The cable run; `adapters` counts `adapter_parts` when the file leaves it out."""
     cable: str
     length_m: float
     connectors: int
     adapters: int = 0
+    antenna_end: ConnectorEnd | None = None
+    radio_end: ConnectorEnd | None = None
+    adapter_parts: tuple[AdapterPart, ...] = ()
+    radio_unit: RadioUnit | None = None
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -80,6 +87,13 @@ class Installation(Sourced):
     notes: str = ""
     radio: RadioFigures | None = None
     """The installed radio's own co-site figures, overriding the service table's."""
+    antenna_serial: str = ""
+    access_panel: str = ""
+    bonding: Bonding | None = None
+    manuals: tuple[ManualRef, ...] = ()
+    amplifier: Amplifier | None = None  # an active antenna's; a position sharing the antenna has the owner's
+    splitter: Splitter | None = None  # on the antenna's owner and on every position it feeds
+    shared_from: str | None = None  # the position whose antenna this one uses through its splitter
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)

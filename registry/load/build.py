@@ -12,9 +12,10 @@ from typing import Any, Callable
 
 from registry.core.errors import Problem, Src, parse_path
 from registry.core.base import FrozenMap, Locator, freeze
-from registry.core.model import (Aircraft, Airframe, AntennaModel, Cable, Feeder, Fin, Fuselage, GroundPlane,
-                                 Installation, Location, Measured, Modification, RadioFigures, Review,
-                                 Section, Service, Wing, Zone)
+from registry.core.model import (AdapterPart, Aircraft, Airframe, Amplifier, AntennaModel, Bonding, Cable,
+                                 ConnectorEnd, Feeder, Fin, Fuselage, GroundPlane, Installation, Location,
+                                 ManualRef, Measured, Modification, RadioFigures, RadioUnit, Review, Section,
+                                 Service, Splitter, Wing, Zone)
 from registry.core.model import Attitudes, Policy, Tailplane
 from registry.core.units import per_100ft_to_per_100m
 from registry.load import integrity
@@ -179,14 +180,23 @@ def cosite_fields(item: dict[str, Any], bands: tuple[tuple[float, float], ...]) 
 
 def aircraft(doc: Doc, keep: Callable[[tuple[str | int, ...]], bool] = lambda parts: True
              ) -> tuple[Aircraft, list[Problem]]:
-    """An aircraft file's model, and the problems found in building it (positions used twice).
+    """An aircraft file's model, and the problems found in building it (positions used twice, adapters
+    counted otherwise than listed).
 
     `keep` says which installations and modifications to build (by their path, `("installations", 2)`):
-    a file with problems in some of them is built from the rest, so their references are checked too."""
+    a file with problems in some of them is built from the rest, so their references are checked too.
+    An installation whose splitter feeds other services brings one installation per service fed."""
     data = doc.data
-    installations = [installation(doc, n, item) for n, item in enumerate(data["installations"])
-                     if keep(("installations", n))]
-    problems = integrity.duplicates(installations, "position", "position in this aircraft")
+    installations: list[Installation] = []
+    problems: list[Problem] = []
+    for n, item in enumerate(data["installations"]):
+        if not keep(("installations", n)):
+            continue
+        owner = installation(doc, n, item)
+        fed = fed_installations(doc, n, owner, item)
+        installations += [owner, *fed]
+        problems += [found for inst in (owner, *fed) for found in adapter_count(inst)]
+    problems = integrity.duplicates(installations, "position", "position in this aircraft") + problems
     return Aircraft(
         **doc.at(),
         id=data["id"],
@@ -202,10 +212,9 @@ def aircraft(doc: Doc, keep: Callable[[tuple[str | int, ...]], bool] = lambda pa
 
 
 def installation(doc: Doc, n: int, item: dict[str, Any]) -> Installation:
+    """One installation with its own antenna (the services its splitter feeds: `fed_installations`)."""
     at = ("installations", n)
-    feeder = item["feeder"]
     ground_plane = item.get("ground_plane")
-    measured = item.get("measured")
     return Installation(
         **doc.at(*at),
         position=item["position"],
@@ -213,23 +222,89 @@ def installation(doc: Doc, n: int, item: dict[str, Any]) -> Installation:
         antenna=item["antenna"],
         location=Location(**doc.at(*at, "location"), **{k: float(v) for k, v in item["location"].items()}),
         surface=item["surface"],
-        feeder=Feeder(**doc.at(*at, "feeder"), cable=feeder["cable"], length_m=float(feeder["length_m"]),
-                      connectors=int(feeder["connectors"]), adapters=int(feeder.get("adapters", 0))),
+        feeder=feeder(doc, (*at, "feeder"), item["feeder"]),
         ground_plane=None if ground_plane is None else GroundPlane(
             **doc.at(*at, "ground_plane"), type=ground_plane["type"],
             radius_m=float(ground_plane["radius_m"]) if "radius_m" in ground_plane else None),
-        measured=None if measured is None else Measured(
-            **doc.at(*at, "measured"), date=iso_date(measured["date"]),
-            vswr=float(measured["vswr"]) if "vswr" in measured else None,
-            sweep=doc.file.parent / measured["sweep"] if "sweep" in measured else None),
         coupler=item.get("coupler", False),
-        installed=iso_date(item["installed"]) if "installed" in item else None,
-        notes=item.get("notes", ""),
-        radio=radio_figures(doc, at, item["radio"]) if "radio" in item else None,
+        antenna_serial=item.get("antenna_serial", ""),
+        bonding=None if "bonding" not in item else Bonding(
+            **doc.at(*at, "bonding"), resistance_milliohm=float(item["bonding"]["resistance_milliohm"]),
+            date=iso_date(item["bonding"]["date"])),
+        amplifier=None if "amplifier" not in item else Amplifier(
+            **doc.at(*at, "amplifier"), gain_db=float(item["amplifier"]["gain_db"]),
+            noise_figure_db=float(item["amplifier"]["noise_figure_db"]), source=item["amplifier"]["source"]),
+        splitter=None if "splitter" not in item else Splitter(
+            **doc.at(*at, "splitter"), part_number=item["splitter"]["part_number"], kind=item["splitter"]["kind"],
+            loss_db=float(item["splitter"]["loss_db"]), source=item["splitter"]["source"],
+            feeds=tuple(fed["position"] for fed in item["splitter"]["feeds"])),
+        **own_fields(doc, at, item),
     )
 
 
-def radio_figures(doc: Doc, at: tuple[str, int], item: dict[str, Any]) -> RadioFigures:
+def own_fields(doc: Doc, at: tuple[str | int, ...], item: dict[str, Any]) -> dict[str, Any]:
+    """The fields a service fed through a splitter keeps of its own: measurement, dates, notes, radio, and
+    where to reach it and what to read (access panel and manuals, when it gives them)."""
+    measured = item.get("measured")
+    fields = {
+        "measured": None if measured is None else Measured(
+            **doc.at(*at, "measured"), date=iso_date(measured["date"]),
+            vswr=float(measured["vswr"]) if "vswr" in measured else None,
+            sweep=doc.file.parent / measured["sweep"] if "sweep" in measured else None),
+        "installed": iso_date(item["installed"]) if "installed" in item else None,
+        "notes": item.get("notes", ""),
+        "radio": radio_figures(doc, at, item["radio"]) if "radio" in item else None,
+    }
+    if "access_panel" in item:
+        fields["access_panel"] = item["access_panel"]
+    if "manuals" in item:
+        fields["manuals"] = tuple(ManualRef(**doc.at(*at, "manuals", k), kind=ref["kind"], ref=ref["ref"],
+                                            title=ref.get("title", "")) for k, ref in enumerate(item["manuals"]))
+    return fields
+
+
+def fed_installations(doc: Doc, n: int, owner: Installation, item: dict[str, Any]) -> list[Installation]:
+    """The services `owner`'s splitter feeds: each uses the owner's antenna (model, place, ground plane,
+    serial, bonding, amplifier, splitter) through its own feeder."""
+    if "splitter" not in item:
+        return []
+    fed = []
+    for k, entry in enumerate(item["splitter"]["feeds"]):
+        at = ("installations", n, "splitter", "feeds", k)
+        fed.append(dataclasses.replace(
+            owner, **doc.at(*at), position=entry["position"], service=entry["service"],
+            feeder=feeder(doc, (*at, "feeder"), entry["feeder"]), shared_from=owner.position,
+            **own_fields(doc, at, entry)))
+    return fed
+
+
+def feeder(doc: Doc, at: tuple[str | int, ...], item: dict[str, Any]) -> Feeder:
+    """A feeder run with its hardware; `adapters` is the number of adapter parts when the file leaves it out."""
+    parts = tuple(AdapterPart(**doc.at(*at, "adapter_parts", k), part_number=part["part_number"],
+                              description=part.get("description", ""))
+                  for k, part in enumerate(item.get("adapter_parts", ())))
+    ends = {key: ConnectorEnd(**doc.at(*at, key), connector=item[key]["connector"], gender=item[key]["gender"])
+            for key in ("antenna_end", "radio_end") if key in item}
+    unit = item.get("radio_unit")
+    return Feeder(**doc.at(*at), cable=item["cable"], length_m=float(item["length_m"]),
+                  connectors=int(item["connectors"]), adapters=int(item.get("adapters", len(parts))),
+                  adapter_parts=parts, **ends,
+                  radio_unit=None if unit is None else RadioUnit(
+                      **doc.at(*at, "radio_unit"), part_number=unit["part_number"], rack=unit.get("rack", "")))
+
+
+def adapter_count(item: Installation) -> list[Problem]:
+    """A problem when a feeder lists its adapters by part number and counts them otherwise."""
+    run = item.feeder
+    if not run.adapter_parts or len(run.adapter_parts) == run.adapters:
+        return []
+    listed = len(run.adapter_parts)
+    return [integrity.problem(run, "adapters", f"{run.adapters}, with {listed} adapter{'s' * (listed != 1)} "
+                                               "listed in adapter_parts",
+                              "as many adapters as adapter_parts lists (or leave adapters out to count them)")]
+
+
+def radio_figures(doc: Doc, at: tuple[str | int, ...], item: dict[str, Any]) -> RadioFigures:
     """The installed radio's own co-site figures."""
     optional = lambda key: float(item[key]) if key in item else None  # noqa: E731
     return RadioFigures(**doc.at(*at, "radio"), tx_peak_power_dbm=optional("tx_peak_power_dbm"),

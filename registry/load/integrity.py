@@ -197,10 +197,11 @@ def check_aircraft(fleet: list[Aircraft], known: Catalogue, data_dir: Path) -> l
 def check_installation(item: Installation, known: Catalogue, data_dir: Path) -> list[Problem]:
     problems = (reference(item, "service", item.service, known.services,
                           "a service id from the shipped table or services.yaml")
-                + reference(item, "antenna", item.antenna, known.antennas, "an antenna model id from antennas.yaml")
+                + ([] if item.shared_from else  # its owner's antenna, checked there
+                   reference(item, "antenna", item.antenna, known.antennas, "an antenna model id from antennas.yaml"))
                 + reference(item, "feeder.cable", item.feeder.cable, known.cables, "a cable id from cables.yaml"))
     plane = item.ground_plane
-    if plane is not None and plane.type != "plate" and plane.radius_m is not None:
+    if plane is not None and not item.shared_from and plane.type != "plate" and plane.radius_m is not None:
         problems.append(problem(item, "ground_plane.radius_m", f"radius_m with type '{plane.type}'",
                                 "radius_m only with type plate"))
     sweep = item.measured.sweep if item.measured else None

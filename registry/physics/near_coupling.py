@@ -23,6 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from registry.physics.segmentation import Unmodellable
 from registry.physics.wave import wavelength_m
 from registry.physics.wire import Wire, build_structure, impedance_matrix, segments_for
 
@@ -53,7 +54,7 @@ def monopole_pair(height_a_m: float, height_b_m: float, spacing_m: float, freq_h
     per_wavelength: segments per wavelength on each image dipole (even count, at least 10).
     """
     if not spacing_m > 10 * radius_m:
-        raise ValueError("spacing must exceed ten wire radii for the thin-wire model")
+        raise Unmodellable("spacing must exceed ten wire radii for the thin-wire model")
     wires = []
     for x_m, h in ((0.0, height_a_m), (spacing_m, height_b_m)):
         n = segments_for(2 * h, freq_hz, per_wavelength)

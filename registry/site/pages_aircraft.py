@@ -20,6 +20,7 @@ from registry.site.pages_registry import aircraft_registry_page
 from registry.site.paths import aircraft_path, anchor, installation_path, root_of, vswr_plot_path
 from registry.site.views import (discrepancy_view, feeder_breakdown, figure_groups, installation_row, pattern_view,
                                  severity_matrix)
+from registry.site.technician import technician_card
 
 Pairs = Mapping[tuple[str, str], list[PairResult]]
 """Co-site pairs by (aircraft id, position), each list ordered by the pair's positions."""
@@ -153,5 +154,6 @@ def installation_page(data: SiteData, aircraft: Aircraft, installation: Installa
                 pairs=pair_rows(data, aircraft, installation, pairs_of),
                 **coverage_views(data, aircraft, installation, service),
                 discrepancies=[discrepancy_view(data, d) for d in items],
+                card=technician_card(aircraft, installation, airframe.coord_unit),
                 notes=Markup(notes_html(installation.notes)), src=data.model_src(installation),
                 sweep_name=measured.sweep.name if measured and measured.sweep else "")

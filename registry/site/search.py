@@ -10,7 +10,7 @@ from __future__ import annotations
 import json
 from typing import Callable
 
-from registry.core.model import Aircraft, Fleet
+from registry.core.model import Aircraft, Fleet, Installation
 from registry.site.pages_cosite import cosite_path, type_cosite_path
 
 Paths = dict[str, Callable[..., str]]
@@ -51,11 +51,12 @@ def aircraft_entries(fleet: Fleet, aircraft: Aircraft, plain_text: Callable[[str
             "installation", f"{aircraft.registration} {installation.position}",
             paths["installation"](aircraft.id, installation.position),
             [installation.position, aircraft.registration, aircraft.id, installation.antenna,
-             installation.feeder.cable, installation.service],
+             installation.feeder.cable, installation.service, *hardware_keys(installation)],
             [service.name if service else installation.service,
              f"{installation.antenna} {model.description if model else ''}".strip(),
              f"{installation.surface.replace('_', ' ')} surface",
              f"feeder {installation.feeder.cable}",
+             *hardware_text(installation),
              plain_text(installation.notes)]))
     return entries
 
@@ -108,3 +109,35 @@ def index_script(entries: list[dict[str, str]]) -> str:
     # keep "</script" and line separators harmless whatever the data holds
     payload = payload.replace("</", "<\\/").replace("\u2028", "\\u2028").replace("\u2029", "\\u2029")
     return f"window.AERIALBOOK_SEARCH = {payload};\n"
+
+
+def hardware_keys(installation: Installation) -> list[str]:
+    """The installation's hardware identifiers a technician may type: connector types, part numbers (adapters,
+    radio unit, splitter), the antenna's serial number, the access panel and the manual references."""
+    run = installation.feeder
+    keys = [end.connector for end in (run.antenna_end, run.radio_end) if end is not None]
+    keys += [part.part_number for part in run.adapter_parts]
+    keys += [run.radio_unit.part_number] if run.radio_unit is not None else []
+    keys += [installation.splitter.part_number] if installation.splitter is not None else []
+    keys += [installation.antenna_serial, installation.access_panel, installation.shared_from or ""]
+    return keys + [ref.ref for ref in installation.manuals]
+
+
+def hardware_text(installation: Installation) -> list[str]:
+    """The same hardware in words: `TNC male connector at the antenna`, `radio unit ... rack ...`, ..."""
+    run = installation.feeder
+    text = [f"{end.connector} {end.gender} connector at the {side}"
+            for side, end in (("antenna", run.antenna_end), ("radio", run.radio_end)) if end is not None]
+    text += [f"adapter {part.part_number} {part.description}".strip() for part in run.adapter_parts]
+    if run.radio_unit is not None:
+        text.append(f"radio unit {run.radio_unit.part_number} rack {run.radio_unit.rack}".strip())
+    if installation.splitter is not None:
+        text.append(f"{installation.splitter.kind} {installation.splitter.part_number}"
+                    + (f", antenna of {installation.shared_from}" if installation.shared_from else ""))
+    if installation.amplifier is not None:
+        text.append("active antenna with amplifier")
+    if installation.antenna_serial:
+        text.append(f"antenna serial {installation.antenna_serial}")
+    if installation.access_panel:
+        text.append(f"access panel {installation.access_panel}")
+    return text + [f"{ref.kind} manual {ref.ref} {ref.title}".strip() for ref in installation.manuals]

@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pytest
 
-SHOTS = Path("/tmp/shots/i15")
+SHOTS = Path("/tmp/shots/audit")
 MKR = "qx-tce/MKR/impedance-match"
 
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-SHOTS = Path("/tmp/shots/i15b")
+SHOTS = Path("/tmp/shots/print")
 
 
 def printed(browser, url: str):

@@ -1,6 +1,6 @@
 """The print view in a real browser (Debian's chromium, print media emulated): the printable report shows
 its title block, made to repeat at the head of every printed page; collapsed sections print open; sort
-arrows and the navigation do not print. Screenshots and a PDF of the print view go to /tmp/shots/i15b."""
+arrows and the navigation do not print. Screenshots and a PDF of the print view go to /tmp/shots/print."""
 from __future__ import annotations
 
 from pathlib import Path

@@ -9,10 +9,11 @@ from registry.core.progress import QUIET, Progress
 
 MIN_ITEMS = 8
 """Below this many items the work stays in this process: starting workers would cost more."""
-CHUNKS_PER_WORKER = 8
-"""A worker is replaced by a fresh fork after this many chunks of work: what it kept for itself (figures
-cached per process, rendered fragments) goes with it, so a worker's memory stays near its parent's however
-large the fleet; a fresh fork inherits everything the parent worked out before the work began."""
+ITEMS_PER_WORKER = 100
+"""A worker is replaced by a fresh fork after about this many items (in whole chunks): what it kept for
+itself (figures cached per process, rendered fragments) goes with it, so a worker's memory stays near its
+parent's however large the fleet; a fresh fork inherits everything the parent worked out before the work
+began (patterns, impedances, compiled templates)."""
 
 _TASK: Callable[[Any], Any] | None = None
 """The task a forked worker runs: inherited from the parent at fork time, so it is never pickled."""
@@ -39,9 +40,11 @@ def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
         return
     _TASK = task
     try:
-        with multiprocessing.get_context("fork").Pool(workers, maxtasksperchild=CHUNKS_PER_WORKER) as pool:
+        chunksize = max(1, len(items) // (workers * 32))
+        chunks_per_worker = max(1, -(-ITEMS_PER_WORKER // chunksize))
+        with multiprocessing.get_context("fork").Pool(workers, maxtasksperchild=chunks_per_worker) as pool:
             # small chunks: the last ones finish close together, so no worker idles long at the end
-            for result in pool.imap(_run, items, chunksize=max(1, len(items) // (workers * 32))):
+            for result in pool.imap(_run, items, chunksize=chunksize):
                 yield result
                 progress.advance()
     finally:

@@ -96,6 +96,8 @@ def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, compa
     figures or summary yet), the static files. The aircraft pages can be rendered from here on, one by
     one as their figures come (`AircraftRun.render_fresh`)."""
     env = environment()
+    for name in env.list_templates(filter_func=lambda name: name.endswith(".html")):
+        env.get_template(name)  # compiled here, once: the workers forked later inherit them
     pages_registry.forget()  # links to registry lines are kept per process; this build's files may differ
     store = plot_store or plots.PlotStore()
     model_patterns = patterns_by_model(fleet, results) if model_patterns is None else model_patterns

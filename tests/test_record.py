@@ -103,7 +103,7 @@ def test_written_record_reads_back(tmp_path):
 
 
 @pytest.mark.parametrize("change, message", [
-    (lambda r: r.update(format_version=2), "format_version: found 2, expected 1"),
+    (lambda r: r.update(format_version=1), "format_version: found 1, expected 2"),
     (lambda r: r.pop("discrepancies"), "(record): 'discrepancies' is a required property"),
     (lambda r: next(iter(r["discrepancies"].values())).update(severity="dire"), "severity: 'dire' is not one of"),
 ])

@@ -91,6 +91,11 @@ def array_key(*parts: object) -> str:
     return digest.hexdigest()[:20]
 
 
+def line_digest(data: bytes) -> bytes:
+    """16 bytes naming a piece of text (BLAKE2b): two records' lines compared without holding them."""
+    return hashlib.blake2b(data, digest_size=16).digest()
+
+
 def text_key(text: str, digits: int = 12) -> str:
     """The first `digits` hex digits of the SHA-256 of `text` (UTF-8): a file-name suffix."""
     return hashlib.sha256(text.encode()).hexdigest()[:digits]

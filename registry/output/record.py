@@ -26,7 +26,7 @@ from registry import __version__
 from registry.core.errors import AerialbookError
 from registry.core.results import Figure
 
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 RECORD_NAME = "record.json"
 SCHEMA_PATH = Path(__file__).parent.parent / "schemas" / "record.schema.json"
 REGISTRY_DIGITS = 10

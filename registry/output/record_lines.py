@@ -16,42 +16,79 @@ from __future__ import annotations
 
 import json
 import re
+from collections.abc import Iterator
+from pathlib import Path
 from typing import Any
 
+from registry.incremental import line_digest
 from registry.output.record import validate
 
-MEMBER_KEY = re.compile(r'"([^"\\/]+)(?:/[^"\\]*)?":')
+MEMBER_KEY = re.compile(rb'"([^"\\/]+)(?:/[^"\\]*)?":')
 """A member line's opening key: the aircraft id, then what follows the first "/"."""
 
-Layout = tuple[list[str], list[dict[str, str]]]
-"""A record's frame lines, and between each two of them its member lines by aircraft id."""
+Layout = tuple[list[str], list[dict[bytes, bytes]]]
+"""A record's frame lines, and between each two of them a digest of each member line by aircraft id."""
 
 
-def layout(text: str) -> Layout | None:
-    """The record text's frame lines and member lines, or None when it is not in the layout."""
+def _lines(path: Path) -> Iterator[bytes]:
+    """The file's lines, read as they come (a record runs to hundreds of megabytes), empty ones left out."""
+    with open(path, "rb") as handle:
+        for raw in handle:
+            line = raw.rstrip(b"\n")
+            if line:  # an aircraft-by-aircraft map with no members
+                yield line
+
+
+def _member(line: bytes) -> tuple[bytes, bytes] | None:
+    """A member line's aircraft id and its text without the trailing comma, or None for a frame line."""
+    if line[:1] in (b"{", b"}"):
+        return None
+    match = MEMBER_KEY.match(line)
+    if match is None:
+        raise NotInLayout
+    return match.group(1), line[:-1] if line.endswith(b",") else line
+
+
+def layout(path: Path) -> Layout:
+    """The record file's frame lines and a digest of each member line (NotInLayout if it is not in the
+    layout): enough to tell which aircraft differ without holding either record."""
     frames: list[str] = []
-    members: list[dict[str, str]] = []
-    for line in text.rstrip("\n").split("\n"):
-        if not line:  # an aircraft-by-aircraft map with no members
-            continue
-        if line.startswith(("{", "}")):
-            frames.append(line)
+    members: list[dict[bytes, bytes]] = []
+    for line in _lines(path):
+        member = _member(line)
+        if member is None:
+            frames.append(_text(line))
             members.append({})
-            continue
-        match = MEMBER_KEY.match(line)
-        if match is None or not members or match.group(1) in members[-1]:
-            return None
-        members[-1][match.group(1)] = line[:-1] if line.endswith(",") else line
-    return (frames, members) if frames else None
+        elif not members or member[0] in members[-1]:
+            raise NotInLayout
+        else:
+            members[-1][member[0]] = line_digest(member[1])
+    if not frames:
+        raise NotInLayout
+    return frames, members
 
 
-def assemble(frames: list[str], members: list[dict[str, str]], keep: set[str]) -> str:
-    """The record text with only the member lines of the aircraft in `keep`."""
-    out = []
-    for frame, between in zip(frames, members):
-        out.append(frame)
-        out.append(",".join(line for aircraft_id, line in between.items() if aircraft_id in keep))
+def assemble(path: Path, keep: set[bytes]) -> str:
+    """The record file's text with only the member lines of the aircraft in `keep` (read again)."""
+    out: list[str] = []
+    kept: list[bytes] = []
+    for line in _lines(path):
+        member = _member(line)
+        if member is None:
+            out.append(_text(b",".join(kept)))
+            out.append(_text(line))
+            kept = []
+        elif member[0] in keep:
+            kept.append(member[1])
+    out.append(_text(b",".join(kept)))
     return "".join(out)
+
+
+def _text(data: bytes) -> str:
+    try:
+        return data.decode("utf-8")
+    except UnicodeDecodeError:
+        raise NotInLayout from None
 
 
 class NotInLayout(Exception):
@@ -65,33 +102,33 @@ def _parsed(text: str) -> Any:
         raise NotInLayout from None
 
 
-def trimmed_pair(old_text: str, new_text: str, old_where: str, new_where: str
+def trimmed_pair(old_path: Path, new_path: Path, old_where: str, new_where: str
                  ) -> tuple[dict[str, Any], dict[str, Any]] | None:
     """Both records with the aircraft alike on both sides left out, checked against the record schema;
-    None when either text is not in the layout, or does not parse (the two have different frames, a
-    part is not JSON), so that the caller reads them whole and words what is wrong. Raises RecordError
-    for a record the schema refuses."""
+    None when either file is not in the layout, cannot be read, or does not parse (the two have
+    different frames, a part is not JSON), so that the caller reads them whole and words what is wrong.
+    Raises RecordError for a record the schema refuses."""
     try:
-        return _trimmed_pair(old_text, new_text, old_where, new_where)
-    except NotInLayout:
+        return _trimmed_pair(Path(old_path), Path(new_path), old_where, new_where)
+    except (NotInLayout, OSError):
         return None
 
 
-def _trimmed_pair(old_text: str, new_text: str, old_where: str, new_where: str
+def _trimmed_pair(old_path: Path, new_path: Path, old_where: str, new_where: str
                   ) -> tuple[dict[str, Any], dict[str, Any]] | None:
-    old, new = layout(old_text), layout(new_text)
-    if old is None or new is None or len(old[0]) != len(new[0]):
+    old, new = layout(old_path), layout(new_path)
+    if len(old[0]) != len(new[0]):
         return None
     changed = {aircraft_id for before, after in zip(old[1], new[1])
                for aircraft_id in before.keys() | after.keys() if before.get(aircraft_id) != after.get(aircraft_id)}
-    old_frame = _parsed(assemble(old[0], old[1], set()))
-    new_frame = _parsed(assemble(new[0], new[1], set()))
+    old_frame = _parsed("".join(old[0]))
+    new_frame = _parsed("".join(new[0]))
     if not isinstance(old_frame, dict) or not isinstance(new_frame, dict):
         return None
     old_found, new_found = old_frame.get("discrepancies"), new_frame.get("discrepancies")
     if not isinstance(old_found, dict) or not isinstance(new_found, dict):
         return None
-    changed |= {str(key).split("/", 1)[0] for key in old_found.keys() | new_found.keys()
+    changed |= {str(key).split("/", 1)[0].encode("utf-8") for key in old_found.keys() | new_found.keys()
                 if old_found.get(key) != new_found.get(key)}
-    return (validate(_parsed(assemble(old[0], old[1], changed)), old_where),
-            validate(_parsed(assemble(new[0], new[1], changed)), new_where))
+    return (validate(_parsed(assemble(old_path, changed)), old_where),
+            validate(_parsed(assemble(new_path, changed)), new_where))

@@ -71,7 +71,7 @@ def read_record_pair(old_spec: str, new_spec: str) -> tuple[Side, Side] | None:
         return None
     paths = [Path(spec) / build_record.RECORD_NAME if side_kind(spec) == "site" else Path(spec)
              for spec in (old_spec, new_spec)]
-    pair = record_lines.trimmed_pair(*(build_record.read_text(path) for path in paths), *map(str, paths))
+    pair = record_lines.trimmed_pair(*paths, *map(str, paths))
     if pair is None:
         return None
     sides = tuple(Side(f"{side_kind(spec)} {spec}", record) for spec, record in zip((old_spec, new_spec), pair))

@@ -27,13 +27,15 @@ INTERMOD_SOURCE = ("common practice, no source: transmitter intermodulation, con
 def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: list[Side],
                       geometry: Geometry) -> list[CositeIntermod]:
     """Every 3rd- and 5th-order product of two transmitters over their ranges that lands in a receiver's
-    band, with its level and margin (`intermod_figures`); products of transmitters and a receiver all on
+    band, with its level and margin (`Rating.rated`); products of transmitters and a receiver all on
     one suppression line are marked excused (and get no level)."""
     out = []
+    rating = Rating(geometry)
     for i, one in enumerate(transmitters):
         for two in transmitters[i + 1:]:
+            pair = (one, two)
             for rx in receivers:
-                if rx.installation in (one.installation, two.installation):
+                if rx.installation is one.installation or rx.installation is two.installation:
                     continue
                 line = one.line if one.line and one.line == two.line == rx.line else ""
                 for f1 in one.value("tx_bands_mhz"):
@@ -41,44 +43,83 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
                         for victim in rx.value("rx_bands_mhz"):
                             for a, b, label, order, r1, r2, product in _intermod_hits(tuple(f1), tuple(f2),
                                                                                       tuple(victim)):
-                                item = CositeIntermod(aircraft_id, one.position, two.position, rx.position,
-                                                      label, order, r1, r2, product, line)
-                                out.append(item if line else rated_intermod(item, abs(a) > abs(b), (one, two), rx,
-                                                                            geometry))
+                                head = (aircraft_id, one.position, two.position, rx.position, label, order, r1, r2,
+                                        product, line)
+                                out.append(CositeIntermod(*head) if line
+                                           else rating.rated(head, abs(a) > abs(b), pair, rx))
     return out
 
 
-def rated_intermod(item: CositeIntermod, first_generates: bool, pair: tuple[Side, Side], rx: Side,
-                   geometry: Geometry) -> CositeIntermod:
-    """The product with its generator, level and margin (figures step by step; margin None when a figure
-    for the level is missing: a power or the conversion loss of the generator's order). The first
-    transmitter of `pair` generates when its coefficient is the larger (`first_generates`)."""
-    generator, intruder = pair if first_generates else (pair[1], pair[0])
-    intruder_lo = (item.f2_mhz if generator is pair[0] else item.f1_mhz)[0]
-    conversion_key = f"im{item.order}_conversion_loss_db"
+class Rating:
+    """Rates an aircraft's products, keeping the parts products share: an aircraft has
+    thousands of products but few generator/intruder pairs and few coupling frequencies, so the figures up
+    to the product at the generator's port are worked out once per (intruder, generator, order, frequency)
+    and the way to the receiver once per (generator, receiver, frequency)."""
+
+    def __init__(self, geometry: Geometry):
+        self.geometry = geometry
+        self.heads: dict[tuple, tuple] = {}
+        self.tails: dict[tuple, tuple] = {}
+
+    def rated(self, head: tuple, first_generates: bool, pair: tuple[Side, Side], rx: Side) -> CositeIntermod:
+        """The product (`head`: the `CositeIntermod` fields up to `excused_by`) with its generator, level and
+        margin (figures step by step; margin None when a figure for the level is missing: a power or the
+        conversion loss of the generator's order). The first transmitter of `pair` generates when its
+        coefficient is the larger (`first_generates`)."""
+        generator, intruder = pair if first_generates else (pair[1], pair[0])
+        order, f1_mhz, f2_mhz, product_mhz = head[5], head[6], head[7], head[8]
+        intruder_lo = (f2_mhz if generator is pair[0] else f1_mhz)[0]
+        key = (intruder.position, generator.position, order, intruder_lo)
+        if key not in self.heads:
+            self.heads[key] = product_figures(intruder, generator, order, intruder_lo, self.geometry)
+        figures, tx = self.heads[key]
+        key = (generator.position, rx.position, product_mhz[0])
+        if key not in self.tails:
+            self.tails[key] = receiver_figures(generator, rx, product_mhz[0], self.geometry)
+        out, receive, plane, generator_feeder = self.tails[key]
+        if tx is None:
+            return CositeIntermod(*head, generator.position, None, figures + out + receive)
+        m = cosite.interference_margin(tx.product_dbm, 0.0, generator_feeder, out[-1].value,
+                                       receive[0].value if plane == "receiver_input" else 0.0, receive[-1].value,
+                                       plane)
+        level = tuple(level_figures(m, INTERMOD_SOURCE, figures[-1].src))
+        return CositeIntermod(*head, generator.position, m.margin_db, figures + out + receive + level)
+
+
+def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz: float,
+                    geometry: Geometry) -> tuple[tuple[Figure, ...], cosite.TransmitterIntermod | None]:
+    """The product at the generator's port, step by step: the intruder's power and feeder, the coupling
+    into the generator (at the lowest frequency of the intruder's range), the generator's feeder and its
+    conversion loss for the order, then the product; None for the level when a power or the conversion loss
+    is missing (the figures end with the conversion loss then)."""
     power = figure_of(intruder, "tx_peak_power_dbm", FK.COSITE_TX_POWER_DBM, f"Peak power of {intruder.position}",
                       "dBm")
     intruder_feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, f"Feeder loss of {intruder.position}", intruder)
     into = [f._replace(label=f"{f.label}, {intruder.position} → {generator.position}")
-            for f in coupling_figures(intruder, generator, geometry, intruder_lo)]
+            for f in coupling_figures(intruder, generator, geometry, intruder_lo_mhz)]
     generator_feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, f"Feeder loss of {generator.position}", generator)
-    conversion = figure_of(generator, conversion_key, FK.COSITE_CONVERSION_LOSS_DB,
-                           f"Conversion loss of {generator.position}, order {item.order}", "dB")
-    out = [f._replace(label=f"{f.label}, {generator.position} → {rx.position}")
-           for f in coupling_figures(generator, rx, geometry, item.product_mhz[0])]
-    receive, plane = receive_figures(rx)
-    figures = [power, intruder_feeder, *into, generator_feeder, conversion]
+    conversion = figure_of(generator, f"im{order}_conversion_loss_db", FK.COSITE_CONVERSION_LOSS_DB,
+                           f"Conversion loss of {generator.position}, order {order}", "dB")
+    figures = (power, intruder_feeder, *into, generator_feeder, conversion)
     if power.value is None or conversion.value is None:
-        return item._replace(generator=generator.position, figures=tuple(figures + out + receive))
+        return figures, None
     tx = cosite.transmitter_intermod(power.value, intruder_feeder.value, into[-1].value, generator_feeder.value,
                                      conversion.value)
-    m = cosite.interference_margin(tx.product_dbm, 0.0, generator_feeder.value, out[-1].value,
-                                   receive[0].value if plane == "receiver_input" else 0.0, receive[-1].value, plane)
     product = Figure(FK.COSITE_PRODUCT_DBM, f"Product at {generator.position}'s port", tx.product_dbm, "dBm",
                      "P_I − L_I + C_IG − L_G − L_conv", (("coupled in", f"{tx.coupled_in_dbm:.1f} dBm"),),
                      INTERMOD_SOURCE, conversion.src)
-    figures += [product, *out, *receive, *level_figures(m, INTERMOD_SOURCE, conversion.src)]
-    return item._replace(generator=generator.position, margin_db=m.margin_db, figures=tuple(figures))
+    return (*figures, product), tx
+
+
+def receiver_figures(generator: Side, rx: Side, product_lo_mhz: float,
+                     geometry: Geometry) -> tuple[tuple[Figure, ...], tuple[Figure, ...], str, float]:
+    """From the generator's port to the receiver: the coupling (at the product's lowest frequency), the
+    receive figures and the threshold's plane, and the generator's feeder loss (dB) the product passes."""
+    out = tuple(f._replace(label=f"{f.label}, {generator.position} → {rx.position}")
+                for f in coupling_figures(generator, rx, geometry, product_lo_mhz))
+    receive, plane = receive_figures(rx)
+    feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, "", generator).value
+    return out, tuple(receive), plane, feeder
 
 
 @lru_cache(maxsize=4096)

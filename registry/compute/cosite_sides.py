@@ -68,17 +68,14 @@ class Side:
         self.feeder = loss if loss is not None and isinstance(loss.value, float) else None
         self.receive: tuple[list[Figure], str] | None = None
         """`receive_figures` of this side, once worked out."""
+        self.location_src = where(installation, "location")
+        """The registry line of the antenna's location (every coupling figure names it)."""
+        self.line: str = self.value("suppression_line") or ""
+        self.position: str = installation.position
 
     def value(self, key: str) -> Any:
         return self.values[key][0]
 
-    @property
-    def line(self) -> str:
-        return self.value("suppression_line") or ""
-
-    @property
-    def position(self) -> str:
-        return self.installation.position
 
 
 class Geometry:
@@ -116,11 +113,11 @@ def _coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) -
     loss = free_space_loss_db(freq_mhz * 1e6, d) if d > 0 else 0.0
     return [
         Figure(FK.COSITE_DISTANCE_M, "Distance between the antennas", d, "m", "|P_RX − P_TX| from STA/BL/WL",
-               (("unit", geometry.unit),), src=where(rx.installation, "location")),
+               (("unit", geometry.unit),), src=rx.location_src),
         Figure(FK.COSITE_COUPLING_DB, "Coupling between the antennas", -loss, "dB", "C = −20·log₁₀(4πd/λ)",
                (("d", f"{d:.2f} m"), ("f", f"{freq_mhz:.3f} MHz (lowest of the range)")),
                f"free space between isotropic antennas, no fuselage shadowing (assumed); {FRIIS}",
-               where(tx.installation, "location")),
+               tx.location_src),
     ]
 
 

@@ -83,7 +83,11 @@ def antenna_angles_deg(direction, axis_z, axis_x) -> tuple[float, float]:
 
 
 def free_space_loss_db(freq_hz, distance_m_):
-    """Free-space basic transmission loss 20 log10(4 pi d / lambda) (dB), ITU-R P.525."""
+    """Free-space basic transmission loss 20 log10(4 pi d / lambda) (dB), ITU-R P.525. Floats or arrays."""
+    if isinstance(freq_hz, float) and isinstance(distance_m_, float):  # the co-site path's thousands of calls
+        if distance_m_ <= 0:
+            raise ValueError("distance must be positive")
+        return 20.0 * math.log10(4.0 * math.pi * distance_m_ / wavelength_m(freq_hz))
     d = np.asarray(distance_m_, dtype=float)
     if np.any(d <= 0):
         raise ValueError("distance must be positive")

@@ -34,6 +34,10 @@ MIN_LENGTH_TO_DIAMETER = FIT_RANGE_LD[0]
 
 def wavelength_m(freq_hz):
     """Free-space wavelength lambda = c / f (m) for freq_hz (Hz). Floats or arrays."""
+    if isinstance(freq_hz, float):
+        if freq_hz <= 0:
+            raise ValueError("frequency must be positive")
+        return C_M_PER_S / freq_hz
     f = np.asarray(freq_hz, dtype=float)
     if np.any(f <= 0):
         raise ValueError("frequency must be positive")

@@ -183,7 +183,11 @@ def map_grids(airframe: Airframe, installation: Installation, service: Service):
     need = requirement(service)
     if need is None:
         return None
-    point = antenna_point(airframe, installation)
+    return grids_from(airframe, antenna_point(airframe, installation), need)
+
+
+def grids_from(airframe: Airframe, point: tuple[float, float, float], need: Requirement):
+    """`map_grids` from the antenna's point (`antenna_point`) and the service's requirement."""
     grids = [grid_at(airframe, point, b, p) for b, p in need.attitudes]
     any_blocked = np.logical_or.reduce([g.blocked for g in grids])
     return grids[0], any_blocked, region_mask(grids[0], need)

@@ -7,10 +7,11 @@ nose in the middle, PX_PER_DEG pixels per degree; y = elevation, +90 at the top.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
-from registry.compute.coverage import SECTOR_RULE, map_grids, region_text, requirement
+from registry.compute.coverage import SECTOR_RULE, Requirement, antenna_point, grids_from, region_text, requirement
 from registry.core.model import Airframe, Installation, Service
 from registry.site.svg import n
 
@@ -63,26 +64,34 @@ def _runs(mask: np.ndarray, az_deg: np.ndarray, el_deg: np.ndarray, step: float)
 
 def coverage_map(airframe: Airframe, installation: Installation, service: Service | None) -> CoverageMap | None:
     """The map of an installation whose service states what it must see, else None."""
-    if service is None or requirement(service) is None:
+    need = requirement(service) if service is not None else None
+    if need is None:
         return None
-    level, any_blocked, region = map_grids(airframe, installation, service)
-    step = level.step_deg
+    level, attitude, region, blocked_pct = map_paths(airframe, antenna_point(airframe, installation), need)
     width = 360 * PX_PER_DEG
     height = 180 * PX_PER_DEG
     x_ticks = tuple((n(_x(az) if az != 180 else MARGIN + width), label) for az, label in
                     ((-180, "tail"), (-90, "left"), (0, "nose"), (90, "right"), (180, "tail")))
     y_ticks = tuple((n(_y(el)), f"{el:+d}°" if el else "0°") for el in (90, 60, 30, 0, -30, -60, -90))
-    blocked_pct = 100.0 * float(level.blocked.mean())
     alt = (f"Coverage map of {installation.position}: directions the airframe blocks in level flight "
            f"({blocked_pct:.0f} % of the grid cells) and at the bank and pitch the service names, over the "
-           f"{region_text(requirement(service))} the service must see.")
+           f"{region_text(need)} the service must see.")
     return CoverageMap(
-        width=n(width + 2 * MARGIN), height=n(height + 1.5 * MARGIN),
-        level=_runs(level.blocked, level.az_deg, level.el_deg, step),
-        attitude=_runs(any_blocked & ~level.blocked, level.az_deg, level.el_deg, step),
-        region=_runs(np.asarray(region), level.az_deg, level.el_deg, step),
-        x_ticks=x_ticks, y_ticks=y_ticks, chart=(n(MARGIN), n(_y(90)), n(width), n(height)),
-        region_text=region_text(requirement(service)), alt=alt)
+        width=n(width + 2 * MARGIN), height=n(height + 1.5 * MARGIN), level=level, attitude=attitude,
+        region=region, x_ticks=x_ticks, y_ticks=y_ticks, chart=(n(MARGIN), n(_y(90)), n(width), n(height)),
+        region_text=region_text(need), alt=alt)
+
+
+@lru_cache(maxsize=1024)
+def map_paths(airframe: Airframe, point: tuple[float, float, float], need: Requirement) -> tuple[str, str, str, float]:
+    """The map's three paths (blocked in level flight, blocked only at a bank or pitch, the region the
+    service must see) and the share of cells blocked in level flight (per cent), once per airframe
+    content, antenna point and requirement in a process: aircraft of one type repeat them."""
+    level, any_blocked, region = grids_from(airframe, point, need)
+    step = level.step_deg
+    return (_runs(level.blocked, level.az_deg, level.el_deg, step),
+            _runs(any_blocked & ~level.blocked, level.az_deg, level.el_deg, step),
+            _runs(np.asarray(region), level.az_deg, level.el_deg, step), 100.0 * float(level.blocked.mean()))
 
 
 def blocked_sectors(airframe: Airframe, installation: Installation, service: Service | None
@@ -90,10 +99,18 @@ def blocked_sectors(airframe: Airframe, installation: Installation, service: Ser
     """Azimuth runs (start_deg, width_deg) blocked in level flight by the measure of the coverage figure's
     worst sector (`compute.coverage.SECTOR_RULE`: every direction of a horizon band, half the solid angle
     of a sky or ground region), for the airframe drawing."""
-    if service is None or requirement(service) is None:
+    need = requirement(service) if service is not None else None
+    if need is None:
         return ()
-    fraction = SECTOR_RULE[requirement(service).region][0]
-    level, _, region = map_grids(airframe, installation, service)
+    return sectors_at(airframe, antenna_point(airframe, installation), need)
+
+
+@lru_cache(maxsize=1024)
+def sectors_at(airframe: Airframe, point: tuple[float, float, float], need: Requirement
+               ) -> tuple[tuple[float, float], ...]:
+    """`blocked_sectors` once per airframe content, antenna point and requirement in a process."""
+    fraction = SECTOR_RULE[need.region][0]
+    level, _, region = grids_from(airframe, point, need)
     region = np.asarray(region)
     weight = np.cos(np.radians(level.el_deg))[:, None] * region
     col = weight.sum(axis=0)

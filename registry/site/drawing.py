@@ -12,6 +12,7 @@ import dataclasses
 import math
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
@@ -220,8 +221,19 @@ class Parts:
     labels: Labels
 
 
+frame_for = lru_cache(maxsize=64)(frame_of)
+"""`frame_of`, once per airframe content in a process."""
+
+
+@lru_cache(maxsize=64)
+def outline_of(airframe: Airframe, view: str) -> tuple[tuple[tuple[str, str], ...], float, float]:
+    """A view's outline shapes, top and bottom, drawn once per airframe content and view in a process
+    (every installation page with a coverage map draws its aircraft again)."""
+    return (plan_outline if view == "plan" else side_outline)(airframe, frame_for(airframe))
+
+
 def view_parts(airframe: Airframe, markers: list[Marker], f: Frame, view: str) -> Parts:
-    shapes, top, bottom = (plan_outline if view == "plan" else side_outline)(airframe, f)
+    shapes, top, bottom = outline_of(airframe, view)
     labels, reach_top, reach_bottom = layout_labels(markers, view, f)
     return Parts(shapes, min(top, reach_top - f.font * 0.4), max(bottom, reach_bottom + f.font * 0.4), labels)
 
@@ -273,7 +285,7 @@ def airframe_drawing(airframe: Airframe, markers: list[Marker], ident: str, sect
     """Plan and side view of `airframe` with `markers`; `ident` makes the clip-path ids unique.
     The plan view on the left, the side view on the right, both with an STA scale. `sectors`:
     (sta, bl, ((start_deg, width_deg), ...)) of a selected antenna, drawn as wedges in the plan view."""
-    f = frame_of(airframe)
+    f = frame_for(airframe)
     plan = view_parts(airframe, markers, f, "plan")
     side = view_parts(airframe, markers, f, "side")
     left, right = extent(airframe, [m.sta for m in markers], f)

@@ -43,7 +43,7 @@ class Stores:
 
     @classmethod
     def at(cls, cache_dir: Path | None) -> Stores:
-        return cls(DiskCache(cache_dir, "summaries", AircraftSummary, also=(record.ShareText,)),
+        return cls(DiskCache(cache_dir, "summaries", AircraftSummary),
                    DiskCache(cache_dir, "patterns", PatternResult))
 
 
@@ -55,8 +55,8 @@ def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[Ai
         pattern_of={position: result.pattern_key for (_, position), result in part.installations.items()},
         findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs, part.cosite)),
         figure_uses=figure_uses(part.installations.values(), part.pairs),
-        record=record.share_text(record.aircraft_record(aircraft, part.installations, part.pairs,
-                                                        Path(fleet.data_dir), part.cosite)),
+        record=record.pack_share(record.share_text(record.aircraft_record(
+            aircraft, part.installations, part.pairs, Path(fleet.data_dir), part.cosite))),
         cosite=cosite_cells(part.cosite))
     return part, summary, patterns
 
@@ -192,10 +192,10 @@ def compute(plan: Plan, workers: int, progress: Progress = QUIET, then: Then | N
 
 
 def _keep(results: FleetResults, aircraft_id: str, summary: AircraftSummary) -> None:
-    """An aircraft's summary, with its share of the build record packed apart (`record.pack_share`: a
-    tenth of its size, held until the record is written)."""
+    """An aircraft's summary, with its share of the build record (packed where it was computed:
+    `record.pack_share`) held apart until the record is written."""
     if summary.record is not None:
-        results.records[aircraft_id] = record.pack_share(summary.record)
+        results.records[aircraft_id] = summary.record
         summary = summary._replace(record=None)
     results.summaries[aircraft_id] = summary
 

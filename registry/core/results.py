@@ -271,7 +271,7 @@ class AircraftSummary(NamedTuple):
 
     `pattern_of` maps each position to its pattern's content key; `findings` are the rules' discrepancies
     before reviews (None when no rules were run where it was computed); `figure_uses` counts its figures
-    by `FigureUse`; `record` is its share of the build record as text (record.ShareText)."""
+    by `FigureUse`; `record` is its share of the build record, packed (record.pack_share)."""
 
     pattern_of: dict[str, str | None]
     findings: tuple[Discrepancy, ...] | None
@@ -296,8 +296,8 @@ class FleetResults:
     cosite: dict[str, AircraftCosite] = field(default_factory=dict)
     """Each loaded aircraft's co-site analysis, by aircraft id."""
     summaries: dict[str, AircraftSummary] = field(default_factory=dict)
-    records: dict[str, tuple[bytes, ...]] = field(default_factory=dict)
-    """Each aircraft's share of the build record (record.ShareText), packed (record.pack_share) until written."""
+    records: dict[str, tuple[str, ...]] = field(default_factory=dict)
+    """Each aircraft's share of the build record, packed (record.pack_share) until written."""
     aircraft_keys: dict[str, str] = field(default_factory=dict)
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
     unloaded: set[str] = field(default_factory=set)

@@ -10,6 +10,7 @@ the same as-of date give the same bytes.
 """
 from __future__ import annotations
 
+import base64
 import dataclasses
 import functools
 import json
@@ -172,20 +173,22 @@ def share_text(share: Mapping[str, Any]) -> ShareText:
                      _json(share.get("cosite", {}))[1:-1])
 
 
-Packed = tuple[bytes, ...]
-"""An aircraft's `ShareText` as the main process holds it until the record is written (`pack_share`)."""
+Packed = tuple[str, ...]
+"""An aircraft's `ShareText` as the cache keeps it and the main process holds it until the record is
+written (`pack_share`)."""
 
 
 def pack_share(share: ShareText) -> Packed:
-    """Each text of an aircraft's share compressed apart (zlib, fastest level): the shares are mostly
-    repeated keys and labels, a tenth of their size packed, and the main process holds every aircraft's
-    until the record is written."""
-    return tuple(zlib.compress(text.encode("utf-8"), 1) for text in share)
+    """Each text of an aircraft's share compressed apart (zlib, fastest level) and written in base64: the
+    shares are mostly repeated keys and labels, a seventh of their size packed. Packed where the aircraft
+    is computed, so the cache keeps and reads back the small form and the main process, which holds every
+    aircraft's share until the record is written, never compresses anything."""
+    return tuple(base64.b64encode(zlib.compress(text.encode("utf-8"), 1)).decode("ascii") for text in share)
 
 
 def unpack_field(packed: Packed, field_index: int) -> str:
     """One text of a packed share (0 aircraft, 1 installations, 2 pairs, 3 co-site)."""
-    return zlib.decompress(packed[field_index]).decode("utf-8")
+    return zlib.decompress(base64.b64decode(packed[field_index])).decode("utf-8")
 
 
 def to_record(outcome) -> dict[str, Any]:

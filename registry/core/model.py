@@ -34,10 +34,11 @@ class Location(Sourced):
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class GroundPlane(Sourced):
-    """`skin`, `plate` (with `radius_m`) or `none`."""
+    """`skin`, `plate` (round with `radius_m`, or square with `side_m`) or `none`."""
 
     type: str
     radius_m: float | None = None
+    side_m: float | None = None
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)

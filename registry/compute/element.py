@@ -250,9 +250,10 @@ gain of the infinite-ground model (the field there is half the image-theory fiel
 FINITE_GROUND_METHOD = ("moment method for a body of revolution (Mautz and Harrington, monopole at the centre "
                         "of a disc as in Weiner et al., MITRE ESD-TR-86-241, 1986, from memory); checked against "
                         "NEC-2 wire-grid discs from 0.25 to 3 λ")
-SQUARE_PLATE_METHOD = ("thin-wire moment method with the plate as a wire grid (Richmond, IEEE Trans. AP-14, 1966, "
-                       "from memory); checked against NEC-2 on square wire grids from 0.25 to 3 λ: pattern within "
-                       "0.25 dB, resistance 5 %, reactance 13 Ω")
+SQUARE_PLATE_METHOD = ("thin-wire moment method with the plate as a wire grid (common practice in moment-method "
+                       "modelling; its origin is cited to J. H. Richmond, IEEE Trans. AP-14, 1966: unverified, check "
+                       "against that paper); checked against NEC-2 on square wire grids from 0.25 to 3 λ: pattern "
+                       "within 0.25 dB, resistance 5 %, reactance 13 Ω")
 SQUARE_SIDE_MAX_WAVELENGTHS = 3.0
 """Largest square plate the wire-grid model is run on: the range checked against NEC-2 (the cost grows as the
 fourth power of the side)."""

@@ -1,9 +1,9 @@
 """A monopole at the centre of a square plate: thin-wire moment method with the plate as a wire grid.
 
-Method: the plate is a square grid of thin wires (the wire-grid model of a conducting surface, J. H.
-Richmond, "A wire-grid model for scattering by conducting bodies", IEEE Trans. AP-14, 1966: from memory;
-the method the issue names, "the moment method with the plate as a wire grid"), the monopole a straight
-wire standing on the grid's centre node.
+Method: the plate is a square grid of thin wires (the wire-grid model of a conducting surface, common
+practice in moment-method modelling; its origin is cited to J. H. Richmond, "A wire-grid model for
+scattering by conducting bodies", IEEE Trans. AP-14, 1966: unverified, not found by search in 2026-12,
+check against that paper), the monopole a straight wire standing on the grid's centre node.
 * Grid: an even number of cells a side (so the centre is a node), spacing at most GRID_SPACING_LAMBDA
   wavelengths; each grid wire's radius is spacing / (2 pi), the equal-area rule for wire grids (common
   practice in wire-grid modelling, no single source; the same rule as the NEC-2 models in the tests).

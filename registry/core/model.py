@@ -229,8 +229,7 @@ class AntennaModel(Sourced):
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Cable(Sourced):
-    """A cable type. `attenuation_db_per_100m` is always per 100 m; `declared_unit` says what the file used
-    (`db_per_100m` or `db_per_100ft`)."""
+    """A cable type. `attenuation_db_per_100m` is per 100 m; `declared_unit` the file's, db_per_100m or db_per_100ft."""
 
     id: str
     impedance_ohm: float

@@ -153,7 +153,13 @@ EXPECTED = {
         "aircraft/qx-fcb.yaml:6:15: error: installations[0].position: found '../etc/passwd', expected an id of up to 64 letters, digits, '.', '_' or '-', starting with a letter or digit",
     ],
     "plate_without_radius": [
-        'aircraft/qx-fcb.yaml:11:5: error: installations[0].ground_plane.radius_m: found nothing, expected a value (required with type plate)',
+        "aircraft/qx-fcb.yaml:11:5: error: installations[0].ground_plane: found neither 'radius_m' nor 'side_m', expected exactly one of 'radius_m' or 'side_m' (required with type plate)",
+    ],
+    "plate_radius_and_side": [
+        "aircraft/qx-fcb.yaml:11:5: error: installations[0].ground_plane: found both 'radius_m' and 'side_m', expected exactly one of 'radius_m' or 'side_m' (required with type plate)",
+    ],
+    "side_without_plate": [
+        "aircraft/qx-fcb.yaml:11:32: error: installations[0].ground_plane.side_m: found side_m with type 'skin', expected side_m only with type plate",
     ],
     "policy_unknown_service": [
         "policy.yaml:3:25: error: feeder_loss_budget_db.vhf_con: found 'vhf_con', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",

@@ -34,10 +34,11 @@ class Location(Sourced):
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class GroundPlane(Sourced):
-    """`skin`, `plate` (with `radius_m`) or `none`."""
+    """`skin`, `plate` (round with `radius_m`, or square with `side_m`) or `none`."""
 
     type: str
     radius_m: float | None = None
+    side_m: float | None = None
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -228,8 +229,7 @@ class AntennaModel(Sourced):
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Cable(Sourced):
-    """A cable type. `attenuation_db_per_100m` is always per 100 m; `declared_unit` says what the file used
-    (`db_per_100m` or `db_per_100ft`)."""
+    """A cable type. `attenuation_db_per_100m` is per 100 m; `declared_unit` the file's, db_per_100m or db_per_100ft."""
 
     id: str
     impedance_ohm: float

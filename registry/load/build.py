@@ -225,7 +225,8 @@ def installation(doc: Doc, n: int, item: dict[str, Any]) -> Installation:
         feeder=feeder(doc, (*at, "feeder"), item["feeder"]),
         ground_plane=None if ground_plane is None else GroundPlane(
             **doc.at(*at, "ground_plane"), type=ground_plane["type"],
-            radius_m=float(ground_plane["radius_m"]) if "radius_m" in ground_plane else None),
+            radius_m=float(ground_plane["radius_m"]) if "radius_m" in ground_plane else None,
+            side_m=float(ground_plane["side_m"]) if "side_m" in ground_plane else None),
         coupler=item.get("coupler", False),
         antenna_serial=item.get("antenna_serial", ""),
         bonding=None if "bonding" not in item else Bonding(

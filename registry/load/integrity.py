@@ -201,9 +201,10 @@ def check_installation(item: Installation, known: Catalogue, data_dir: Path) -> 
                    reference(item, "antenna", item.antenna, known.antennas, "an antenna model id from antennas.yaml"))
                 + reference(item, "feeder.cable", item.feeder.cable, known.cables, "a cable id from cables.yaml"))
     plane = item.ground_plane
-    if plane is not None and not item.shared_from and plane.type != "plate" and plane.radius_m is not None:
-        problems.append(problem(item, "ground_plane.radius_m", f"radius_m with type '{plane.type}'",
-                                "radius_m only with type plate"))
+    for name in ("radius_m", "side_m"):
+        if plane is not None and not item.shared_from and plane.type != "plate" and getattr(plane, name) is not None:
+            problems.append(problem(item, f"ground_plane.{name}", f"{name} with type '{plane.type}'",
+                                    f"{name} only with type plate"))
     sweep = item.measured.sweep if item.measured else None
     if sweep is not None:
         if not sweep.resolve().is_relative_to(data_dir.resolve()):

@@ -196,11 +196,14 @@ def _problems(error: ValidationError, doc: YamlDoc) -> list[Problem]:
         names = [branch["required"][0] for branch in error.validator_value]
         present = [name for name in names if name in instance]
         listed = " or ".join(f"'{name}'" for name in names)
+        # under an if/then the `then` schema's description says when the choice applies
+        when = f" ({schema['description']})" if list(error.relative_schema_path)[-2:-1] == ["then"] and \
+            schema.get("description") else ""
         if present:
             return [Problem.at(placed.src, field, f"both {' and '.join(repr(n) for n in present)}",
-                               f"exactly one of {listed}")]
+                               f"exactly one of {listed}{when}")]
         return [Problem.at(placed.src, field, f"neither {' nor '.join(repr(n) for n in names)}",
-                           f"{'exactly' if kind == 'oneOf' else 'at least'} one of {listed}")]
+                           f"{'exactly' if kind == 'oneOf' else 'at least'} one of {listed}{when}")]
     if "propertyNames" in error.relative_schema_path:
         key_src = doc.placed(parts + (instance,)).src
         return [Problem.at(key_src, format_path(parts + (instance,)), f"the key '{instance}'",

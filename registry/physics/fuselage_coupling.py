@@ -33,6 +33,8 @@ two monopoles on a flat plane at the ray's path length, times the curvature (Foc
   W. D. Burnside, R. G. Kouyoumjian, "A uniform GTD solution for the radiation from sources on a
   convex surface", IEEE Trans. AP-29 no. 4, 1981, pp. 609-622) was found. Issue, pages and the
   equation used stay to be checked against the coupling paper (from memory: AP-29 no. 6, Nov. 1981).
+  Searched again (2026-12-04; documentation, web pages, code and issue threads, by title and by authors):
+  still not found, so the citation stays unverified.
 * The limit function is asymptotic in k rho: against NEC-2 wire-grid cylinders (tests) the coupling is
   within 2.2 dB at k a = 3.7 (a fuselage at VHF) and k a = 5; at k a = 2.1 it reads 2-4 dB high.
 * Elliptical fuselages: a is taken as the section's mean radius sqrt(w h) (an assumption).

@@ -126,50 +126,57 @@ def _mean_radius_sq(geo: PathGeometry):
     return (geo.radii[:, None] ** 2 + geo.radii[None, :] ** 2) / 2
 
 
-def static_integrals(geo: PathGeometry) -> np.ndarray:
+def static_integrals(geo: PathGeometry, rows=None) -> np.ndarray:
     """(4, S, S) ∫∫ α β / (4 pi R) dl dl' for (α, β) = (1, 1), (s, 1), (1, s'), (s, s'); s, s' in [0, 1] the
-    fraction along the test and source segment. Inner integral closed form, outer Gauss-Legendre."""
+    fraction along the test and source segment. Inner integral closed form, outer Gauss-Legendre.
+    rows: the test segments to compute (an index array; all when None), giving (4, len(rows), S)."""
+    rows = np.arange(geo.lengths.size) if rows is None else np.asarray(rows)
     pts, x, w = _points(geo, STATIC_POINTS)
-    n_seg = geo.lengths.size
-    rel = pts[:, None, :] - geo.starts[None, :, :]  # (S*n, S, 3)
+    pts = pts.reshape(-1, STATIC_POINTS, 3)[rows].reshape(-1, 3)
+    n_seg, n_row = geo.lengths.size, rows.size
+    rel = pts[:, None, :] - geo.starts[None, :, :]  # (R*n, S, 3)
     zeta = np.einsum("pqk,qk->pq", rel, geo.directions)
-    a2 = np.repeat(_mean_radius_sq(geo), STATIC_POINTS, axis=0)
+    a2 = np.repeat(_mean_radius_sq(geo)[rows], STATIC_POINTS, axis=0)
     rho2 = np.maximum(np.einsum("pqk,pqk->pq", rel, rel) - zeta**2, 0.0) + a2
     rho = np.sqrt(rho2)
     d = geo.lengths[None, :]
     j0 = np.arcsinh((d - zeta) / rho) + np.arcsinh(zeta / rho)
     j1 = (np.sqrt((d - zeta) ** 2 + rho2) - np.sqrt(zeta**2 + rho2) + zeta * j0) / d
-    j0 = j0.reshape(n_seg, STATIC_POINTS, n_seg)
-    j1 = j1.reshape(n_seg, STATIC_POINTS, n_seg)
-    outer = geo.lengths[:, None] / (4 * np.pi)
-    out = np.empty((4, n_seg, n_seg))
+    j0 = j0.reshape(n_row, STATIC_POINTS, n_seg)
+    j1 = j1.reshape(n_row, STATIC_POINTS, n_seg)
+    outer = geo.lengths[rows][:, None] / (4 * np.pi)
+    out = np.empty((4, n_row, n_seg))
     for i, (alpha, inner) in enumerate(((1, j0), (x, j0), (1, j1), (x, j1))):
         weights = w * alpha
         out[i] = outer * np.einsum("g,pgq->pq", weights, inner)
     return out
 
 
-def smooth_integrals(geo: PathGeometry, pair_r: np.ndarray, k: float) -> np.ndarray:
-    """(4, S, S) like static_integrals for the smooth kernel (e^{-jkR} - 1)/(4 pi R); pair_r from _pair_distance."""
+def smooth_integrals(geo: PathGeometry, pair_r: np.ndarray, k: float, rows=None) -> np.ndarray:
+    """(4, S, S) like static_integrals for the smooth kernel (e^{-jkR} - 1)/(4 pi R); pair_r from _pair_distance
+    (with the same rows)."""
+    rows = np.arange(geo.lengths.size) if rows is None else np.asarray(rows)
     x, w = _gauss01(SMOOTH_POINTS)
-    n_seg = geo.lengths.size
+    n_seg, n_row = geo.lengths.size, rows.size
     kr = k * pair_r
     # e^{-jkR} - 1 = -2 sin²(kR/2) - j sin(kR), without the cancellation of 1 - cos at small kR
     h = (-2 * np.sin(kr / 2) ** 2 - 1j * np.sin(kr)) / (4 * np.pi * pair_r)
-    h = h.reshape(n_seg * SMOOTH_POINTS, n_seg, SMOOTH_POINTS)
-    inner = np.stack([h @ w, h @ (w * x)])  # (2, S*n, S): source weights 1 and s'
-    inner = inner.reshape(2, n_seg, SMOOTH_POINTS, n_seg)
-    scale = geo.lengths[:, None] * geo.lengths[None, :]
-    out = np.empty((4, n_seg, n_seg), dtype=complex)
+    h = h.reshape(n_row * SMOOTH_POINTS, n_seg, SMOOTH_POINTS)
+    inner = np.stack([h @ w, h @ (w * x)])  # (2, R*n, S): source weights 1 and s'
+    inner = inner.reshape(2, n_row, SMOOTH_POINTS, n_seg)
+    scale = geo.lengths[rows][:, None] * geo.lengths[None, :]
+    out = np.empty((4, n_row, n_seg), dtype=complex)
     for i, (alpha, beta) in enumerate(((w, 0), (w * x, 0), (w, 1), (w * x, 1))):
         out[i] = scale * np.einsum("g,pgq->pq", alpha, inner[beta])
     return out
 
 
-def _pair_distance(geo: PathGeometry) -> np.ndarray:
+def _pair_distance(geo: PathGeometry, rows=None) -> np.ndarray:
+    rows = np.arange(geo.lengths.size) if rows is None else np.asarray(rows)
     pts, _, _ = _points(geo, SMOOTH_POINTS)
-    a2 = np.repeat(np.repeat(_mean_radius_sq(geo), SMOOTH_POINTS, axis=0), SMOOTH_POINTS, axis=1)
-    diff = pts[:, None, :] - pts[None, :, :]
+    a2 = np.repeat(np.repeat(_mean_radius_sq(geo)[rows], SMOOTH_POINTS, axis=0), SMOOTH_POINTS, axis=1)
+    test = pts.reshape(-1, SMOOTH_POINTS, 3)[rows].reshape(-1, 3)
+    diff = test[:, None, :] - pts[None, :, :]
     return np.sqrt(np.einsum("pqk,pqk->pq", diff, diff) + a2)
 
 

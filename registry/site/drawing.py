@@ -275,6 +275,10 @@ def sector_paths(f: Frame, sta: float, bl: float, sectors) -> tuple[str, ...]:
     radius = 0.25 * f.length
     paths = []
     for start, width in sectors:
+        if width >= 360.0:  # blocked all round: a disc, with no edge drawn from the antenna out to the rim
+            x0, x1, y = n(sta - radius), n(sta + radius), n(-bl)
+            paths.append(f"M{x0},{y} A{n(radius)},{n(radius)} 0 1,0 {x1},{y} A{n(radius)},{n(radius)} 0 1,0 {x0},{y} Z")
+            continue
         angles = np.radians(start + np.linspace(0.0, width, max(2, int(width // 3) + 2)))
         points = " L".join(f"{n(sta - radius * math.cos(a))},{n(-bl - radius * math.sin(a))}" for a in angles)
         paths.append(f"M{n(sta)},{n(-bl)} L{points} Z")

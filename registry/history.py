@@ -52,7 +52,7 @@ def resolve(data_dir: Path, name: str) -> tuple[str, str, str]:
 def aircraft_timeline(data_dir: Path, name: str, with_findings: bool, cache_dir: Path | None) -> AircraftTimeline:
     """The aircraft's history; NoHistory when git cannot give one, UnknownAircraft when it has none."""
     aircraft_id, registration, path = resolve(data_dir, name)
-    fleet = timeline.fleet_history(data_dir, (path,), max_commits=timeline.MAX_CHANGES)
+    fleet = timeline.fleet_history(data_dir, (path,), max_commits=timeline.MAX_CHANGES, shown=str(data_dir))
     if fleet.note and not fleet.aircraft:
         raise NoHistory(fleet.note)
     history = fleet.aircraft.get(path)

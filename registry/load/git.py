@@ -61,18 +61,20 @@ class Checkout(NamedTuple):
     shallow: bool
 
 
-def checkout_of(data_dir: Path) -> Checkout | str:
-    """The data folder's checkout, or why its history cannot be read (a sentence, for the history note)."""
+def checkout_of(data_dir: Path, shown: str = "") -> Checkout | str:
+    """The data folder's checkout, or why its history cannot be read (a sentence naming the folder as
+    `shown`, default its path, for the history note)."""
+    shown = shown or str(data_dir)
     inside = git(data_dir, "rev-parse", "--is-inside-work-tree", "--show-prefix", "--show-toplevel",
                  "--is-shallow-repository", timeout=20)
     if inside is None:
         return "git cannot be run on this machine"
     lines = inside.stdout.decode(errors="replace").splitlines()
     if inside.returncode != 0 or len(lines) < 4 or lines[0] != "true":
-        return f"{data_dir} is not inside a git checkout"
+        return f"{shown} is not inside a git checkout"
     prefix = lines[1].strip()
     if git_text(data_dir, "rev-parse", "--verify", "--quiet", "HEAD", timeout=20) is None:
-        return f"{data_dir} is in a git repository with no commit yet"
+        return f"{shown} is in a git repository with no commit yet"
     return Checkout(Path(lines[2]), prefix, lines[3].strip() == "true")
 
 

@@ -102,14 +102,15 @@ class FleetHistory(NamedTuple):
 
 
 def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_changes: int = MAX_CHANGES,
-                  max_commits: int = MAX_LOG_COMMITS) -> FleetHistory:
-    """Every aircraft file's history from the data folder's git history, in one pass (see the module)."""
-    checkout = git.checkout_of(data_dir)
+                  max_commits: int = MAX_LOG_COMMITS, shown: str = "the data folder") -> FleetHistory:
+    """Every aircraft file's history from the data folder's git history, in one pass (see the module).
+    Notes name the data folder as `shown`: the site's pages never hold the path it was built from."""
+    checkout = git.checkout_of(data_dir, shown)
     if isinstance(checkout, str):
         return FleetHistory({}, f"{NEEDS_GIT}: {checkout}.", frozenset())
     log = git.first_parent_log(data_dir, list(paths), max_commits + 1)
     if log is None:
-        return FleetHistory({}, f"{NEEDS_GIT}: git log failed in {data_dir}.", frozenset())
+        return FleetHistory({}, f"{NEEDS_GIT}: git log failed in {shown}.", frozenset())
     commits, touched = parse_log(log, checkout.prefix)
     whole = len(commits) <= max_commits
     by_file: dict[str, list[tuple[Commit, str, str]]] = defaultdict(list)
@@ -169,7 +170,8 @@ def positions_of(raw: bytes | None, shown: str) -> tuple[dict[str, Fitted] | Non
     doc, problems = parse_yaml(raw, shown)
     if doc is None or not isinstance(doc.data, dict):
         first = problems[0] if problems else None
-        return None, (), f"not a readable aircraft file ({first.found if first else 'not a mapping'})"
+        where = f"line {first.line}: found {first.found}, expected {first.expected}" if first else "not a mapping"
+        return None, (), f"not a readable aircraft file ({where})"
     data = doc.data
     mods = tuple(str(item.get("ref")) for item in data.get("modifications") or []
                  if isinstance(item, dict) and item.get("ref") is not None)

@@ -21,6 +21,11 @@ from registry.load import history as timeline
 from registry.load.yamlsource import MAX_BYTES, parse_yaml
 from registry.output.history_text import AircraftTimeline, ChangeFindings
 
+SHARED = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml", "airframes/")
+"""The files every aircraft's findings depend on: a commit changing one of them is a change of the history
+(nothing fitted changes, findings may)."""
+
+
 class NoHistory(AerialbookError):
     """The history cannot be read at all (not a git checkout, git missing, no commit): exit 2, and the
     note says why."""
@@ -52,7 +57,8 @@ def resolve(data_dir: Path, name: str) -> tuple[str, str, str]:
 def aircraft_timeline(data_dir: Path, name: str, with_findings: bool, cache_dir: Path | None) -> AircraftTimeline:
     """The aircraft's history; NoHistory when git cannot give one, UnknownAircraft when it has none."""
     aircraft_id, registration, path = resolve(data_dir, name)
-    fleet = timeline.fleet_history(data_dir, (path,), max_commits=timeline.MAX_CHANGES, shown=str(data_dir))
+    fleet = timeline.fleet_history(data_dir, (path,), max_commits=timeline.MAX_CHANGES, shown=str(data_dir),
+                                   shared=SHARED if with_findings else ())
     if fleet.note and not fleet.aircraft:
         raise NoHistory(fleet.note)
     history = fleet.aircraft.get(path)

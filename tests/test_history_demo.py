@@ -55,3 +55,23 @@ def test_findings_appear_with_the_wrong_cable_and_clear_with_the_fix(tmp_path, c
     assert fixed["findings"]["appeared"] == []
     sat = doc["positions"]["SAT"]
     assert [span["fitted"]["cable"] for span in sat] == ["RG-58", "TCX-LL7"] and sat[-1]["to"] is None
+
+
+def test_a_catalogue_change_is_a_change_of_the_aircraft_history(tmp_path, capsys):
+    """A commit that changes only cables.yaml fits nothing new, but its findings are compared too: TCX-LL7
+    rated down to 1500 MHz cannot carry L-band satcom (1660.5 MHz) any more."""
+    from tests.test_history import commit
+
+    repo = tmp_path / "registry"
+    demo_history.make(DEMO, repo)
+    cables = (repo / "cables.yaml").read_text(encoding="utf-8")
+    block = cables[cables.index("  - id: TCX-LL7"):]
+    rated = block[:block.index("max_freq_mhz: 18000") + len("max_freq_mhz: 18000")]
+    commit(repo, "2026-10-01T08:00:00+00:00", "TCX-LL7 re-rated",
+           {"cables.yaml": cables.replace(rated, rated.replace("18000", "1500"))})
+    assert cli.main(["history", "QX-TJB", str(repo), "--format", "json", "--cache", str(tmp_path / "cache")]) == 0
+    last = json.loads(capsys.readouterr().out)["changes"][-1]
+    assert last["kind"] == "shared" and last["positions"] == {} and last["subject"] == "TCX-LL7 re-rated"
+    assert "qx-tjb/SAT/cable-frequency" in {row[0] for row in last["findings"]["appeared"]}
+    assert cli.main(["history", "QX-TJB", str(repo), "--no-findings", "--format", "json"]) == 0
+    assert len(json.loads(capsys.readouterr().out)["changes"]) == 3  # without findings, the aircraft file only

@@ -60,15 +60,17 @@ class Commit(NamedTuple):
 
 
 class Change(NamedTuple):
-    """What one commit did to an aircraft file: `kind` added, changed, removed (the file deleted) or
-    unreadable (`problem` says why); the modification references the file gained; per position what
-    changed ("added", "removed", or the FITTED labels that differ)."""
+    """What one commit did to an aircraft file: `kind` added, changed, removed (the file deleted),
+    unreadable (`problem` says why) or shared (only files it depends on changed); the modification
+    references the file gained; per position what changed ("added", "removed", or the FITTED labels that
+    differ); the other files of the data folder the commit changed, when they were asked for."""
 
     commit: Commit
     kind: str
     mods_added: tuple[str, ...]
     positions: tuple[tuple[str, str], ...]
     problem: str = ""
+    files: tuple[str, ...] = ()
 
 
 class Span(NamedTuple):
@@ -102,19 +104,27 @@ class FleetHistory(NamedTuple):
 
 
 def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_changes: int = MAX_CHANGES,
-                  max_commits: int = MAX_LOG_COMMITS, shown: str = "the data folder") -> FleetHistory:
+                  max_commits: int = MAX_LOG_COMMITS, shown: str = "the data folder",
+                  shared: tuple[str, ...] = ()) -> FleetHistory:
     """Every aircraft file's history from the data folder's git history, in one pass (see the module).
-    Notes name the data folder as `shown`: the site's pages never hold the path it was built from."""
+    Notes name the data folder as `shown`: the site's pages never hold the path it was built from. With
+    `shared` (files the aircraft depend on: the catalogues, the policy), a commit that changed one of them
+    and not the aircraft file is a change of its own ("shared", nothing fitted changes), for `history`'s
+    findings."""
     checkout = git.checkout_of(data_dir, shown)
     if isinstance(checkout, str):
         return FleetHistory({}, f"{NEEDS_GIT}: {checkout}.", frozenset())
-    log = git.first_parent_log(data_dir, list(paths), max_commits + 1)
+    log = git.first_parent_log(data_dir, [*paths, *shared], max_commits + 1)
     if log is None:
         return FleetHistory({}, f"{NEEDS_GIT}: git log failed in {shown}.", frozenset())
-    commits, touched = parse_log(log, checkout.prefix)
+    commits, touched, others = parse_log(log, checkout.prefix)
     whole = len(commits) <= max_commits
     by_file: dict[str, list[tuple[Commit, str, str]]] = defaultdict(list)
     for commit in reversed(commits[:max_commits]):  # oldest first
+        mine = {path for path, _, _ in touched[commit.hash]}
+        for path, steps in by_file.items():
+            if others[commit.hash] and path not in mine and steps[-1][1] != "D":
+                steps.append((commit, "S", ""))
         for path, status, blob in touched[commit.hash]:
             by_file[path].append((commit, status, blob))
     kept = {path: steps[-max_changes:] for path, steps in by_file.items()}
@@ -123,7 +133,8 @@ def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_c
     histories = {}
     for path, steps in sorted(kept.items()):
         cut = checkout.shallow or len(steps) < len(by_file[path]) or (not whole and steps[0][1] != "A")
-        histories[path] = timeline(path, [(commit, status, blobs.get(blob)) for commit, status, blob in steps], cut)
+        histories[path] = timeline(path, [(commit, status, blobs.get(blob), others[commit.hash])
+                                          for commit, status, blob in steps], cut)
     note = ""
     if checkout.shallow:
         note = (f"{NEEDS_GIT} with its whole history: this clone is shallow, so what came before its first "
@@ -138,11 +149,13 @@ def uncommitted_files(data_dir: Path, paths: tuple[str, ...]) -> frozenset[str]:
     return frozenset(line[3:].strip() for line in status.splitlines() if len(line) > 3)
 
 
-def parse_log(log: str, prefix: str) -> tuple[list[Commit], dict[str, list[tuple[str, str, str]]]]:
-    """`git.first_parent_log` output: the commits (newest first) and per commit the aircraft files it
-    touched as (path in the data folder, status A/M/D, blob id after the commit)."""
+def parse_log(log: str, prefix: str) -> tuple[list[Commit], dict[str, list[tuple[str, str, str]]],
+                                              dict[str, tuple[str, ...]]]:
+    """`git.first_parent_log` output: the commits (newest first), per commit the aircraft files it touched
+    as (path in the data folder, status A/M/D, blob id after the commit), and the other files it touched."""
     commits: list[Commit] = []
     touched: dict[str, list[tuple[str, str, str]]] = {}
+    others: dict[str, tuple[str, ...]] = {}
     for record in log.split("\x1e")[1:]:
         head, _, body = record.partition("\n")
         parts = head.split("\x1f", 2)
@@ -151,15 +164,19 @@ def parse_log(log: str, prefix: str) -> tuple[list[Commit], dict[str, list[tuple
         commit = Commit(parts[0], int(parts[1]), parts[2])
         commits.append(commit)
         touched[commit.hash] = []
+        rest = []
         for line in body.splitlines():
             meta, _, path = line.partition("\t")
             fields = meta.split()
             if len(fields) != 5 or not path.startswith(prefix):
                 continue
             inner = path[len(prefix):]
-            if inner.count("/") == 1 and inner.endswith(".yaml"):  # aircraft/<name>.yaml, not its sweeps
-                touched[commit.hash].append((inner, fields[4][:1], fields[3]))
-    return commits, touched
+            if inner.startswith("aircraft/") and inner.count("/") == 1 and inner.endswith(".yaml"):
+                touched[commit.hash].append((inner, fields[4][:1], fields[3]))  # aircraft/<name>.yaml
+            else:
+                rest.append(inner)
+        others[commit.hash] = tuple(sorted(rest))
+    return commits, touched, others
 
 
 def positions_of(raw: bytes | None, shown: str) -> tuple[dict[str, Fitted] | None, tuple[str, ...], str]:
@@ -214,14 +231,18 @@ def value_text(key: str, value: Any) -> str:
     return str(value)
 
 
-def timeline(path: str, steps: list[tuple[Commit, str, bytes | None]], cut: bool) -> AircraftHistory:
-    """An aircraft file's changes and spans from its contents at each commit (oldest first)."""
+def timeline(path: str, steps: list[tuple[Commit, str, bytes | None, tuple[str, ...]]], cut: bool) -> AircraftHistory:
+    """An aircraft file's changes and spans from its contents at each commit (oldest first): status A, M or D,
+    or S for a commit that changed only the shared files named last."""
     changes: list[Change] = []
     spans: list[Span] = []
     open_spans: dict[str, int] = {}  # position -> index in spans
     before: dict[str, Fitted] = {}
     mods_before: tuple[str, ...] = ()
-    for index, (commit, status, raw) in enumerate(steps):
+    for index, (commit, status, raw, files) in enumerate(steps):
+        if status == "S":
+            changes.append(Change(commit, "shared", (), (), files=files))
+            continue
         now, mods, problem = ({}, (), "") if status == "D" else positions_of(raw, f"{commit.short}:{path}")
         kind = "removed" if status == "D" else "unreadable" if now is None else "added" if status == "A" else "changed"
         now = now or {}
@@ -237,7 +258,7 @@ def timeline(path: str, steps: list[tuple[Commit, str, bytes | None]], cut: bool
                 spans.append(Span(position, now[position], index, None))
             moved.append((position, what_changed(before.get(position), now.get(position))))
         gained = tuple(ref for ref in mods if ref not in mods_before)
-        changes.append(Change(commit, kind, gained, tuple(moved), problem))
+        changes.append(Change(commit, kind, gained, tuple(moved), problem, files))
         before = now
         if kind != "unreadable":  # an unreadable file says nothing of its modifications
             mods_before = mods

@@ -52,6 +52,7 @@ def notes(item: AircraftTimeline) -> list[str]:
 def change_line(change: Change) -> str:
     """What a change did, in one line."""
     parts = {"added": ["file added"], "removed": ["file removed: the aircraft left the register"],
+             "shared": [f"only files it depends on changed ({', '.join(change.files)}): nothing fitted changed"],
              "unreadable": [f"file unreadable at this commit: {change.problem}"]}.get(change.kind, [])
     if change.mods_added:
         parts.append("modifications gained: " + ", ".join(change.mods_added))
@@ -95,12 +96,26 @@ def as_text(item: AircraftTimeline) -> str:
     return "\n".join(lines) + "\n"
 
 
+MAX_FINDING_LINES = 12
+"""Findings listed per change on the terminal (JSON lists them all)."""
+MAX_MESSAGE_CHARS = 140
+
+
 def findings_lines(found: ChangeFindings) -> list[str]:
+    """A change's findings, one line each (messages shortened), at most MAX_FINDING_LINES."""
     if found.problem:
         return [f"    findings not compared: {found.problem}"]
-    lines = [f"    finding appeared: [{severity}] {name}: {message}" for name, severity, message in found.appeared]
-    lines += [f"    finding cleared:  [{severity}] {name}: {message}" for name, severity, message in found.cleared]
+    rows = [("appeared:", row) for row in found.appeared] + [("cleared: ", row) for row in found.cleared]
+    lines = [f"    finding {what} [{severity}] {name}: {short(message)}"
+             for what, (name, severity, message) in rows[:MAX_FINDING_LINES]]
+    if len(rows) > MAX_FINDING_LINES:
+        lines.append(f"    ... and {len(rows) - MAX_FINDING_LINES} more ({len(found.appeared)} appeared, "
+                     f"{len(found.cleared)} cleared; --format json lists them all)")
     return lines or ["    findings: none appeared or cleared"]
+
+
+def short(message: str) -> str:
+    return message if len(message) <= MAX_MESSAGE_CHARS else message[:MAX_MESSAGE_CHARS - 1].rstrip() + "…"
 
 
 def on_text(item: AircraftTimeline, day: date) -> str:

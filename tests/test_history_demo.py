@@ -6,6 +6,7 @@ History semantics: common practice, no source."""
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 from pathlib import Path
 
@@ -75,3 +76,22 @@ def test_a_catalogue_change_is_a_change_of_the_aircraft_history(tmp_path, capsys
     assert "qx-tjb/SAT/cable-frequency" in {row[0] for row in last["findings"]["appeared"]}
     assert cli.main(["history", "QX-TJB", str(repo), "--no-findings", "--format", "json"]) == 0
     assert len(json.loads(capsys.readouterr().out)["changes"]) == 3  # without findings, the aircraft file only
+
+
+def test_the_readme_walkthrough_quotes_the_demo_history_as_it_is(tmp_path, capsys):
+    """README.md's "After an incident (history)" quotes commit hashes and output lines of the scripted demo
+    history: they must be what `demo-history` and `history --on` give today."""
+    repo = tmp_path / "registry"
+    demo_history.make(DEMO, repo)
+    readme = (DEMO.parent / "README.md").read_text(encoding="utf-8")
+    section = readme[readme.index("## After an incident (history)"):readme.index("## An auditor's workflow")]
+    hashes = subprocess.run(["git", "-C", str(repo), "log", "--format=%H"], capture_output=True, text=True,
+                            check=True).stdout.split()
+    quoted = set(re.findall(r"\b[0-9a-f]{10}\b", section))
+    assert quoted and quoted <= {full[:10] for full in hashes}, (
+        f"README quotes {sorted(quoted)}; the demo history's commits are now {[full[:10] for full in hashes]} "
+        "(newest first): a change to fleet_data/ changes them, so refresh the README's walkthrough")
+    assert cli.main(["history", "QX-TJB", str(repo), "--on", "2026-09-15"]) == 0
+    out = capsys.readouterr().out
+    sat = next(line for line in section.splitlines() if line.strip().startswith("SAT "))
+    assert sat.strip() in out

@@ -215,12 +215,10 @@ def fitted_of(installation: dict[str, Any]) -> Fitted:
 
 
 def value_text(key: str, value: Any) -> str:
-    """A registry value as short text: numbers with the unit their key names, mappings as their values
-    (STA/BL/WL named), lists joined with semicolons; a `source` (a document's title) is left out."""
+    """A registry value as short text: numbers with the unit their key names, mappings as their members
+    (`member_text`), lists joined with semicolons; a `source` (a document's title) is left out."""
     if isinstance(value, dict):
-        parts = [f"{name.upper()} {value_text(name, item)}" if name in ("sta", "bl", "wl") else value_text(name, item)
-                 for name, item in value.items() if name != "source" and item is not None]
-        return ", ".join(parts)
+        return ", ".join(member_text(name, item) for name, item in value.items() if name != "source" and item is not None)
     if isinstance(value, list):
         return "; ".join(value_text(key, item) for item in value)
     if isinstance(value, bool):
@@ -229,6 +227,20 @@ def value_text(key: str, value: Any) -> str:
     if unit and isinstance(value, (int, float)):
         return f"{value:g} {unit}"
     return str(value)
+
+
+def member_text(name: str, item: Any) -> str:
+    """A mapping's member: text as it is ("TNC", "male"); STA/BL/WL and other numbers and lists named
+    ("STA 250.0", "gain 26.5 dB", "feeds LOC")."""
+    text = value_text(name, item)
+    if name in ("sta", "bl", "wl"):
+        return f"{name.upper()} {text}"
+    if isinstance(item, str):
+        return text
+    words = name
+    for suffix in UNIT_SUFFIXES:
+        words = words.removesuffix(suffix)
+    return f"{words.replace('_', ' ')} {text}"
 
 
 def timeline(path: str, steps: list[tuple[Commit, str, bytes | None, tuple[str, ...]]], cut: bool) -> AircraftHistory:

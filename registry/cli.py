@@ -3,7 +3,7 @@
 Exit codes are decided here and only here:
   0  success (`diff`: the two builds are the same)
   1  open discrepancies of the top severity (`check`); the two builds differ (`diff`)
-  2  data errors or usage errors
+  2  data errors or usage errors (`history`: also an unknown aircraft, or no git history to read)
   3  an internal error (a bug: please report it with the output of --debug)
 Library code never calls sys.exit and never prints; it raises an AerialbookError (core/errors.py),
 which knows its exit code and how it prints. Whatever reaches the terminal from here is cleared of

@@ -46,7 +46,8 @@ def resolve(data_dir: Path, name: str) -> tuple[str, str, str]:
     folder = data_dir / "aircraft"
     if not data_dir.is_dir():
         raise UnknownAircraft(f"{data_dir}: no such folder, expected the registry folder")
-    for path in sorted(folder.glob("*.yaml")):
+    named = folder / f"{name.lower()}.yaml"  # the usual file name first: no need to read the whole fleet
+    for path in [named] * named.is_file() + sorted(folder.glob("*.yaml")):
         doc, _ = parse_yaml(path.read_bytes()[:MAX_BYTES + 1], str(path))
         data = doc.data if doc is not None and isinstance(doc.data, dict) else {}
         if name in (str(data.get("id")), str(data.get("registration"))) or name.lower() == path.stem:

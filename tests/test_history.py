@@ -143,3 +143,12 @@ def test_the_page_shows_each_span(scripted):
     section = page[page.index('id="history"'):page.index('id="findings"')]
     assert section.count("TCA-120-BLD") == 2 and section.count("TCA-122-LP") == 3
     assert "(removed)" in section and "MOD-3: VHF2 out, SAT in" in section
+
+
+def test_a_shallow_clone_is_marked_cut(scripted, tmp_path):
+    shallow = tmp_path / "shallow"
+    subprocess.run(["git", "clone", "-q", "--depth", "1", scripted.as_uri(), str(shallow)], check=True)
+    found = fleet_history(shallow)
+    history = found.aircraft["aircraft/qx-tqa.yaml"]
+    assert history.cut and len(history.changes) == 1 and "shallow" in found.note
+    assert antenna_on(history, date(2026, 7, 1)) == "TCA-122-LP"

@@ -42,8 +42,9 @@ def notes(item: AircraftTimeline) -> list[str]:
     lines = [item.note] if item.note else []
     history = item.history
     if history.cut and history.changes:
-        lines.append(f"history cut: only the newest {len(history.changes)} changes are read; what was fitted "
-                     f"before {history.changes[0].commit.day.isoformat()} had been fitted at or before it.")
+        lines.append(f"history cut: earlier changes are not read (at most the newest {timeline.MAX_CHANGES}, and "
+                     "none before a shallow clone's first commit); what is shown as fitted from "
+                     f"{history.changes[0].commit.day.isoformat()} had been fitted at or before it.")
     if item.uncommitted:
         lines.append(f"{history.path} has changes not committed yet: the history shows committed states only.")
     return lines

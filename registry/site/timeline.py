@@ -7,7 +7,7 @@ from __future__ import annotations
 from typing import Any
 
 from registry.core.model import Aircraft
-from registry.load.history import AircraftHistory, Fitted, what_changed
+from registry.load.history import MAX_CHANGES, AircraftHistory, Fitted, what_changed
 from registry.output.history_text import change_line
 from registry.site.context import SiteData
 
@@ -39,8 +39,8 @@ def timeline_view(data: SiteData, aircraft: Aircraft) -> dict[str, Any] | None:
     if history is None:
         return {"notes": notes, "rows": [], "changes": [], "path": path}
     if history.cut and history.changes:
-        notes.append(f"Only the newest {len(history.changes)} changes are read: a row starting with ≤ began at or "
-                     "before that commit.")
+        notes.append(f"Earlier changes are not read (at most the newest {MAX_CHANGES}, and none before a shallow "
+                     "clone's first commit): a row whose From starts with ≤ began at or before that commit.")
     return {"notes": notes, "path": path, "rows": span_rows(history),
             "changes": [change_view(history, index) for index in reversed(range(len(history.changes)))]}
 

@@ -151,7 +151,7 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
             progress.stage("reading the registry", 1)
             fleet = load(data_dir, cache_root, workers)
             plan = evaluate.prepare(fleet, as_of, cache_root, lazy=True, workers=workers)
-            history = fleet_history(data_dir)  # one git log pass; before the workers fork
+            history = fleet_history(data_dir, cache_root=cache_root)  # one git log pass; before the workers fork
             progress.advance()
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()

@@ -152,3 +152,21 @@ def test_a_shallow_clone_is_marked_cut(scripted, tmp_path):
     history = found.aircraft["aircraft/qx-tqa.yaml"]
     assert history.cut and len(history.changes) == 1 and "shallow" in found.note
     assert antenna_on(history, date(2026, 7, 1)) == "TCA-122-LP"
+
+
+def test_the_cache_gives_the_same_history_and_a_forged_entry_is_read_again(scripted, tmp_path):
+    """Each file content's reading is kept by blob id; an entry of the wrong shape (forged with a valid
+    checksum, since whoever writes the folder can compute it) is a miss, never a wrong timeline."""
+    import json
+
+    from registry.incremental import DiskCache
+
+    plain = fleet_history(scripted)
+    cache = tmp_path / "cache"
+    assert fleet_history(scripted, cache_root=cache) == plain
+    entries = list((cache / "history").rglob("*.entry"))
+    assert len(entries) == 3
+    store = DiskCache(cache, "history", str)
+    for entry in entries:
+        store.put(entry.stem, json.dumps([{"VHF1": [["antenna", 5]]}, [], ""]))
+    assert fleet_history(scripted, cache_root=cache) == plain

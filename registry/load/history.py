@@ -10,11 +10,13 @@ done (the aircraft file's `installed` and modification dates say that).
 """
 from __future__ import annotations
 
+import json
 from collections import defaultdict
 from datetime import date, datetime, timezone
 from pathlib import Path
 from typing import Any, NamedTuple
 
+from registry.incremental import DiskCache, key_of
 from registry.load import git
 from registry.load.yamlsource import MAX_BYTES, parse_yaml
 
@@ -37,6 +39,10 @@ the hardware. Measurements and notes are not what is fitted and are left out."""
 UNIT_SUFFIXES = {"_m": "m", "_db": "dB", "_milliohm": "mΩ", "_mhz": "MHz"}
 Fitted = tuple[tuple[str, str], ...]
 """(label, value as text) of the FITTED fields an installation has, in FITTED's order."""
+Parsed = tuple[dict[str, Fitted] | None, tuple[str, ...], str]
+"""What one aircraft file's content says (`positions_of`): positions (None when unreadable), modification
+references, the problem. Kept in the cache by blob id as JSON text: a fleet's files are read once, not at
+every build."""
 
 
 class Commit(NamedTuple):
@@ -105,12 +111,12 @@ class FleetHistory(NamedTuple):
 
 def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_changes: int = MAX_CHANGES,
                   max_commits: int = MAX_LOG_COMMITS, shown: str = "the data folder",
-                  shared: tuple[str, ...] = ()) -> FleetHistory:
+                  shared: tuple[str, ...] = (), cache_root: Path | None = None) -> FleetHistory:
     """Every aircraft file's history from the data folder's git history, in one pass (see the module).
     Notes name the data folder as `shown`: the site's pages never hold the path it was built from. With
     `shared` (files the aircraft depend on: the catalogues, the policy), a commit that changed one of them
     and not the aircraft file is a change of its own ("shared", nothing fitted changes), for `history`'s
-    findings."""
+    findings. `cache_root`: where each file content's reading is kept (by its blob id)."""
     checkout = git.checkout_of(data_dir, shown)
     if isinstance(checkout, str):
         return FleetHistory({}, f"{NEEDS_GIT}: {checkout}.", frozenset())
@@ -128,18 +134,58 @@ def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_c
         for path, status, blob in touched[commit.hash]:
             by_file[path].append((commit, status, blob))
     kept = {path: steps[-max_changes:] for path, steps in by_file.items()}
-    blobs = git.read_blobs(checkout.top, sorted({blob for steps in kept.values() for _, status, blob in steps
-                                                 if status != "D"}), MAX_BYTES)
+    parsed = read_contents(checkout.top, {blob for steps in kept.values() for _, status, blob in steps
+                                          if status != "D"}, cache_root)
     histories = {}
     for path, steps in sorted(kept.items()):
         cut = checkout.shallow or len(steps) < len(by_file[path]) or (not whole and steps[0][1] != "A")
-        histories[path] = timeline(path, [(commit, status, blobs.get(blob), others[commit.hash])
+        histories[path] = timeline(path, [(commit, status, parsed.get(blob), others[commit.hash])
                                           for commit, status, blob in steps], cut)
     note = ""
     if checkout.shallow:
         note = (f"{NEEDS_GIT} with its whole history: this clone is shallow, so what came before its first "
                 "commit is unknown (git fetch --unshallow).")
     return FleetHistory(histories, note, uncommitted_files(data_dir, paths))
+
+
+def read_contents(top: Path, blob_ids: set[str], cache_root: Path | None) -> dict[str, Parsed]:
+    """Each blob's reading (`positions_of`): from the cache, else from one `git cat-file --batch` of the
+    rest, parsed and kept."""
+    cache = DiskCache(cache_root, "history", str)  # JSON text: read back in C, then checked (`from_json`)
+    found: dict[str, Parsed] = {}
+    for blob in sorted(blob_ids):
+        kept = from_json(cache.get(key_of("history-blob", blob)))
+        if kept is not None:
+            found[blob] = kept
+    missing = sorted(blob_ids - set(found))
+    raw = git.read_blobs(top, missing, MAX_BYTES)
+    for blob in missing:
+        found[blob] = positions_of(raw.get(blob), blob[:10])
+        if blob in raw:
+            cache.put(key_of("history-blob", blob), json.dumps(found[blob], ensure_ascii=False))
+    return found
+
+
+def from_json(text: str | None) -> Parsed | None:
+    """A reading kept as JSON, or None when there is none or it is not of the shape `Parsed` (a damaged or
+    forged cache entry is a miss)."""
+    try:
+        fitted, mods, problem = json.loads(text) if text is not None else (None, None, None)
+    except (ValueError, TypeError):
+        return None
+    if not isinstance(problem, str) or not isinstance(mods, list) or not all(isinstance(m, str) for m in mods):
+        return None
+    if fitted is None:
+        return None, tuple(mods), problem
+    if not isinstance(fitted, dict):
+        return None
+    positions = {}
+    for position, pairs in fitted.items():
+        if not isinstance(pairs, list) or not all(isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str)
+                                                  and isinstance(pair[1], str) for pair in pairs):
+            return None
+        positions[position] = tuple((label, value) for label, value in pairs)
+    return positions, tuple(mods), problem
 
 
 def uncommitted_files(data_dir: Path, paths: tuple[str, ...]) -> frozenset[str]:
@@ -243,19 +289,19 @@ def member_text(name: str, item: Any) -> str:
     return f"{words.replace('_', ' ')} {text}"
 
 
-def timeline(path: str, steps: list[tuple[Commit, str, bytes | None, tuple[str, ...]]], cut: bool) -> AircraftHistory:
-    """An aircraft file's changes and spans from its contents at each commit (oldest first): status A, M or D,
-    or S for a commit that changed only the shared files named last."""
+def timeline(path: str, steps: list[tuple[Commit, str, Parsed | None, tuple[str, ...]]], cut: bool) -> AircraftHistory:
+    """An aircraft file's changes and spans from what its content said at each commit (oldest first):
+    status A, M or D, or S for a commit that changed only the shared files named last."""
     changes: list[Change] = []
     spans: list[Span] = []
     open_spans: dict[str, int] = {}  # position -> index in spans
     before: dict[str, Fitted] = {}
     mods_before: tuple[str, ...] = ()
-    for index, (commit, status, raw, files) in enumerate(steps):
+    for index, (commit, status, reading, files) in enumerate(steps):
         if status == "S":
             changes.append(Change(commit, "shared", (), (), files=files))
             continue
-        now, mods, problem = ({}, (), "") if status == "D" else positions_of(raw, f"{commit.short}:{path}")
+        now, mods, problem = ({}, (), "") if status == "D" else reading or positions_of(None, path)
         kind = "removed" if status == "D" else "unreadable" if now is None else "added" if status == "A" else "changed"
         now = now or {}
         moved = []

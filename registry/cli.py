@@ -3,7 +3,7 @@
 Exit codes are decided here and only here:
   0  success (`diff`: the two builds are the same)
   1  open discrepancies of the top severity (`check`); the two builds differ (`diff`)
-  2  data errors or usage errors
+  2  data errors or usage errors (`history`: also an unknown aircraft, or no git history to read)
   3  an internal error (a bug: please report it with the output of --debug)
 Library code never calls sys.exit and never prints; it raises an AerialbookError (core/errors.py),
 which knows its exit code and how it prints. Whatever reaches the terminal from here is cleared of
@@ -36,7 +36,35 @@ def make_parser() -> argparse.ArgumentParser:
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
     add_check_and_build(commands)
     add_serve_and_diff(commands)
+    add_history(commands)
     return parser
+
+
+def add_history(commands) -> None:
+    """The `history` and `demo-history` commands' arguments."""
+    history = commands.add_parser(
+        "history", help="what an aircraft carried, from the registry's git history",
+        description="An aircraft's changes (mainline commits of its file: date, commit, subject, modifications "
+                    "gained, positions changed, findings that appeared or cleared) and each position's antenna, "
+                    "feeder and hardware from which commit to which. Exit 0 on success, 2 when the aircraft is "
+                    "unknown or the data folder's git history cannot be read (a one-line note says why).")
+    history.add_argument("aircraft", metavar="AIRCRAFT", help="aircraft id or registration")
+    history.add_argument("data_dir", nargs="?", default="fleet_data", metavar="DATA_DIR",
+                         help="registry folder in a git checkout (default: fleet_data)")
+    history.add_argument("--on", metavar="YYYY-MM-DD",
+                         help="what was fitted on this date: the state after the last commit on or before it")
+    history.add_argument("--format", choices=("text", "json"), default="text", help="output format (default: text)")
+    history.add_argument("--no-findings", action="store_true",
+                         help="leave out the findings that appeared or cleared at each change (much faster)")
+    history.add_argument("--cache", metavar="DIR", help="check's cache folder (default: as check)")
+    history.add_argument("--no-cache", action="store_true", help="compute the findings afresh, keep nothing")
+    demo = commands.add_parser(
+        "demo-history", help="write the demo registry with a short scripted git history into a new folder",
+        description="Creates OUT_DIR as a fresh git repository holding the demo registry, committed in a few "
+                    "steps with fixed dates and author (the same commits every time), for trying `history`.")
+    demo.add_argument("out_dir", metavar="OUT_DIR", help="folder to create (must not exist or be empty)")
+    demo.add_argument("--from", dest="source", default="fleet_data", metavar="DATA_DIR",
+                      help="the demo registry to start from (default: fleet_data)")
 
 
 def add_check_and_build(commands) -> None:
@@ -126,6 +154,12 @@ def main(argv: list[str]) -> int:
 def run(args: argparse.Namespace) -> int:
     if args.command == "diff":
         return run_diff(args)
+    if args.command == "history":
+        return run_history(args)
+    if args.command == "demo-history":
+        from registry import demo_history
+        print(terminal_text(demo_history.make(Path(args.source), Path(args.out_dir))))
+        return EXIT_OK
     from registry import pipeline
 
     if args.command == "serve":
@@ -228,6 +262,28 @@ def run_diff(args: argparse.Namespace) -> int:
     sys.stdout.write(json_for_terminal(compare_text.as_json(comparison)) if args.format == "json"
                      else terminal_text(compare_text.as_text(comparison)))
     return EXIT_OK if comparison.same else EXIT_DIFFERENT
+
+
+def run_history(args: argparse.Namespace) -> int:
+    from datetime import date
+
+    from registry import history
+    from registry.output import history_text
+
+    try:
+        day = date.fromisoformat(args.on) if args.on else None
+    except ValueError:
+        print(terminal_text(f"error: history: --on: found {args.on!r}, expected a date YYYY-MM-DD"), file=sys.stderr)
+        return EXIT_DATA
+    cache_dir = None if args.no_cache else Path(args.cache or os.environ.get("AERIALBOOK_CACHE_DIR")
+                                               or ".aerialbook-cache")
+    item = history.aircraft_timeline(Path(args.data_dir), args.aircraft,
+                                     with_findings=not args.no_findings and day is None, cache_dir=cache_dir)
+    if args.format == "json":
+        sys.stdout.write(json_for_terminal(history_text.as_json(item, day)))
+    else:
+        sys.stdout.write(terminal_text(history_text.on_text(item, day) if day else history_text.as_text(item)))
+    return EXIT_OK
 
 
 def run_registry(*args, **kwargs):

@@ -23,6 +23,7 @@ from registry.site.info import build_info
 from registry.incremental import DiskCache, collector_paused, collector_released, prune, site_key, version_folder
 from registry.load.fleet import load_fleet
 from registry.load.git import as_of_date
+from registry.load.history import FleetHistory, fleet_history
 from registry.core.model import Fleet, Review
 from registry.core.progress import QUIET, Progress
 from registry.core.results import Discrepancy, FleetResults
@@ -69,13 +70,13 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
 
 
 def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incremental: render.Incremental,
-                        write, workers: int, progress: Progress):
+                        write, workers: int, progress: Progress, history: FleetHistory):
     """Compute, check and render each aircraft in one go, in the worker that computed it: its full
     figures never cross between processes or through the cache. Possible without a comparison, since
     then an aircraft's pages show nothing of the other aircraft."""
     fleet = plan.fleet
     site = render.start_site(fleet, plan.results, info, None, plots.PlotStore(cache_root), incremental,
-                             write, workers, plan.model_patterns)
+                             write, workers, plan.model_patterns, history)
 
     def pages(aircraft, part, summary):
         return site.aircraft.render_fresh(aircraft, part,
@@ -92,7 +93,8 @@ def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incr
 
 
 def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache_root: Path | None, naive: bool,
-                         incremental: render.Incremental, write, workers: int, progress: Progress):
+                         incremental: render.Incremental, write, workers: int, progress: Progress,
+                         history: FleetHistory):
     """Compute and check the whole fleet, then start the site: the comparison with `baseline` needs every
     aircraft's record before any page can be rendered."""
     fleet = plan.fleet
@@ -105,7 +107,7 @@ def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache
         comparison = compare(baseline.record, json.loads(record.to_text(outcome)), old_label=baseline.label,
                              new_label=f"registry {fleet.data_dir}")
     site = render.start_site(fleet, results, info, comparison, plots.PlotStore(cache_root, naive), incremental,
-                             write, workers)
+                             write, workers, history=history)
     return outcome, site, {}
 
 
@@ -149,6 +151,7 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
             progress.stage("reading the registry", 1)
             fleet = load(data_dir, cache_root, workers)
             plan = evaluate.prepare(fleet, as_of, cache_root, lazy=True, workers=workers)
+            history = fleet_history(data_dir, cache_root=cache_root)  # one git log pass; before the workers fork
             progress.advance()
         with publish.staging_dir(out_dir) as stage:
             target = out_dir.resolve()
@@ -158,10 +161,10 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
 
             if baseline is None and not naive:
                 outcome, site, pieces = _compute_and_render(plan, info, cache_root, incremental, write, workers,
-                                                            progress)
+                                                            progress, history)
             else:
                 outcome, site, pieces = _compute_then_render(plan, info, baseline, cache_root, naive, incremental,
-                                                             write, workers, progress)
+                                                             write, workers, progress, history)
             publish.place_chunks(stage, target, record.RECORD_NAME, record.to_chunks(outcome))
             outcome.results.records.clear()  # written: not held twice
             pages = render.finish_site(site, outcome.discrepancies, pieces, workers, progress)

@@ -94,6 +94,14 @@ def read_yaml(file: Path, shown: str) -> tuple[YamlDoc | None, list[Problem]]:
     if len(raw) > MAX_BYTES:
         return None, [Problem.at(top, FILE_FIELD, f"a file of {max(size, len(raw))} bytes",
                                  f"at most {MAX_BYTES} bytes ({MAX_BYTES // 1024 // 1024} MiB)")]
+    return parse_yaml(raw, shown)
+
+
+def parse_yaml(raw: bytes, shown: str) -> tuple[YamlDoc | None, list[Problem]]:
+    """`read_yaml` of content already read (at most MAX_BYTES), e.g. a file at an earlier git revision."""
+    top = Src(shown, 1, 1)
+    if len(raw) > MAX_BYTES:
+        return None, [Problem.at(top, FILE_FIELD, f"a file of {len(raw)} bytes", f"at most {MAX_BYTES} bytes")]
     text, problem = _decode(raw, shown)
     if problem:
         return None, [problem]

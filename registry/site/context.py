@@ -13,6 +13,7 @@ from markupsafe import Markup
 
 from registry.output.comparison import Comparison
 from registry.core.model import Fleet
+from registry.load.history import FleetHistory
 from registry.core.results import Discrepancy, Figure, FleetResults
 from registry.check.reviews import finding_order
 from registry.site.format import fmt
@@ -69,6 +70,8 @@ class SiteData:
     pattern_alts: Mapping[str, str]         # pattern plot path -> alt text
     src_prefixes: tuple[str, ...]
     figure_cells: FigureCells
+    history: FleetHistory | None = None
+    """Each aircraft file's history from the data folder's git history (`load.history`); None when not read."""
 
     def src_text(self, text: str) -> str:
         """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
@@ -118,7 +121,7 @@ def patterns_by_model(fleet: Fleet, results: FleetResults) -> dict[str, set[str]
 
 def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo,
               comparison: Comparison | None, env: jinja2.Environment, model_patterns: dict[str, set[str]],
-              pattern_alts: dict[str, str]) -> SiteData:
+              pattern_alts: dict[str, str], history: FleetHistory | None = None) -> SiteData:
     """The pages' context, with the lookups made once."""
     reviews_of: dict[str, list] = defaultdict(list)
     for name, review in fleet.reviews.items():
@@ -130,7 +133,7 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
     data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
     return SiteData(fleet=fleet, results=results, discrepancies=ordered, build=build, comparison=comparison,
                     by_position=by_position, by_aircraft=by_aircraft, reviews_of=reviews_of, model_patterns=model_patterns,
-                    pattern_alts=pattern_alts, figure_cells=FigureCells(env),
+                    pattern_alts=pattern_alts, figure_cells=FigureCells(env), history=history,
                     src_prefixes=(data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/",
                                   PACKAGE_PREFIX))
 

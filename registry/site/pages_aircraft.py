@@ -21,6 +21,7 @@ from registry.site.paths import aircraft_path, anchor, installation_path, root_o
 from registry.site.views import (discrepancy_view, feeder_breakdown, figure_groups, installation_row, pattern_view,
                                  severity_matrix)
 from registry.site.technician import technician_card
+from registry.site.timeline import timeline_view
 
 Pairs = Mapping[tuple[str, str], list[PairResult]]
 """Co-site pairs by (aircraft id, position), each list ordered by the pair's positions."""
@@ -75,6 +76,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 matrix=severity_matrix(items), src=data.model_src(aircraft),
                 shape={"text": shape_text(airframe), "assumptions": shape_of(airframe).assumptions},
+                timeline=timeline_view(data, aircraft),
                 change_marks=data.marks(aircraft.id), change_anchor="aircraft",
                 status_kinds=("unserviceable", "query", "note", "clear"))
 

@@ -24,6 +24,7 @@ from registry.site.changes import changes_page
 from registry.incremental import DiskCache, key_of
 from registry.core.progress import QUIET, Progress
 from registry.core.model import Aircraft, Fleet
+from registry.load.history import FleetHistory
 from registry.core.results import AircraftPart, Discrepancy, FleetResults, PairResult
 from registry.check.reviews import finding_order
 from registry.site.context import (AircraftPieces, SiteData, patterns_by_model, place_findings,
@@ -63,15 +64,17 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
                 plot_store: plots.PlotStore | None = None,
                 incremental: Incremental | None = None,
                 writer: FileWriter | None = None, workers: int = 1,
-                progress: Progress = QUIET) -> dict[str, str | bytes]:
+                progress: Progress = QUIET, history: FleetHistory | None = None) -> dict[str, str | bytes]:
     """Every file of the site, keyed by its path relative to the site root. With a `comparison` to an
     earlier build, the site also gets a changes page and each changed page a mark. Plots come from
     `plot_store` (drawn once per content; kept on disk when the store has a cache folder). With
     `incremental`, an aircraft whose pages would come out as in the previous build is not rendered
     again: its files are given as REUSE. With a `writer` and several `workers`, the aircraft pages are
     rendered in forked processes that hand each file straight to `writer(path, content)`; the returned
-    dict then holds the other files only."""
-    site = start_site(fleet, results, build_info, comparison, plot_store, incremental, writer, workers)
+    dict then holds the other files only. `history`: the aircraft files' git history for the aircraft
+    pages' timelines (`load.history.fleet_history`)."""
+    site = start_site(fleet, results, build_info, comparison, plot_store, incremental, writer, workers,
+                      history=history)
     return finish_site(site, discrepancies, {}, workers, progress)
 
 
@@ -90,7 +93,7 @@ class SiteRun:
 def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, comparison: Comparison | None = None,
                plot_store: plots.PlotStore | None = None, incremental: Incremental | None = None,
                writer: FileWriter | None = None, workers: int = 1,
-               model_patterns: dict[str, set[str]] | None = None) -> SiteRun:
+               model_patterns: dict[str, set[str]] | None = None, history: FleetHistory | None = None) -> SiteRun:
     """What the pages share, made once: the environment, the pattern plots (every pattern must be in
     `results.patterns`; `model_patterns` gives each antenna model's, when not every aircraft has its
     figures or summary yet), the static files. The aircraft pages can be rendered from here on, one by
@@ -103,7 +106,7 @@ def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, compa
     model_patterns = patterns_by_model(fleet, results) if model_patterns is None else model_patterns
     patterns = plot_files.pattern_plots(results, model_patterns, store, workers)
     data = site_data(fleet, results, [], build_info, comparison, env, model_patterns,
-                     {path: drawn.alt for path, drawn in patterns.items()})
+                     {path: drawn.alt for path, drawn in patterns.items()}, history)
     put = Renderer(env, shared_context(data), store)
     files: dict[str, str | bytes] = dict(static_files())
     files.update((path, drawn.svg) for path, drawn in patterns.items())
@@ -291,6 +294,16 @@ class AircraftRun:
         reviews = [repr(review) for review in self.data.reviews_of.get(aircraft.id, ())]
         marks = [self.data.marks(aircraft.id)] + [self.data.marks(aircraft.id, p) for p in aircraft.installations]
         # key_of holds the templates and the code (diskcache.code_key): a changed template renders every page
-        key = key_of(figures_key, *reviews, repr(marks), str(self.data.comparison is not None))
+        key = key_of(figures_key, *reviews, repr(marks), str(self.data.comparison is not None),
+                     history_key(self.data, aircraft))
         self.page_keys[aircraft.id] = key
         return key
+
+
+def history_key(data: SiteData, aircraft: Aircraft) -> str:
+    """What an aircraft page's timeline shows, for its page key."""
+    history = data.history
+    if history is None:
+        return "no history read"
+    path = data.src_text(aircraft.src.path)
+    return repr((history.aircraft.get(path), history.note, path in history.uncommitted))

@@ -10,6 +10,7 @@ A sweep that is not valid Touchstone is left to the compute stage, which says so
 """
 from __future__ import annotations
 
+from functools import lru_cache
 from pathlib import Path
 
 import numpy as np
@@ -23,8 +24,14 @@ MAX_FREQ_HZ = 300_000e6
 
 
 def sweep_trouble(file: Path) -> tuple[str, str] | None:
-    """What is wrong with the sweep file at `file` (found, expected), or None when it may be used."""
-    size = file.stat().st_size
+    """What is wrong with the sweep file at `file` (found, expected), or None when it may be used. A file
+    many installations name is read once per process while its size and modification time stay."""
+    info = file.stat()
+    return _trouble(file.resolve(), info.st_size, info.st_mtime_ns)
+
+
+@lru_cache(maxsize=256)
+def _trouble(file: Path, size: int, mtime_ns: int) -> tuple[str, str] | None:
     if size > MAX_SWEEP_BYTES:
         return (f"a sweep file of {size} bytes",
                 f"at most {MAX_SWEEP_BYTES} bytes ({MAX_SWEEP_BYTES // 1024 // 1024} MiB) per sweep")

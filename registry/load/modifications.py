@@ -67,8 +67,9 @@ def check(mods: list[FleetModification], known: Catalogue) -> list[Problem]:
         for item in mod.effectivity:
             first = seen.setdefault(item.aircraft, item)
             if first is not item:
-                problems.append(problem(item, item.named.split()[0], f"{item.named} again (the aircraft of line "
-                                        f"{first.src.line})", "each aircraft once per modification"))
+                key, named = item.named.split(" ", 1)
+                problems.append(problem(item, key, f"'{named}' again (the same aircraft as line {first.src.line})",
+                                        "each aircraft once per modification"))
             if item.state == "planned" and item.date is not None:
                 problems.append(problem(item, "date", "a date embodied on a planned modification",
                                         "no date while planned (give the planned date as 'due')"))

@@ -63,6 +63,7 @@ def test_the_file_is_built_with_aircraft_by_registration_or_serial(tmp_path):
 def test_without_the_file_nothing_is_compared(tmp_path):
     data = tmp_path / "registry"
     shutil.copytree(FIXTURES / "good", data)
+    (data / "modifications.yaml").unlink()
     fleet = load_fleet(data, SHIPPED)
     assert fleet.modifications == ()
     assert effectivity_discrepancies(fleet, fleet.aircraft["qx-fca"]) == []
@@ -173,3 +174,13 @@ def test_the_fleet_overview_shows_each_modification_where_embodied_planned_and_d
     mods = aircraft[aircraft.index('id="modifications"'):aircraft.index('id="findings"')]
     assert re.search(r"due 2027-01-20.*MOD-2019-011.*planned", mods, re.S)
     assert re.search(r"2026-09-14.*MOD-2026-031.*embodied", mods, re.S)
+
+
+def test_an_aircraft_file_that_cannot_be_read_is_reported_once(tmp_path):
+    from registry.core.errors import DataError
+
+    data = registry_with(tmp_path, CORRECT)
+    (data / "aircraft" / "qx-fcb.yaml").write_text("id: qx-fcb\nregistration: [QX-FCB\n", encoding="utf-8")
+    with pytest.raises(DataError) as caught:
+        load_fleet(data, SHIPPED)
+    assert [problem.src.path.endswith("qx-fcb.yaml") for problem in caught.value.problems] == [True]

@@ -221,14 +221,18 @@ class _Run:
     def modifications(self, doc: build.Doc | None, aircraft: list[Aircraft], antennas: list[AntennaModel] | None,
                       services: list[Service] | None) -> list:
         """The fleet's modifications file built and checked (none without the file); aircraft files with
-        problems are still named (`partial`), so a modification naming one is not refused as well."""
+        problems are still named (`partial`)."""
         if doc is None:
             return []
-        mods, problems = modifications.build(doc, aircraft + self.partial)
+        mods, unknown = modifications.build(doc, aircraft + self.partial)
         known = integrity.Catalogue(airframes=None, cables=None,
                                     antennas=None if antennas is None else {item.id for item in antennas},
                                     services=None if services is None else {item.id for item in services})
-        self.problems += problems + modifications.check(mods, known)
+        # with a problem in the aircraft files the registrations are a guess (a file not read, a mark written
+        # twice): that problem is reported, an aircraft the modifications name is not reported again
+        folder = str(self.data_dir / "aircraft")
+        guess = any(problem.path.startswith(folder) for problem in self.problems)
+        self.problems += ([] if guess else unknown) + modifications.check(mods, known)
         return mods
 
 

@@ -50,7 +50,7 @@ def test_the_effectivity_plant_is_found_and_correcting_the_record_clears_it(tmp_
     # the fix: the kit is only planned on QX-TCE, and its aircraft file no longer lists it
     mods = (data / "modifications.yaml").read_text(encoding="utf-8")
     (data / "modifications.yaml").write_text(mods.replace(
-        "{registration: QX-TCE, state: embodied, date: 2026-11-24}", "{registration: QX-TCE, state: planned}"),
+        "{serial: \"4460\", state: embodied, date: 2026-11-24}", "{serial: \"4460\", state: planned}"),
         encoding="utf-8")
     own = (data / "aircraft" / "qx-tce.yaml").read_text(encoding="utf-8")
     entry = own[own.index("  - ref: MOD-2018-006"):own.index("installations:")]

@@ -116,7 +116,7 @@ def test_removed_aircraft_pages_disappear(tmp_path):
     mods = data / "modifications.yaml"  # an aircraft that leaves the register leaves the modifications' effectivity
     kept = yaml.safe_load(mods.read_text(encoding="utf-8"))
     for mod in kept["modifications"]:
-        mod["effectivity"] = [entry for entry in mod["effectivity"] if entry.get("registration") != "QX-TCE"]
+        mod["effectivity"] = [entry for entry in mod["effectivity"] if entry.get("serial") != "4460"]  # QX-TCE
     kept["modifications"] = [mod for mod in kept["modifications"] if mod["effectivity"]]
     mods.write_text(yaml.safe_dump(kept, sort_keys=False), encoding="utf-8")
     reviews = data / "reviews.yaml"

@@ -184,3 +184,17 @@ def test_an_aircraft_file_that_cannot_be_read_is_reported_once(tmp_path):
     with pytest.raises(DataError) as caught:
         load_fleet(data, SHIPPED)
     assert [problem.src.path.endswith("qx-fcb.yaml") for problem in caught.value.problems] == [True]
+
+
+def test_hostile_text_in_a_modification_title_is_escaped(tmp_path, monkeypatch):
+    from registry import pipeline
+
+    monkeypatch.setattr(registry.load.fleet, "SHIPPED_DIR", SHIPPED)
+    data = registry_with(tmp_path, CORRECT.replace(
+        "title: Second VHF communication antenna moved aft.",
+        "title: \"<script>alert(1)</script><img src=x onerror=alert(2)>\""))
+    pipeline.build(data, tmp_path / "site", cache_dir=None, workers=1)
+    for page in ("index.html", "aircraft/qx-fcb.html"):
+        html = (tmp_path / "site" / page).read_text(encoding="utf-8")
+        assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html, page
+        assert "<img src=x" not in html and "<script>alert" not in html

@@ -45,15 +45,45 @@ class ModState(NamedTuple):
     disagreement: str                 # "" when the two records agree
 
 
+class _Index(NamedTuple):
+    """The fleet's modifications by aircraft id (with the state there) and by reference."""
+
+    made_of: tuple
+    by_aircraft: dict[str, list[tuple[FleetModification, Embodiment]]]
+    by_ref: dict[str, FleetModification]
+
+
+_INDEX = [_Index((), {}, {})]
+"""The last fleet's index (one fleet a run; forked workers inherit it)."""
+
+
+def _index(fleet: Fleet) -> _Index:
+    """Made once per fleet, so a fleet of a thousand aircraft and as many modifications is not scanned again
+    for each aircraft."""
+    if _INDEX[0].made_of is not fleet.modifications:
+        by_aircraft: dict[str, list] = {}
+        for mod in fleet.modifications:
+            for entry in mod.effectivity:
+                by_aircraft.setdefault(entry.aircraft, []).append((mod, entry))
+        _INDEX[0] = _Index(fleet.modifications, by_aircraft, {mod.ref: mod for mod in fleet.modifications})
+    return _INDEX[0]
+
+
+def applying_to(fleet: Fleet, aircraft_id: str) -> list[tuple[FleetModification, Embodiment]]:
+    """The modifications that name the aircraft, each with its state there, in the file's order."""
+    return _index(fleet).by_aircraft.get(aircraft_id, [])
+
+
 def aircraft_modifications(fleet: Fleet, aircraft: Aircraft) -> list[ModState]:
-    """Every modification of the aircraft: those its own file records and those the fleet's file applies to it,
-    newest first (planned ones without a date first)."""
+    """Every modification of the aircraft: those its own file records and those the fleet's file applies to it;
+    those still to come (no date) first, then the dated ones newest first."""
     recorded = {mod.ref: mod for mod in aircraft.modifications}
-    described = {mod.ref: mod for mod in fleet.modifications}
+    named = {mod.ref: (mod, entry) for mod, entry in applying_to(fleet, aircraft.id)}
+    described = _index(fleet).by_ref
     states = []
-    for ref in sorted(set(recorded) | {mod.ref for mod in fleet.modifications if mod.on(aircraft.id)}):
+    for ref in sorted(set(recorded) | set(named)):
         own, mod = recorded.get(ref), described.get(ref)
-        entry = mod.on(aircraft.id) if mod else None
+        entry = named[ref][1] if ref in named else None
         if mod is None:
             states.append(ModState(ref, own.summary, "recorded", own.date, None, own, None, ""))
             continue
@@ -61,7 +91,7 @@ def aircraft_modifications(fleet: Fleet, aircraft: Aircraft) -> list[ModState]:
         when = entry.date if entry and entry.date else (own.date if own else None)
         states.append(ModState(ref, mod.title, state, when, entry.due if entry else None, own, mod,
                                _disagreement(own, entry)))
-    return sorted(states, key=lambda s: (s.date is not None, s.date or date.min, s.ref), reverse=True)
+    return sorted(states, key=lambda s: (s.date is None, s.date or date.min, s.ref), reverse=True)
 
 
 def _disagreement(own: Modification | None, entry: Embodiment | None) -> str:
@@ -95,8 +125,7 @@ def effectivity_discrepancies(fleet: Fleet, aircraft: Aircraft) -> list[Discrepa
 def expected_positions(fleet: Fleet, aircraft: Aircraft) -> dict[str, tuple]:
     """Each position an embodied modification touches on the aircraft → (the latest such modification, its
     embodiment, the change, True if it adds the position); later embodiments replace earlier ones."""
-    embodied = sorted(((mod, mod.on(aircraft.id)) for mod in fleet.modifications
-                       if mod.on(aircraft.id) and mod.on(aircraft.id).state == "embodied"),
+    embodied = sorted(((mod, entry) for mod, entry in applying_to(fleet, aircraft.id) if entry.state == "embodied"),
                       key=lambda pair: (pair[1].date, pair[0].ref))
     positions: dict[str, tuple] = {}
     for mod, entry in embodied:

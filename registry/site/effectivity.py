@@ -28,14 +28,16 @@ def fleet_modification_views(data: SiteData) -> list[dict[str, Any]]:
     the aircraft it names, then any whose own file lists it without being named."""
     fleet = data.fleet
     owners: dict[tuple[str, str], str] = {}  # (aircraft, position) → the ref whose embodiment decides it
+    recorded: dict[str, list[str]] = {}       # ref → the aircraft whose own file lists it
     for craft in fleet.aircraft.values():
         owners.update(((craft.id, position), mod.ref)
                       for position, (mod, *_) in expected_positions(fleet, craft).items())
+        for own in craft.modifications:
+            recorded.setdefault(own.ref, []).append(craft.id)
     views = []
     for mod in fleet.modifications:
         named = [item.aircraft for item in mod.effectivity]
-        extra = [craft.id for craft in fleet.aircraft.values()
-                 if craft.id not in named and any(own.ref == mod.ref for own in craft.modifications)]
+        extra = [aircraft_id for aircraft_id in dict.fromkeys(recorded.get(mod.ref, ())) if aircraft_id not in named]
         rows = [_row(data, mod, fleet.aircraft[aircraft_id], owners) for aircraft_id in named + extra]
         views.append({
             "ref": mod.ref, "title": mod.title, "anchor": anchor(f"mod-{mod.ref}"),

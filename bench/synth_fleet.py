@@ -14,6 +14,8 @@ one of the demo's airframe types and built from that type's demo aircraft:
   they are well clear of every other antenna (further still from one the policy wants isolated);
 * per-aircraft variation: a choice among the sound demo variants of each position, small STA/BL shifts,
   feeder lengths within a few percent, fresh measured VSWR and dates, delivery and modification dates;
+* a fleet modifications file (`modifications.yaml`): each modification reference the aircraft record, embodied
+  where recorded with the installations its package fitted, planned on one more aircraft (no finding);
 * planted faults, a seeded fraction of all installations, cycling through three kinds: a long feeder
   (feeder-loss), an old measurement (measurement-age) and a wrong cable (cable-frequency or
   impedance-match). `generate` returns them so a test can look for each one.
@@ -555,6 +557,34 @@ def copy_catalogues(demo_dir: Path, out_dir: Path, sweeps: set[str]) -> None:
     (out_dir / "reviews.yaml").write_text(dump({"reviews": []}, "reviews", 1), encoding="utf-8")
 
 
+def modifications_doc(docs: list[dict], plans: dict) -> dict:
+    """The fleet's modifications file for the synthetic aircraft: each reference their files record, embodied
+    on every aircraft that records it (at its date) with the installations its package fitted there, those
+    every such aircraft carries alike (so a correct register raises nothing), and planned on the next aircraft
+    that does not record it. Sorted by reference, so the same fleet always writes the same file."""
+    refs: dict[str, dict] = {}
+    for doc in docs:
+        plan = plans[doc["airframe"]]
+        for mod in doc.get("modifications", []):
+            package = next(name for name, text in PACKAGES.items() if text == mod["summary"])
+            fitted = {(item["position"], item["service"], item["antenna"])
+                      for (kind, spec), item in zip(plan, doc["installations"])
+                      if kind == "extra" and spec[0].package == package}
+            entry = refs.setdefault(mod["ref"], {"title": mod["summary"], "adds": fitted, "effectivity": []})
+            entry["adds"] = entry["adds"] & fitted
+            entry["effectivity"].append({"registration": doc["registration"], "state": "embodied", "date": mod["date"]})
+    registrations = [doc["registration"] for doc in docs]
+    mods = []
+    for ref, entry in sorted(refs.items()):
+        named = {item["registration"] for item in entry["effectivity"]}
+        spare = next((reg for reg in registrations if reg not in named), None)
+        planned = [{"registration": spare, "state": "planned"}] if spare else []
+        mods.append({"ref": ref, "title": entry["title"],
+                     "adds": [{"position": p, "service": s, "antenna": a} for p, s, a in sorted(entry["adds"])],
+                     "effectivity": entry["effectivity"] + planned})
+    return {"modifications": mods}
+
+
 def generate(n_aircraft: int, out_dir: Path | str, seed: int = DEFAULT_SEED,
              installations: int = DEFAULT_INSTALLATIONS, fault_rate: float = DEFAULT_FAULT_RATE,
              demo_dir: Path | str = DEMO_DIR) -> Generated:
@@ -590,6 +620,8 @@ def generate(n_aircraft: int, out_dir: Path | str, seed: int = DEFAULT_SEED,
     copy_catalogues(demo_dir, out_dir, used_sweeps)
     for doc in docs:
         (out_dir / "aircraft" / f"{doc['id']}.yaml").write_text(dump(doc, "aircraft", 2), encoding="utf-8")
+    (out_dir / "modifications.yaml").write_text(dump(modifications_doc(docs, plans), "modifications", 1),
+                                                encoding="utf-8")
     return Generated(out_dir, [doc["id"] for doc in docs], sum(len(doc["installations"]) for doc in docs), faults)
 
 

@@ -122,7 +122,7 @@ def test_audit_page_lists_ids_review_dates_and_registry_links(built):
     assert '<code class="fid-text">qx-tce/<wbr>MKR/<wbr>impedance-match</code>' in html  # breaks, copies whole
     assert '<time datetime="2026-11-20">2026-11-20</time>' in html
     row = html.split('data-id="qx-tce/MKR/impedance-match"', 1)[1].split("</tr>", 1)[0]
-    assert 'href="registry/aircraft/qx-tce.yaml.html#L77"' in row  # one line lower: the comment added above
+    assert 'href="registry/aircraft/qx-tce.yaml.html#L80"' in row  # one line lower: the comment added above
     assert "Action raised, fault still fitted: open" in row
 
 

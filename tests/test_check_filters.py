@@ -39,15 +39,15 @@ def test_aircraft_filter_lists_only_that_aircraft_and_says_so(demo_data, capsys)
     code, text = run(capsys, str(demo_data), "--aircraft", "QX-TCE")
     assert listed_aircraft(text) == ["QX-TCE"]
     assert "0 discrepancies" not in text  # no other aircraft reads as clean
-    assert re.search(r"^filtered: aircraft QX-TCE: 2 of 14 findings, 1 of 8 aircraft listed", text, re.M)
-    assert text.rstrip().splitlines()[-1].startswith("selected: 2 discrepancies")
+    assert re.search(r"^filtered: aircraft QX-TCE: 3 of 15 findings, 1 of 8 aircraft listed", text, re.M)
+    assert text.rstrip().splitlines()[-1].startswith("selected: 3 discrepancies")
     assert code == 1  # the action-raised 75 Ω cable is still fitted
 
 
 def test_unfiltered_report_lists_every_aircraft_and_no_filter_line(demo_data, capsys):
     _, text = run(capsys, str(demo_data))
     assert len(listed_aircraft(text)) == 8
-    assert "filtered:" not in text and text.rstrip().splitlines()[-1].startswith("fleet: 14 discrepancies")
+    assert "filtered:" not in text and text.rstrip().splitlines()[-1].startswith("fleet: 15 discrepancies")
 
 
 def test_service_filter_lists_only_aircraft_with_that_service(demo_data, demo_fleet, capsys):

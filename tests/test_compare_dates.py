@@ -28,6 +28,7 @@ def before_folder(tmp_path: Path) -> Path:
     before = tmp_path / "before"
     shutil.copytree(DEMO, before)
     shutil.copy(DEMO / "scenario" / "qx-tjb-before-mod-2026-031.yaml", before / "aircraft" / "qx-tjb.yaml")
+    shutil.copy(DEMO / "scenario" / "modifications-before-mod-2026-031.yaml", before / "modifications.yaml")
     return before
 
 

@@ -13,6 +13,7 @@ def test_changed_pages_are_marked_and_others_are_not(tmp_path, monkeypatch, caps
     before = tmp_path / "before"
     shutil.copytree(DEMO, before)
     shutil.copy(DEMO / "scenario" / "qx-tjb-before-mod-2026-031.yaml", before / "aircraft" / "qx-tjb.yaml")
+    shutil.copy(DEMO / "scenario" / "modifications-before-mod-2026-031.yaml", before / "modifications.yaml")
     assert cli.main(["build", str(before), "-o", str(tmp_path / "old"), "--no-cache"]) == 0
     assert cli.main(["build", str(DEMO), "-o", str(tmp_path / "new"), "--no-cache",
                      "--compare", str(tmp_path / "old")]) == 0

@@ -33,8 +33,36 @@ def demo_day(monkeypatch):
     monkeypatch.setenv("SOURCE_DATE_EPOCH", DEMO_DAY_EPOCH)
 
 
-def test_planted_table_lists_fourteen_problems():
-    assert len(planted_ids()) == 14
+def test_planted_table_lists_fifteen_problems():
+    assert len(planted_ids()) == 15
+
+
+def test_the_effectivity_plant_is_found_and_correcting_the_record_clears_it(tmp_path, capsys):
+    # planted problem #15 (fleet_data/README.md): MOD-2018-006 is embodied on QX-TCE in both records, but the HF1
+    # it adds is not in the register (common practice, no source: configuration bookkeeping)
+    _, out = run_check(capsys, str(DEMO), "--aircraft", "QX-TCE", "--format", "json")
+    found = {item["id"]: item for item in json.loads(out)["discrepancies"]}
+    item = found["qx-tce/HF1/embodiment"]
+    assert item["severity"] == "query" and item["value"] == "absent" and item["source"] == "modifications.yaml:14"
+    assert "MOD-2018-006" in item["message"]
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    # the fix: the kit is only planned on QX-TCE, and its aircraft file no longer lists it
+    mods = (data / "modifications.yaml").read_text(encoding="utf-8")
+    (data / "modifications.yaml").write_text(mods.replace(
+        "{serial: \"4460\", state: embodied, date: 2026-11-24}", "{serial: \"4460\", state: planned}"),
+        encoding="utf-8")
+    own = (data / "aircraft" / "qx-tce.yaml").read_text(encoding="utf-8")
+    entry = own[own.index("  - ref: MOD-2018-006"):own.index("installations:")]
+    (data / "aircraft" / "qx-tce.yaml").write_text(own.replace(entry, ""), encoding="utf-8")
+    _, out = run_check(capsys, str(data), "--format", "json")
+    assert {item["id"] for item in json.loads(out)["discrepancies"]} == planted_ids() - {"qx-tce/HF1/embodiment"}
+    # half a fix (only the fleet's file says planned) leaves the two records disagreeing: a note instead
+    (data / "aircraft" / "qx-tce.yaml").write_text(own, encoding="utf-8")
+    _, out = run_check(capsys, str(data), "--format", "json")
+    found = {item["id"]: item for item in json.loads(out)["discrepancies"]}
+    assert set(found) == planted_ids() - {"qx-tce/HF1/embodiment"} | {"qx-tce/MOD-2018-006/embodiment-record"}
+    assert found["qx-tce/MOD-2018-006/embodiment-record"]["severity"] == "note"
 
 
 def test_check_finds_exactly_the_planted_problems(capsys):

@@ -424,6 +424,7 @@ def test_demo_modification_scenario_end_to_end(tmp_path, monkeypatch, capsys):
     before = tmp_path / "before"
     shutil.copytree(DEMO, before)
     shutil.copy(SCENARIO, before / "aircraft" / "qx-tjb.yaml")
+    shutil.copy(SCENARIO.with_name("modifications-before-mod-2026-031.yaml"), before / "modifications.yaml")
     assert main(["diff", "--format", "json", str(before), str(DEMO)]) == 1
     data = json.loads(capsys.readouterr().out)
     assert {item["aircraft"] for item in data["installations"]} == {"qx-tjb"}

@@ -25,6 +25,7 @@ def two_sites(tmp_path_factory):
     before = work / "before"
     shutil.copytree(DEMO, before)
     shutil.copyfile(SCENARIO, before / "aircraft" / "qx-tjb.yaml")
+    shutil.copyfile(SCENARIO.with_name("modifications-before-mod-2026-031.yaml"), before / "modifications.yaml")
     with pytest.MonkeyPatch.context() as patch:
         patch.setenv("SOURCE_DATE_EPOCH", "1764806400")
         pipeline.build(before, work / "old", cache_dir=None)

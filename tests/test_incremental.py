@@ -9,6 +9,7 @@ import shutil
 from pathlib import Path
 
 import pytest
+import yaml
 
 from registry import pipeline
 from registry import incremental as diskcache
@@ -112,6 +113,12 @@ def test_removed_aircraft_pages_disappear(tmp_path):
     data, out, cache = built_copy(tmp_path)
     assert (out / "aircraft/qx-tce.html").exists()
     (data / "aircraft" / "qx-tce.yaml").unlink()
+    mods = data / "modifications.yaml"  # an aircraft that leaves the register leaves the modifications' effectivity
+    kept = yaml.safe_load(mods.read_text(encoding="utf-8"))
+    for mod in kept["modifications"]:
+        mod["effectivity"] = [entry for entry in mod["effectivity"] if entry.get("serial") != "4460"]  # QX-TCE
+    kept["modifications"] = [mod for mod in kept["modifications"] if mod["effectivity"]]
+    mods.write_text(yaml.safe_dump(kept, sort_keys=False), encoding="utf-8")
     reviews = data / "reviews.yaml"
     reviews.write_text(reviews.read_text(encoding="utf-8").split("  - discrepancy: qx-tce/")[0]
                        + "  - discrepancy: qx-tjb/" + reviews.read_text(encoding="utf-8").split(

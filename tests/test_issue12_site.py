@@ -183,6 +183,7 @@ def one_aircraft(tmp_path_factory) -> Path:
     for path in (root / "aircraft").glob("*.yaml"):
         if path.name != "qx-tca.yaml":
             path.unlink()
+    (root / "modifications.yaml").unlink()  # it names the aircraft taken out
     return root
 
 

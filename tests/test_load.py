@@ -151,10 +151,10 @@ def test_good_registry_loads_with_the_package_service_table_and_policy():
 def test_optional_files_may_be_left_out(tmp_path):
     data = tmp_path / "registry"
     shutil.copytree(GOOD, data)
-    for name in ("policy.yaml", "services.yaml", "reviews.yaml"):
+    for name in ("policy.yaml", "services.yaml", "reviews.yaml", "modifications.yaml"):
         (data / name).unlink()
     fleet = load_fleet(data, FIXTURES / "shipped")
-    assert fleet.policy.vswr_limit == 2.0 and fleet.reviews == {}
+    assert fleet.policy.vswr_limit == 2.0 and fleet.reviews == {} and fleet.modifications == ()
     assert "ops_data" not in fleet.services and fleet.services["dme"].shipped
 
 

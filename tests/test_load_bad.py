@@ -139,6 +139,36 @@ EXPECTED = {
     "missing_required": [
         'fleet.yaml:2:1: error: operator: found nothing, expected a value (the key is required)',
     ],
+    "modifications_bad_date": [
+        "modifications.yaml:6:55: error: modifications[0].effectivity[0].date: found '2023-02-30', expected a real date written YYYY-MM-DD",
+        "modifications.yaml:7:53: error: modifications[0].effectivity[1].due: found '18/04/2027', expected a real date written YYYY-MM-DD",
+    ],
+    "modifications_bad_state": [
+        "modifications.yaml:6:39: error: modifications[0].effectivity[0].state: found 'done', expected one of planned, embodied",
+    ],
+    "modifications_conflicts": [
+        # what the schema cannot say: one position added and removed, unknown ids, dates that do not fit the
+        # state, one aircraft twice (registrations ignore case), one reference twice
+        "modifications.yaml:6:10: error: modifications[0].adds[0].position: found 'VHF2' both added and removed, expected each position either added or removed by one modification",
+        "modifications.yaml:6:26: error: modifications[0].adds[0].service: found 'vhf_comm', expected a service id from the shipped table or services.yaml (did you mean 'vhf_com'?)",
+        "modifications.yaml:6:45: error: modifications[0].adds[0].antenna: found 'FXA-120-BLB', expected an antenna model id from antennas.yaml (did you mean 'FXA-120-BLD'?)",
+        "modifications.yaml:11:48: error: modifications[0].effectivity[1].date: found a date embodied on a planned modification, expected no date while planned (give the planned date as 'due')",
+        "modifications.yaml:12:10: error: modifications[0].effectivity[2].registration: found 'qx-fcb' again (the same aircraft as line 11), expected each aircraft once per modification",
+        "modifications.yaml:12:67: error: modifications[0].effectivity[2].due: found a due date on an embodied modification, expected only the date embodied ('date') once embodied",
+        "modifications.yaml:13:5: error: modifications[1].ref: found 'mod-2023-011' (and 'MOD-2023-011' on line 3), expected each modification reference once, ignoring upper and lower case",
+    ],
+    "modifications_mistakes": [
+        'modifications.yaml:10:9: error: modifications[0].effectivity[0].date: found nothing, expected a value (an embodied modification gives the date it was embodied)',
+        "modifications.yaml:11:9: error: modifications[0].effectivity[1]: found both 'registration' and 'serial', expected exactly one of 'registration' or 'serial'",
+        "modifications.yaml:16:5: error: modifications[1].effect: found an unknown key 'effect', expected one of ref, title, adds, removes, effectivity (did you mean 'effectivity'?)",
+    ],
+    "modifications_truncated": [
+        'modifications.yaml:6:58: error: (file): found the end of the file inside a {...} mapping that starts on line 6, expected the rest of the file (is it cut short?)',
+    ],
+    "modifications_unknown_aircraft": [
+        "modifications.yaml:7:10: error: modifications[0].effectivity[1].registration: found 'QX-FCC', expected the registration of an aircraft in aircraft/ (did you mean 'QX-FCB'?)",
+        "modifications.yaml:8:10: error: modifications[0].effectivity[2].serial: found '2071', expected the serial of an aircraft in aircraft/ (did you mean '2017'?)",
+    ],
     "must_see_with_bank": [
         # the bank and pitch the coverage rule checks belong to the policy (coverage_bank_deg), not to a service
         "services.yaml:18:73: error: services[1].must_see.bank_deg: found an unknown key 'bank_deg', expected one of region, elevation_deg, min_covered_pct, source",
@@ -168,7 +198,7 @@ EXPECTED = {
         'policy.yaml:2:13: error: vswr_limit: found 1.0e+308, expected a number between 1.01 and 100 (VSWR, the ratio n:1)',
     ],
     "review_unknown_rule": [
-        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, unmodellable, cosite, cosite-small, skin-position, coverage, ground-plane-effect (did you mean 'feeder-loss'?)",
+        "reviews.yaml:3:5: error: reviews[0].discrepancy: found the rule 'feeder-los', expected one of element-length, band-coverage, vswr-bandwidth, measured-vswr, feeder-loss, impedance-match, cable-frequency, isolation, ground-plane, antenna-suitability, measurement-age, missing-data, unmodellable, cosite, cosite-small, skin-position, coverage, ground-plane-effect, embodiment, embodiment-record (did you mean 'feeder-loss'?)",
     ],
     "serial_not_quoted": [
         'aircraft/qx-fcb.yaml:5:9: error: serial: found 2018, expected text (put it in quotes)',
@@ -336,7 +366,7 @@ def test_check_command_prints_problems_and_exits_2(tmp_path, monkeypatch, capsys
 # The loader must turn any input into either a Fleet or a DataError: no other exception escapes.
 
 TARGETS = ["fleet.yaml", "antennas.yaml", "cables.yaml", "policy.yaml", "services.yaml", "reviews.yaml",
-           "airframes/fx-20.yaml", "aircraft/qx-fca.yaml", "aircraft/qx-fcb.yaml"]
+           "modifications.yaml", "airframes/fx-20.yaml", "aircraft/qx-fca.yaml", "aircraft/qx-fcb.yaml"]
 scalars = st.one_of(st.none(), st.booleans(), st.integers(-10**6, 10**6), st.floats(allow_nan=True),
                     st.text(max_size=12))
 documents = st.recursive(scalars, lambda inner: st.one_of(

@@ -14,7 +14,7 @@ from registry.load import schemacheck
 from registry.load.yamlsource import read_yaml
 
 ROOT = Path(__file__).resolve().parent.parent
-NAMED = {"fleet": "fleet", "policy": "policy", "reviews": "reviews"}
+NAMED = {"fleet": "fleet", "policy": "policy", "reviews": "reviews", "modifications": "modifications"}
 WRONG = [None, -1, 0, 1e308, -1e308, "", "x" * 70, "12 m", "2026-02-30", "2026-13-01", "2026-1-1", True, [], {},
          [1, 2], {"unexpected": 1}, 1.5, "qx tca", "QX-TCA"]
 

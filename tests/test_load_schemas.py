@@ -11,7 +11,7 @@ from jsonschema import Draft202012Validator
 from registry.load.schemacheck import ID_PATTERN, number_words, unit_of
 
 SCHEMAS = sorted((Path(__file__).parent.parent / "registry" / "schemas").glob("*.schema.json"))
-KINDS = ["aircraft", "airframe", "antennas", "cables", "fleet", "policy", "reviews", "services"]
+KINDS = ["aircraft", "airframe", "antennas", "cables", "fleet", "modifications", "policy", "reviews", "services"]
 REGISTRY_SCHEMAS = [path for path in SCHEMAS if path.name.removesuffix(".schema.json") in KINDS]
 """The schemas of registry files; the others (the build record's) are not edited by hand."""
 

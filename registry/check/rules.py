@@ -11,6 +11,7 @@ from typing import NamedTuple
 
 from registry.compute.element import HORIZON_LOSS_LIMIT_DB
 from registry.compute.kinds import kind_of
+from registry.check.effectivity import effectivity_discrepancies
 from registry.core import figure_keys as FK
 from registry.core.model import Aircraft, AntennaModel, Cable, Fleet, Installation, Service
 from registry.core.sources import where
@@ -25,8 +26,8 @@ practice, no source: catalogue impedances are nominal to a few per cent."""
 
 def aircraft_discrepancies(fleet: Fleet, aircraft: Aircraft, installations: dict[tuple[str, str], InstallationResult],
                            pairs: list, cosite: AircraftCosite | None = None) -> list[Discrepancy]:
-    """Every rule over one aircraft's figures: its installations', its pairs' and its co-site paths'
-    (no reviews applied)."""
+    """Every rule over one aircraft's figures: its installations', its pairs', its co-site paths' and its
+    modifications' (`effectivity`; no reviews applied)."""
     found: list[Discrepancy] = []
     for installation in aircraft.installations.values():
         found += installation_discrepancies(fleet, aircraft, installation,
@@ -35,7 +36,7 @@ def aircraft_discrepancies(fleet: Fleet, aircraft: Aircraft, installations: dict
         found += pair_discrepancies(fleet, pair)
     if cosite is not None:
         found += cosite_discrepancies(fleet, cosite)
-    return found
+    return found + effectivity_discrepancies(fleet, aircraft)
 
 
 def make(rule: str, aircraft: str, position: str, value, limit, unit: str, message: str,

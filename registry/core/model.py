@@ -336,9 +336,8 @@ class Policy(Sourced):
 
 POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name not in ("sources", "src", "locator"))
 """The thresholds a policy file sets, in the order the methods page lists them: Policy's own fields."""
-REQUIRED_POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name in POLICY_KEYS
-                             and item.default is MISSING and item.default_factory is MISSING)
-"""The thresholds the shipped policy must set (the others have a default in `Policy`)."""
+REQUIRED_POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name in POLICY_KEYS and item.default
+                             is MISSING and item.default_factory is MISSING)  # the others have a default
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -385,6 +384,7 @@ class Fleet(Sourced):
     """Each measured sweep file's text by its path, read by the load stage."""
     input_keys: FrozenMap = FrozenMap()
     """Each aircraft's inputs (its file, its sweeps, the shared files) as one key (`load.inputs`)."""
+    modifications: tuple = ()  # effectivity.FleetModification of modifications.yaml, in the file's order
 
     @property
     def site_title(self) -> str:

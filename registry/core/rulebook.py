@@ -28,6 +28,8 @@ RULE_SEVERITY = {
     "skin-position": "query",
     "coverage": "query",
     "ground-plane-effect": "query",
+    "embodiment": "query",
+    "embodiment-record": "note",
 }
 """Every rule (in the order docs/registry-format.md lists them) and its severity."""
 

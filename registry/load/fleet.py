@@ -14,7 +14,7 @@ from datetime import date
 from pathlib import Path
 from typing import Any
 
-from registry.load import build, extent, git, inputs, integrity, partial, plausible
+from registry.load import build, extent, git, inputs, integrity, modifications, partial, plausible
 from registry.load import policy_cosite, schemacheck
 from registry.incremental import DiskCache, cached_map, key_of
 from registry.core.errors import FILE_FIELD, DataError, Problem, Src
@@ -179,6 +179,7 @@ class _Run:
         shipped_policy = self.read(self.shipped_dir / "policy.yaml", "policy")
         fleet_policy = self.read(self.data_dir / "policy.yaml", "policy", required=False)
         reviews_doc = self.read(self.data_dir / "reviews.yaml", "reviews", required=False)
+        mods_doc = self.read(self.data_dir / "modifications.yaml", "modifications", required=False)
 
         airframes = [build.airframe(doc) for doc in airframe_docs if doc]
         antennas = [build.antenna(antennas_doc, n, item) for n, item in enumerate(antennas_doc.data["models"])] \
@@ -193,6 +194,7 @@ class _Run:
             if reviews_doc else []
 
         self.cross_check(airframe_docs, airframes, aircraft, antennas, cables, services, policy, reviews)
+        mods = self.modifications(mods_doc, aircraft, antennas, services)
         if self.problems:
             raise DataError(self.problems)
         sweeps = inputs.read_sweeps(inputs.sweep_files(aircraft))
@@ -213,7 +215,25 @@ class _Run:
             reviews=FrozenMap((review.discrepancy, review) for review in reviews),
             sweeps=FrozenMap(sweeps),
             input_keys=FrozenMap(keys),
+            modifications=tuple(mods),
         )
+
+    def modifications(self, doc: build.Doc | None, aircraft: list[Aircraft], antennas: list[AntennaModel] | None,
+                      services: list[Service] | None) -> list:
+        """The fleet's modifications file built and checked (none without the file); aircraft files with
+        problems are still named (`partial`)."""
+        if doc is None:
+            return []
+        mods, unknown = modifications.build(doc, aircraft + self.partial)
+        known = integrity.Catalogue(airframes=None, cables=None,
+                                    antennas=None if antennas is None else {item.id for item in antennas},
+                                    services=None if services is None else {item.id for item in services})
+        # with a problem in the aircraft files the registrations are a guess (a file not read, a mark written
+        # twice): that problem is reported, an aircraft the modifications name is not reported again
+        folder = str(self.data_dir / "aircraft")
+        guess = any(problem.path.startswith(folder) for problem in self.problems)
+        self.problems += ([] if guess else unknown) + modifications.check(mods, known)
+        return mods
 
 
     def cross_check(self, airframe_docs: list[build.Doc | None], airframes: list[Airframe], aircraft: list[Aircraft],

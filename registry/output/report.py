@@ -26,7 +26,8 @@ def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = 
     out = []
     for item in found:
         craft = fleet.aircraft[item.aircraft]
-        services = [craft.installations[pos].service for pos in item.position.split("+")]
+        services = [craft.installations[pos].service for pos in item.position.split("+")
+                    if pos in craft.installations]  # an effectivity finding may name a position not fitted
         if matches(craft, services, aircraft, service) and (not severity or item.severity in severity):
             out.append(item)
     return out

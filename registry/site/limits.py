@@ -47,6 +47,12 @@ FIXED_LIMIT = {
     "skin-position": "the skin tolerance figure of the installation (method and source in its computed figures)",
     "missing-data": "no limit: a figure the checks need is missing",
     "unmodellable": "no limit: the model cannot take the geometry",
+    "embodiment": "agreement: every installation an embodied modification adds is in the register as it names "
+                  "it, and none it removes (common practice, no source: configuration bookkeeping, the register "
+                  "must hold the aircraft as modified)",
+    "embodiment-record": "agreement: the aircraft file lists a modification exactly when modifications.yaml has "
+                         "it embodied there, on the same date (common practice, no source: configuration "
+                         "bookkeeping, two records of one fact)",
 }
 """Rules whose limit is not a policy setting."""
 

@@ -13,6 +13,7 @@ from registry.site import drawing as sitedrawing
 from registry.site.coverage_map import blocked_sectors, coverage_map
 from registry.site import plots
 from registry.site.context import SiteData
+from registry.site.effectivity import aircraft_modification_rows
 from registry.site.format import bands_text, fmt_figure, location_text, notes_html, words
 from registry.site.labels import STATUS_LABELS
 from registry.site.pages import Output, Page, Plot, page
@@ -72,7 +73,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
     return page(page_path, "aircraft.html", "fleet", aircraft.registration,
                 [("Fleet", "index.html"), (aircraft.registration, None)],
                 aircraft=aircraft, airframe=airframe, installations=rows, drawing=drawing,
-                modifications=sorted(aircraft.modifications, key=lambda m: (m.date, m.ref), reverse=True),
+                modifications=aircraft_modification_rows(data, aircraft),
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 matrix=severity_matrix(items), src=data.model_src(aircraft),
                 shape={"text": shape_text(airframe), "assumptions": shape_of(airframe).assumptions},

@@ -14,6 +14,7 @@ from registry.load.git import as_of_date
 from registry.output import findings_export
 from registry.site import search as sitesearch
 from registry.site.context import SiteData
+from registry.site.effectivity import fleet_modification_views
 from registry.site.format import NONE_TEXT
 from registry.site.export import browser_export, discrepancies_csv, discrepancies_json
 from registry.site.pages_registry import line_href, registry_pages
@@ -42,7 +43,8 @@ def aircraft_row(data: SiteData, aircraft: Aircraft, items: list[Discrepancy]) -
 
 
 def fleet_page(data: SiteData) -> Output:
-    """The overview: every aircraft with its status, the fleet's totals and the first open findings."""
+    """The overview: every aircraft with its status, the fleet's totals, each modification's effectivity and the
+    first open findings."""
     aircraft_rows = [aircraft_row(data, aircraft, [d for d in data.discrepancies if d.aircraft == aircraft.id])
                      for aircraft in data.fleet.aircraft.values()]
     open_items = sorted((d for d in data.discrepancies if d.is_open), key=lambda d: severity_rank(d.severity))
@@ -53,7 +55,7 @@ def fleet_page(data: SiteData) -> Output:
                         "open": {s: sum(1 for d in open_items if d.severity == s) for s in SEVERITIES}},
                 matrix=severity_matrix(data.discrepancies),
                 top_open=[discrepancy_view(data, d) for d in open_items[:12]], open_total=len(open_items),
-                severities=SEVERITIES)
+                severities=SEVERITIES, modifications=fleet_modification_views(data))
 
 
 def unit_key(unit: str) -> str:

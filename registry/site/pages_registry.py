@@ -50,7 +50,8 @@ def forget() -> None:
     is_registry_file.cache_clear()
 
 
-REGISTRY_FILES = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml")
+REGISTRY_FILES = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml",
+                  "modifications.yaml")
 REGISTRY_FOLDERS = ("airframes", "aircraft")
 """What the loader reads from a data folder (`load/fleet.py`): these files, and the YAML files of these folders."""
 

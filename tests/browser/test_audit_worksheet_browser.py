@@ -82,12 +82,12 @@ def test_copy_control_copies_the_finding_id(worksheet):
 def test_registry_line_link_lands_on_the_line(worksheet):
     page, errors = worksheet
     link = page.locator(f"tr[data-id='{MKR}'] td.src a")
-    assert link.inner_text() == "aircraft/qx-tce.yaml:76"
+    assert link.inner_text() == "aircraft/qx-tce.yaml:79"
     link.click()
-    page.wait_for_url(re.compile(r"/registry/aircraft/qx-tce\.yaml\.html#L76$"))
-    target = page.locator("#L76")
-    assert page.evaluate("document.querySelector(':target').id") == "L76"
-    assert target.inner_text().split() == ["76", "cable:", "RG-59"]
+    page.wait_for_url(re.compile(r"/registry/aircraft/qx-tce\.yaml\.html#L79$"))
+    target = page.locator("#L79")
+    assert page.evaluate("document.querySelector(':target').id") == "L79"
+    assert target.inner_text().split() == ["79", "cable:", "RG-59"]
     box, height = target.bounding_box(), page.viewport_size["height"]
     assert 0 <= box["y"] < height  # scrolled into view
     page.screenshot(path=str(SHOTS / "registry-line.png"))

@@ -14,6 +14,8 @@ import tempfile
 from datetime import date
 from pathlib import Path
 
+import yaml
+
 from registry.core.errors import AerialbookError, DataError, EXIT_DATA
 from registry.core.results import Discrepancy
 from registry.load import git
@@ -97,6 +99,31 @@ def compared(before: dict | str, after: dict | str) -> ChangeFindings:
                           cleared=[before[key] for key in sorted(before) if key not in after])
 
 
+def keep_one_aircraft_modifications(target: Path, path: str) -> None:
+    """The fleet's modifications file at a revision, cut down to the one aircraft kept at `path`: the
+    others' effectivity would name aircraft no longer in the exported register. A file that does not read
+    as the schema's shape is left as it is, for the loader to report."""
+    mods_file = target / "modifications.yaml"
+    if not mods_file.is_file():
+        return
+    craft, _ = parse_yaml((target / path).read_bytes()[:MAX_BYTES + 1], path)
+    mods, _ = parse_yaml(mods_file.read_bytes()[:MAX_BYTES + 1], str(mods_file))
+    data = craft.data if craft is not None and isinstance(craft.data, dict) else {}
+    names = {("registration", str(data.get("registration"))), ("serial", str(data.get("serial")))}
+    if mods is None or not isinstance(mods.data, dict) or not isinstance(mods.data.get("modifications"), list):
+        return
+    kept = []
+    for mod in mods.data["modifications"]:
+        if not isinstance(mod, dict) or not isinstance(mod.get("effectivity"), list):
+            return
+        mine = [entry for entry in mod["effectivity"] if isinstance(entry, dict)
+                and any((key, str(entry.get(key))) in names for key in ("registration", "serial") if key in entry)]
+        if mine:
+            kept.append({**mod, "effectivity": mine})
+    mods_file.write_text(yaml.safe_dump({**mods.data, "modifications": kept}, sort_keys=False, allow_unicode=True),
+                         encoding="utf-8")
+
+
 def findings_at(checkout: git.Checkout, rev: str, path: str, day: date, temp: Path,
                 cache_dir: Path | None) -> dict[str, tuple[str, str, str]] | str:
     """The aircraft's findings (id → id, severity with the review state when it is not open, message) with the data folder as at `rev`, as of `day`;
@@ -114,6 +141,7 @@ def findings_at(checkout: git.Checkout, rev: str, path: str, day: date, temp: Pa
     for other in (target / "aircraft").glob("*.yaml"):
         if other.name != Path(path).name:
             other.unlink()
+    keep_one_aircraft_modifications(target, path)
     try:
         outcome = pipeline.run(target, as_of=day, cache_dir=cache_dir, workers=1, lazy=True)
     except DataError as error:

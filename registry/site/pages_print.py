@@ -8,6 +8,8 @@ revision and date are the build's, which an aircraft's reused pages could not pr
 """
 from __future__ import annotations
 
+import functools
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -39,23 +41,26 @@ aircraft sections hold their modifications and findings, and each aircraft's own
 
 def report_pages(data: SiteData) -> list[Output]:
     """The fleet's report and each aircraft's."""
-    return [fleet_report_page(data)] + aircraft_report_pages(data)
+    return [fleet_report_page(data)] + [make() for make in aircraft_report_pages(data)]
 
 
-def aircraft_report_pages(data: SiteData) -> list[Output]:
-    """Each aircraft's report."""
+def aircraft_report_pages(data: SiteData) -> list[Callable[[], Output]]:
+    """Each aircraft's report, as a function that makes it: the page's content is worked out where it is
+    rendered (in the workers, for a fleet), not all in this process first."""
     as_of = as_of_date(Path(data.fleet.data_dir)).isoformat()
     stale = stale_reviews(list(data.discrepancies), data.fleet.reviews)
-    outputs: list[Output] = []
-    for aircraft in data.fleet.aircraft.values():
-        section = aircraft_section(data, aircraft, stale)
-        outputs.append(page(aircraft_report_path(aircraft.id), "report.html", "fleet",
-                            f"{aircraft.registration}: printable report",
-                            [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)),
-                             ("Printable report", None)],
-                            block=title_block(data, aircraft.registration, as_of, section["identity"]),
-                            fleet=None, sections=[section], screen_link=(aircraft_path(aircraft.id), "aircraft page")))
-    return outputs
+    return [functools.partial(aircraft_report_page, data, aircraft, as_of, stale)
+            for aircraft in data.fleet.aircraft.values()]
+
+
+def aircraft_report_page(data: SiteData, aircraft: Aircraft, as_of: str, stale: list) -> Output:
+    """One aircraft's printable report."""
+    section = aircraft_section(data, aircraft, stale)
+    return page(aircraft_report_path(aircraft.id), "report.html", "fleet",
+                f"{aircraft.registration}: printable report",
+                [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)), ("Printable report", None)],
+                block=title_block(data, aircraft.registration, as_of, section["identity"]),
+                fleet=None, sections=[section], screen_link=(aircraft_path(aircraft.id), "aircraft page"))
 
 
 def fleet_report_page(data: SiteData) -> Output:

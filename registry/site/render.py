@@ -128,17 +128,18 @@ def finish_site(site: SiteRun, discrepancies: Iterable[Discrepancy], pieces: dic
     return dict(sorted(files.items()))
 
 
-def render_shared_out(site: SiteRun, outputs: list[Output], workers: int) -> dict[str, str | bytes]:
-    """Render `outputs`: over worker processes that hand each file to the writer when there is one (the
-    aircraft's printable reports, re-rendered every build), else here; the files not yet written."""
+def render_shared_out(site: SiteRun, makers: list[Callable[[], Output]], workers: int) -> dict[str, str | bytes]:
+    """Make and render each output of `makers`: over worker processes that hand each file to the writer
+    when there is one (the aircraft's printable reports, made again every build), else here; the files not
+    yet written."""
     if site.aircraft.writer is None:
-        return site.put(outputs)
+        return site.put([make() for make in makers])
 
     def one(n: int) -> None:
-        for path, content in site.put([outputs[n]]).items():
+        for path, content in site.put([makers[n]()]).items():
             site.aircraft.writer(path, content)
 
-    for _ in ordered_map(one, range(len(outputs)), workers):
+    for _ in ordered_map(one, range(len(makers)), workers):
         pass
     return {}
 

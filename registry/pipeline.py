@@ -9,24 +9,26 @@ import os
 from dataclasses import dataclass
 from datetime import date
 from pathlib import Path
-from typing import NamedTuple
+from typing import TYPE_CHECKING, NamedTuple
 
-from registry.check import reviews
-from registry import evaluate
-from registry.output.compare import compare
-from registry.output.sides import Side
-from registry.site import plots
 from registry.site import publish
 from registry.output import record
-from registry.site import render
 from registry.site.info import build_info
 from registry.incremental import DiskCache, collector_paused, collector_released, prune, site_key, version_folder
-from registry.load.fleet import load_fleet
 from registry.load.git import as_of_date
-from registry.load.history import FleetHistory, fleet_history
 from registry.core.model import Fleet, Review
 from registry.core.progress import QUIET, Progress
 from registry.core.results import Discrepancy, FleetResults
+
+if TYPE_CHECKING:
+    from registry import evaluate
+    from registry.load.history import FleetHistory
+    from registry.output.sides import Side
+    from registry.site import render
+
+# The stages (evaluate, reviews, render, plots, the loader, history, compare) are imported in the functions
+# that use them: `build` of a site that is already up to date stops before any of them, and must not pay
+# for importing numpy's, scipy's and Jinja's worth of modules (about 0.6 s).
 
 
 @dataclass
@@ -42,6 +44,7 @@ class Outcome:
 
 def load(data_dir: Path, cache_dir: Path | None = None, workers: int = 1) -> Fleet:
     """Load and validate the registry; raises DataError with every problem found."""
+    from registry.load.fleet import load_fleet
     return load_fleet(data_dir, cache_dir=cache_dir, workers=workers)
 
 
@@ -54,6 +57,7 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     same folder `build` uses); `workers` processes share the computation (default: one per core). With
     `lazy`, an aircraft unchanged since the cache last saw it contributes its summary (findings, record)
     only; `FleetResults.load` computes its full figures if they are wanted."""
+    from registry import evaluate
     cache_root = version_folder(cache_dir) if cache_dir is not None else None
     try:
         with collector_paused():
@@ -74,6 +78,9 @@ def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incr
     """Compute, check and render each aircraft in one go, in the worker that computed it: its full
     figures never cross between processes or through the cache. Possible without a comparison, since
     then an aircraft's pages show nothing of the other aircraft."""
+    from registry import evaluate
+    from registry.check import reviews
+    from registry.site import plots, render
     fleet = plan.fleet
     site = render.start_site(fleet, plan.results, info, None, plots.PlotStore(cache_root), incremental,
                              write, workers, plan.model_patterns, history)
@@ -97,6 +104,9 @@ def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache
                          history: FleetHistory):
     """Compute and check the whole fleet, then start the site: the comparison with `baseline` needs every
     aircraft's record before any page can be rendered."""
+    from registry import evaluate
+    from registry.output.compare import compare
+    from registry.site import plots, render
     fleet = plan.fleet
     with collector_paused():
         evaluate.compute(plan, workers, progress)
@@ -113,6 +123,7 @@ def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache
 
 def _outcome(fleet: Fleet, as_of: date, results: FleetResults) -> Outcome:
     """The findings (reviews applied) and stale reviews of computed results."""
+    from registry.check import reviews
     found = reviews.check_fleet((finding for aircraft_id in fleet.aircraft
                                  for finding in results.summaries[aircraft_id].findings), fleet.reviews,
                                 fleet.policy)
@@ -142,6 +153,9 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
                                             if baseline is not None else "")
     if key and publish.up_to_date(out_dir, key):
         return Published(out_dir, False)
+    from registry import evaluate
+    from registry.load.history import fleet_history
+    from registry.site import render
     cache_root = version_folder(cache_dir) if cache_dir is not None else None
     incremental = render.Incremental({} if naive else publish.previous_aircraft(out_dir), {},
                                      DiskCache(None if naive else cache_root, "pieces", render.AircraftPieces))

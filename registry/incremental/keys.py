@@ -13,7 +13,6 @@ import sys
 from importlib import metadata
 from pathlib import Path
 
-import numpy as np
 
 PACKAGE_DIR = Path(__file__).resolve().parent.parent
 TEMPLATE_DIR = PACKAGE_DIR.parent / "site_templates"
@@ -81,6 +80,7 @@ def repr_key(*parts: object) -> str:
 
 def array_key(*parts: object) -> str:
     """20 hex digits naming plot inputs: numpy arrays by their bytes, anything else by repr."""
+    import numpy as np  # here, not at the top: a build that finds its site up to date never loads numpy
     digest = hashlib.sha256()
     for part in parts:
         if isinstance(part, np.ndarray):

@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -37,6 +38,16 @@ class Plate:
     vertices_m: np.ndarray
     normal: np.ndarray
     group: str = ""
+
+    @cached_property
+    def box_m(self) -> tuple[tuple[float, ...], tuple[float, ...]]:
+        """The face's bounding box: its lowest and its highest (STA, BL, WL), metres; worked out once."""
+        return tuple(map(float, self.vertices_m.min(axis=0))), tuple(map(float, self.vertices_m.max(axis=0)))
+
+    def near(self, point_m: tuple[float, ...], margin_m: float) -> bool:
+        """True when a point (metres) lies in the bounding box grown by margin_m on every side."""
+        low, high = self.box_m
+        return all(lo - margin_m <= c <= hi + margin_m for lo, c, hi in zip(low, point_m, high))
 
 
 @dataclass(frozen=True)
@@ -205,9 +216,8 @@ def locate_on_skin(shape: AirframeShape, point, scale_m: float, tolerance_m: flo
     ellipses); plate distance: perpendicular to the plane, the foot inside the polygon.
     """
     p = to_metres(point, scale_m)
-    near = [pl for pl in shape.plates  # a foot inside the polygon within tolerance implies p inside the
-            if np.all(p >= pl.vertices_m.min(axis=0) - tolerance_m)  # box grown by the tolerance
-            and np.all(p <= pl.vertices_m.max(axis=0) + tolerance_m)]
+    at = tuple(float(c) for c in p)  # a foot inside the polygon within tolerance implies p inside the box
+    near = [pl for pl in shape.plates if pl.near(at, tolerance_m)]  # grown by the tolerance
     hits = [_fuselage_skin(shape, p)] + [_plate_skin(pl, p) for pl in near]
     hits = [h for h in hits if h is not None and h.distance_m <= tolerance_m]
     return min(hits, key=lambda h: h.distance_m) if hits else None

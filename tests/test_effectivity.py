@@ -176,6 +176,18 @@ def test_the_fleet_overview_shows_each_modification_where_embodied_planned_and_d
     assert re.search(r"2026-09-14.*MOD-2026-031.*embodied", mods, re.S)
 
 
+def test_a_finding_on_a_position_not_fitted_takes_the_service_the_modification_names(demo_site, capsys):
+    """QX-TCE has no HF1; MOD-2018-006 adds HF1 for hf_com, so the service filters of `check` and of the
+    Audit page both select its embodiment finding (common practice, no source: filter semantics)."""
+    assert cli.main(["check", "fleet_data", "--service", "hf_com", "--no-cache"]) == 0
+    text = capsys.readouterr().out
+    assert "filtered: service hf_com: 1 of " in text
+    assert "QX-TCE (qx-tce, tc-44): 1 discrepancy" in text and "[query] qx-tce/HF1/embodiment" in text
+    audit = (demo_site / "audit.html").read_text(encoding="utf-8")
+    row = re.search(r'<tr id="d-qx-tce__HF1__embodiment"[^>]*>', audit).group(0)
+    assert 'data-service="hf_com"' in row
+
+
 def test_an_aircraft_file_that_cannot_be_read_is_reported_once(tmp_path):
     from registry.core.errors import DataError
 

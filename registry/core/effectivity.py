@@ -50,3 +50,19 @@ class FleetModification(Sourced):
     def on(self, aircraft_id: str) -> Embodiment | None:
         """Its state on one aircraft, or None when it does not apply there."""
         return next((item for item in self.effectivity if item.aircraft == aircraft_id), None)
+
+
+def position_services(aircraft, modifications: tuple[FleetModification, ...], positions: list[str]) -> list[str]:
+    """The services of an aircraft's positions, in order: each fitted installation's, else the service a
+    modification that applies to the aircraft names for a position it adds (an effectivity finding may
+    name a position that is not fitted). A position with neither gives none."""
+    out = []
+    for position in positions:
+        if position in aircraft.installations:
+            out.append(aircraft.installations[position].service)
+            continue
+        named = next((added.service for mod in modifications if mod.on(aircraft.id) is not None
+                      for added in mod.adds if added.position == position and added.service), "")
+        if named:
+            out.append(named)
+    return out

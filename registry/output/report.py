@@ -3,9 +3,10 @@ from __future__ import annotations
 
 import re
 from collections import Counter
-from collections.abc import Mapping
+from collections.abc import Iterable, Mapping
 from pathlib import Path
 
+from registry.core.effectivity import position_services
 from registry.core.model import Fleet
 from registry.core.results import Discrepancy, Figure, FleetResults
 from registry.core.rulebook import ALL_STATES, FAULT_REMAINS_STATES, SEVERITIES
@@ -26,17 +27,18 @@ def select(found: list[Discrepancy], fleet: Fleet, aircraft: list[str] | None = 
     out = []
     for item in found:
         craft = fleet.aircraft[item.aircraft]
-        services = [craft.installations[pos].service for pos in item.position.split("+")
-                    if pos in craft.installations]  # an effectivity finding may name a position not fitted
+        services = position_services(craft, fleet.modifications, item.position.split("+"))
         if matches(craft, services, aircraft, service) and (not severity or item.severity in severity):
             out.append(item)
     return out
 
 
-def selected_aircraft(fleet: Fleet, filters: Mapping[str, list[str]]) -> list:
-    """The aircraft a filtered report lists: those named, or those with an installation of a named service."""
-    return [craft for craft in fleet.aircraft.values()
-            if matches(craft, [i.service for i in craft.installations.values()] or [""],
+def selected_aircraft(fleet: Fleet, filters: Mapping[str, list[str]], found: Iterable[Discrepancy] = ()) -> list:
+    """The aircraft a filtered report lists: those named, or those with an installation of a named service,
+    and those with a selected finding (an effectivity finding's service may be of a position not fitted)."""
+    with_findings = {item.aircraft for item in found}
+    return [craft for craft in fleet.aircraft.values() if craft.id in with_findings
+            or matches(craft, [i.service for i in craft.installations.values()] or [""],
                        filters.get("aircraft"), filters.get("service"))]
 
 
@@ -102,7 +104,7 @@ def as_text(fleet: Fleet, found: list[Discrepancy], stale: list, as_of: str,
     totals. A filtered report says what was filtered first. Every line is cleared of control characters and
     escape sequences (`safe_text.terminal_line`)."""
     filters = filters or {}
-    shown = selected_aircraft(fleet, filters)
+    shown = selected_aircraft(fleet, filters, found)
     lines = [f"{fleet.operator}: {len(fleet.aircraft)} aircraft, "
              f"{sum(len(a.installations) for a in fleet.aircraft.values())} installations, as of {as_of}"]
     if filters_text(filters):

@@ -7,6 +7,7 @@ import re
 from collections import Counter, defaultdict
 from typing import Any, Iterable
 
+from registry.core.effectivity import position_services
 from registry.core.model import Aircraft, Installation
 from registry.core.results import Discrepancy, Figure, PatternResult
 from registry.core.rulebook import OPEN_STATES, SEVERITIES
@@ -27,7 +28,7 @@ def discrepancy_view(data: SiteData, item: Discrepancy) -> dict[str, Any]:
     aircraft = data.fleet.aircraft.get(item.aircraft)
     installs = aircraft.installations if aircraft else {}
     first = next((p for p in positions if p in installs), None)
-    services = sorted({installs[p].service for p in positions if p in installs})
+    services = sorted(set(position_services(aircraft, data.fleet.modifications, positions))) if aircraft else []
     return {
         "id": item.id, "anchor": anchor(item.id), "severity": item.severity, "rule": item.rule,
         "aircraft": item.aircraft, "registration": aircraft.registration if aircraft else item.aircraft,

@@ -20,12 +20,13 @@ from registry.core.errors import AerialbookError, DataError, EXIT_DATA
 from registry.core.results import Discrepancy
 from registry.load import git
 from registry.load import history as timeline
+from registry.load.fleet import REGISTRY_FILES
 from registry.load.yamlsource import MAX_BYTES, parse_yaml
 from registry.output.history_text import AircraftTimeline, ChangeFindings
 
-SHARED = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml", "airframes/")
-"""The files every aircraft's findings depend on: a commit changing one of them is a change of the history
-(nothing fitted changes, findings may)."""
+SHARED = (*REGISTRY_FILES, "airframes/")
+"""The files every aircraft's findings depend on (all the loader reads but the aircraft files): a commit
+changing one of them is a change of the history (nothing fitted changes, findings may)."""
 
 
 class NoHistory(AerialbookError):

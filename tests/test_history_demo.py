@@ -95,3 +95,23 @@ def test_the_readme_walkthrough_quotes_the_demo_history_as_it_is(tmp_path, capsy
     out = capsys.readouterr().out
     sat = next(line for line in section.splitlines() if line.strip().startswith("SAT "))
     assert sat.strip() in out
+
+
+def test_a_modifications_file_change_is_a_change_of_the_aircraft_history(tmp_path, capsys):
+    """A commit that changes only modifications.yaml fits nothing new, but its findings are compared too:
+    MOD-2019-011, planned on QX-TJB, marked embodied without its VHF1 blade fitted (common practice, no source:
+    the effectivity rules' bookkeeping)."""
+    from tests.test_history import commit
+
+    repo = tmp_path / "registry"
+    demo_history.make(DEMO, repo)
+    mods = (repo / "modifications.yaml").read_text(encoding="utf-8")
+    planned = "{registration: QX-TJB, state: planned, due: 2027-01-20}"
+    assert planned in mods
+    commit(repo, "2026-10-02T08:00:00+00:00", "MOD-2019-011 embodied on QX-TJB",
+           {"modifications.yaml": mods.replace(planned, "{registration: QX-TJB, state: embodied, date: 2026-10-01}")})
+    assert cli.main(["history", "QX-TJB", str(repo), "--format", "json", "--cache", str(tmp_path / "cache")]) == 0
+    last = json.loads(capsys.readouterr().out)["changes"][-1]
+    assert last["kind"] == "shared" and last["subject"] == "MOD-2019-011 embodied on QX-TJB"
+    assert {row[0] for row in last["findings"]["appeared"]} & {"qx-tjb/VHF1/embodiment",
+                                                               "qx-tjb/MOD-2019-011/embodiment-record"}

@@ -31,6 +31,12 @@ _MERGED_POLICY_MAPS = ("vswr_limit_by_service", "feeder_loss_budget_db", "source
 _COVERAGE_POLICY = ("coverage_bank_deg", "coverage_pitch_deg")  # maps by must_see region, merged key by key
 
 
+REGISTRY_FILES = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml",
+                  "modifications.yaml")
+REGISTRY_FOLDERS = ("airframes", "aircraft")
+"""What the loader reads from a data folder: these files, and the YAML files of these folders."""
+
+
 def load_fleet(data_dir: Path | str, shipped_dir: Path | None = None, cache_dir: Path | None = None,
                workers: int = 1, as_of: date | None = None) -> Fleet:
     """Read, validate and cross-check the registry in `data_dir`.

@@ -14,6 +14,7 @@ from typing import TYPE_CHECKING
 
 from markupsafe import Markup
 
+from registry.load.fleet import REGISTRY_FILES, REGISTRY_FOLDERS
 from registry.site.pages import Output, page
 
 if TYPE_CHECKING:  # context.py links figures' registry lines through `line_href`
@@ -50,10 +51,6 @@ def forget() -> None:
     is_registry_file.cache_clear()
 
 
-REGISTRY_FILES = ("fleet.yaml", "antennas.yaml", "cables.yaml", "services.yaml", "policy.yaml", "reviews.yaml",
-                  "modifications.yaml")
-REGISTRY_FOLDERS = ("airframes", "aircraft")
-"""What the loader reads from a data folder (`load/fleet.py`): these files, and the YAML files of these folders."""
 
 
 def registry_files(data_dir: Path) -> list[str]:

@@ -96,7 +96,7 @@ def prepare(fleet: Fleet, as_of: date, cache_dir: Path | None = None, lazy: bool
     to compute share (patterns, modelled impedances), so that workers forked afterwards inherit it. Every
     pattern the fleet shows is then in `results.patterns`, named after the first model that uses it."""
     plan = Plan(fleet, as_of, FleetResults(cables=cable_results(fleet)), Stores.at(cache_dir), {}, {}, [], lazy, {})
-    plan.todo.extend(_reuse(fleet, as_of, plan.stores, plan.results, plan.known, lazy, workers))
+    plan.todo.extend(_reuse(fleet, as_of, plan.stores, plan.results, plan.known, lazy))
     for pattern_key, pattern in shared_figures(fleet, [aircraft_id for aircraft_id, _ in plan.todo]).items():
         if pattern_key not in plan.known:
             plan.known[pattern_key] = pattern
@@ -128,16 +128,15 @@ def finish(plan: Plan) -> FleetResults:
 
 
 def _reuse(fleet: Fleet, as_of: date, stores: Stores, results: FleetResults, known: dict[str, PatternResult],
-           lazy: bool, workers: int = 1) -> list[tuple[str, str]]:
-    """With `lazy`, take each unchanged aircraft's summary from the cache (read and checked over
-    `workers` processes); the (aircraft id, key) of those still to compute (every aircraft without
-    `lazy`: their full figures are wanted)."""
+           lazy: bool) -> list[tuple[str, str]]:
+    """With `lazy`, take each unchanged aircraft's summary from the cache (read in this process: see
+    `cached_map`); the (aircraft id, key) of those still to compute (every aircraft without `lazy`: their
+    full figures are wanted)."""
     keys = {aircraft_id: key_of(fleet.input_keys[aircraft_id], as_of.isoformat()) if aircraft_id in fleet.input_keys
             else "" for aircraft_id in fleet.aircraft}
     results.aircraft_keys.update((aircraft_id, key) for aircraft_id, key in keys.items() if key)
     wanted = [key if lazy else "" for key in keys.values()]
-    summaries = ordered_map(lambda key: stores.summaries.get(key) if key else None, wanted,
-                            workers if any(wanted) else 1)
+    summaries = [stores.summaries.get(key) if key else None for key in wanted]
     todo = []
     for (aircraft_id, key), summary in zip(keys.items(), summaries):
         usable = (isinstance(summary, AircraftSummary)

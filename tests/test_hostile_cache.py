@@ -296,3 +296,33 @@ def test_a_table_of_positions_reads_back_and_a_bad_row_is_refused():
                 payload.replace(b'["R","Src"', b'["R","Locator"', 1), payload[:-1] + b',["t","x"]]'):
         with pytest.raises(codec.BadEntry):
             codec.loads(bad, kind)
+
+
+def test_an_aircraft_model_reads_back_with_every_position_and_its_index_written_once(demo_fleet):
+    # the model cache's entry type (AircraftRead): every object of the aircraft holds its file's index
+    # of positions; the entry holds the index once, and every field's line survives the round trip
+    aircraft = demo_fleet.aircraft["qx-tca"]
+    payload = codec.dumps(AircraftRead(aircraft, []), AircraftRead)
+    assert payload.count(b'"FieldIndex"') == 1
+    back = codec.loads(payload, AircraftRead).model
+    index = next(iter(aircraft.installations.values())).locator.index
+    assert back.locator.index is next(iter(back.installations.values())).locator.index
+    assert dict(back.locator.index) == dict(index) and len(index) > 100
+    for position, installation in aircraft.installations.items():
+        again = back.installations[position]
+        for field in ("feeder.length_m", "location.sta", "measured.vswr", "antenna"):
+            assert again.where(field) == installation.where(field)
+            assert again.field_path(field) == installation.field_path(field)
+    assert dict(pickle.loads(pickle.dumps(back.locator.index))) == dict(index)  # handed between processes
+
+
+@pytest.mark.parametrize("rows", ['[[3,"x","a"]]', '{"a": 1}', "[[3]]", "not json", '[[1,2,["a"]]]'])
+def test_an_index_of_positions_with_bad_rows_falls_back_to_the_objects_own_line(rows):
+    from registry.core.base import FieldIndex, Locator
+    from registry.core.errors import Src
+
+    own = Src("fleet_data/aircraft/qx-tca.yaml", 7, 3)
+    payload = codec.dumps(Locator(FieldIndex("fleet_data/aircraft/qx-tca.yaml", rows), ("installations", 0), own),
+                          Locator)
+    back = codec.loads(payload, Locator)  # the rows are read only when a position is asked
+    assert back.where("feeder.length_m") == own

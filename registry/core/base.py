@@ -1,6 +1,8 @@
 """The base of every model object: a read-only mapping, freezing, and where each value came from."""
 from __future__ import annotations
 
+import json
+import sys
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
 from typing import Any
@@ -39,12 +41,83 @@ def freeze(value: Any) -> Any:
     return value
 
 
+class FieldIndex(Mapping):
+    """Where each field of one file sits: a mapping from path tuples (`("installations", 2, "feeder")`)
+    to positions, shared by every object built from the file.
+
+    Kept (in the cache, and when handed between processes) as the file's path once and `rows`, JSON text
+    of [line, column, part, part, ...] per field; the table is made from it only when a position is
+    first asked. An aircraft read back from the cache is seldom asked (only when its figures are
+    computed again or a finding names a line), and its thousand positions as objects were most of what
+    reading a large fleet from the cache cost. Rows that do not read back as [int, int, str | int, ...]
+    are left out: a position then falls back to its object's own, as for a field not in the file."""
+
+    __slots__ = ("path", "_rows", "_table")
+
+    def __init__(self, path: str, rows: str):
+        self.path = sys.intern(path)
+        self._rows: str | None = rows
+        self._table: dict[tuple[str | int, ...], Src] | None = None
+
+    @classmethod
+    def of(cls, path: str, table: dict[tuple[str | int, ...], Src]) -> "FieldIndex":
+        """The index of a file just read (`table` already made; `rows` written when first asked)."""
+        made = cls(path, "")
+        made._rows, made._table = None, table
+        return made
+
+    @property
+    def rows(self) -> str:
+        if self._rows is None:
+            self._rows = json.dumps([[src.line, src.column, *parts] for parts, src in self._table.items()],
+                                    separators=(",", ":"))
+        return self._rows
+
+    @property
+    def table(self) -> dict[tuple[str | int, ...], Src]:
+        if self._table is None:
+            self._table = _table_of(self.path, self._rows or "[]")
+        return self._table
+
+    def __getitem__(self, parts: tuple[str | int, ...]) -> Src:
+        return self.table[parts]
+
+    def __contains__(self, parts: object) -> bool:
+        return parts in self.table
+
+    def __iter__(self) -> Iterator[tuple[str | int, ...]]:
+        return iter(self.table)
+
+    def __len__(self) -> int:
+        return len(self.table)
+
+    def __getstate__(self) -> tuple[str, str]:
+        return self.path, self.rows
+
+    def __setstate__(self, state: tuple[str, str]) -> None:
+        self.__init__(*state)
+
+
+def _table_of(path: str, rows: str) -> dict[tuple[str | int, ...], Src]:
+    """The table `FieldIndex.rows` holds; rows of any other shape left out."""
+    try:
+        items = json.loads(rows)
+    except ValueError:
+        return {}
+    table = {}
+    for row in items if type(items) is list else ():
+        if (type(row) is list and len(row) >= 2 and type(row[0]) is int and type(row[1]) is int
+                and all(type(part) in (str, int) for part in row[2:])):
+            table[tuple(row[2:])] = Src(path, row[0], row[1])
+    return table
+
+
 class Locator:
     """Finds where a field of one object sits: `index` maps path tuples to positions, `prefix` is the object's."""
 
     __slots__ = ("index", "prefix", "fallback")
 
-    def __init__(self, index: Mapping[tuple[str | int, ...], Src], prefix: tuple[str | int, ...], fallback: Src):
+    def __init__(self, index: FieldIndex, prefix: tuple[str | int, ...], fallback: Src):
         self.index = index
         self.prefix = prefix
         self.fallback = fallback

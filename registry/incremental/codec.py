@@ -8,7 +8,8 @@ Encoding (every value that is not a JSON scalar is a list whose first item is a 
 
     str, int, float (NaN and infinities as JSON's NaN/Infinity), bool, None   as themselves
     ["t", item, ...] tuple       ["l", item, ...] list        ["d", k, v, k, v, ...] dict
-    ["r", n] the n-th dict met so far again (a dict shared by many records is written once)
+    ["r", n] the n-th dict (or shared record) met so far again: a dict shared by many records, or a
+         file's `FieldIndex`, is written once
     ["R", "Src", key, [field, ...], ...] a dict whose values are all of one record type with scalar
          fields (a file's index of positions): each value's fields without a tag
     ["m", k, v, ...] FrozenMap   ["D", "2025-02-11"] date     ["p", "text"] Path
@@ -41,7 +42,7 @@ from typing import Any, NamedTuple
 import numpy as np
 
 from registry.core.errors import Src
-from registry.core.base import FrozenMap
+from registry.core.base import FieldIndex, FrozenMap
 from registry.core.model import Aircraft, Installation
 
 FIELD_HINTS: dict[type, dict[str, Any]] = {Aircraft: {"installations": Mapping[str, Installation]}}
@@ -49,6 +50,10 @@ FIELD_HINTS: dict[type, dict[str, Any]] = {Aircraft: {"installations": Mapping[s
 INTERNED: dict[type, str] = {Src: "path"}
 """Text fields read back as one shared string (sys.intern): an aircraft's model holds a position, and
 so its file's path, for every value in the file; held as one string each, as the model built them."""
+
+SHARED: set[type] = {FieldIndex}
+"""Record types written once per entry, however many records hold the same one (an aircraft's objects
+all hold its file's index of positions)."""
 
 SCALARS = {str, int, float, bool, type(None)}
 TABLE_ROWS = 8
@@ -75,6 +80,8 @@ class Record(NamedTuple):
     interned: int | None = None
     flat: bool = False
     """Every field is a JSON scalar (str, int, float, bool, None): nothing inside to decode."""
+    shared: bool = False
+    """One of `SHARED`: written once, then referred to (["r", n])."""
 
 
 class Schema(NamedTuple):
@@ -176,7 +183,8 @@ def _record(cls: type, records: dict[type, Record]) -> None:
     deep = tuple((n, _checker(hints.get(name, Any), records)) for n, name in enumerate(fields) if classes[n] is None)
     records[cls] = records[cls]._replace(classes=tuple(object if found is None else found for found in classes),
                                          deep=deep, interned=fields.index(INTERNED[cls]) if cls in INTERNED else None,
-                                         flat=all(found is not None and set(found) <= SCALARS for found in classes))
+                                         flat=all(found is not None and set(found) <= SCALARS for found in classes),
+                                         shared=cls in SHARED)
 
 
 # --- writing ----------------------------------------------------------------------------------------------
@@ -205,6 +213,10 @@ class _Encoder:
             return self.mapping(value)
         record = self.records.get(kind)
         if record is not None:
+            if record.shared:
+                if id(value) in self.shared:
+                    return ["r", self.shared[id(value)]]
+                self.shared[id(value)] = len(self.shared)
             if issubclass(kind, tuple):
                 return [record.tag, *self.items(value)]
             return [record.tag, *self.items([getattr(value, name) for name in record.fields])]
@@ -335,6 +347,9 @@ class _Decoder:
         return pairs
 
     def record(self, record: Record, item: list) -> Any:
+        if record.shared:
+            slot = len(self.shared)
+            self.shared.append(None)
         values = item[1:] if record.flat else [self.tagged(x) if type(x) is list else x for x in item[1:]]
         if len(values) != len(record.fields):
             raise BadEntry(f"{record.tag} with {len(values)} fields, expected {len(record.fields)}")
@@ -352,7 +367,10 @@ class _Decoder:
                 raise BadEntry(f"{record.tag}.{record.fields[position]}: found a {type(value).__qualname__}")
         if record.interned is not None and type(values[record.interned]) is str:
             values[record.interned] = sys.intern(values[record.interned])
-        return record.make(values)
+        made = record.make(values)
+        if record.shared:
+            self.shared[slot] = made
+        return made
 
     def other(self, tag: Any, item: list) -> Any:
         if tag == "D" and len(item) == 2:

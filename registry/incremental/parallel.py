@@ -61,18 +61,22 @@ class Cache(Protocol):
 
 def cached_map(task: Callable[[Any], Any], items: Sequence[Any], keys: Sequence[str | None], cache: Cache,
                workers: int = 1, progress: Progress = QUIET) -> list[Any]:
-    """task(item) for every item, in order: an item whose key is in `cache` is read from it, the others
-    are computed and written back, all shared out by `ordered_map` over `workers` processes (reading and
-    checking an entry costs a few milliseconds too). A key of None (an input that could not be read) is
-    always computed and never kept."""
+    """task(item) for every item, in order: an item whose key is in `cache` is read from it in this
+    process, the others are computed by `ordered_map` over `workers` processes and written back. Entries
+    are read here because a value read in a worker must then be pickled to this process, and pickling
+    and unpickling model objects costs more than decoding the entry (1,000 aircraft models: 3.9 s read
+    here, 7.5 s read in two workers). A key of None (an input that could not be read) is always
+    computed and never kept."""
+    found = [cache.get(key) if key else None for key in keys]
+    todo = [n for n, value in enumerate(found) if value is None]
+    progress.advance(len(items) - len(todo))
 
     def one(n: int) -> Any:
-        key = keys[n]
-        found = cache.get(key) if key else None
-        if found is None:
-            found = task(items[n])
-            if key:
-                cache.put(key, found)
-        return found
+        value = task(items[n])
+        if keys[n]:
+            cache.put(keys[n], value)
+        return value
 
-    return list(ordered_map(one, range(len(items)), workers, progress))
+    for n, value in zip(todo, ordered_map(one, todo, workers, progress)):
+        found[n] = value
+    return found

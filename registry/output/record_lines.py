@@ -18,7 +18,7 @@ import json
 import re
 from collections.abc import Iterator
 from pathlib import Path
-from typing import Any
+from typing import Any, BinaryIO
 
 from registry.incremental import line_digest
 from registry.output.record import validate
@@ -26,17 +26,21 @@ from registry.output.record import validate
 MEMBER_KEY = re.compile(rb'"([^"\\/]+)(?:/[^"\\]*)?":')
 """A member line's opening key: the aircraft id, then what follows the first "/"."""
 
-Layout = tuple[list[str], list[dict[bytes, bytes]]]
-"""A record's frame lines, and between each two of them a digest of each member line by aircraft id."""
+Layout = tuple[list[str], list[dict[bytes, tuple[bytes, int, int]]]]
+"""A record's frame lines, and between each two of them each member line by aircraft id: its digest, and
+where it sits in the file (offset and length, without its trailing comma)."""
 
 
-def _lines(path: Path) -> Iterator[bytes]:
-    """The file's lines, read as they come (a record runs to hundreds of megabytes), empty ones left out."""
-    with open(path, "rb") as handle:
+def _lines(path: Path) -> Iterator[tuple[int, bytes]]:
+    """The file's lines with their offsets, read as they come (a record runs to hundreds of megabytes),
+    empty ones left out."""
+    offset = 0
+    with open(path, "rb", buffering=1 << 20) as handle:
         for raw in handle:
             line = raw.rstrip(b"\n")
             if line:  # an aircraft-by-aircraft map with no members
-                yield line
+                yield offset, line
+            offset += len(raw)
 
 
 def _member(line: bytes) -> tuple[bytes, bytes] | None:
@@ -50,11 +54,11 @@ def _member(line: bytes) -> tuple[bytes, bytes] | None:
 
 
 def layout(path: Path) -> Layout:
-    """The record file's frame lines and a digest of each member line (NotInLayout if it is not in the
-    layout): enough to tell which aircraft differ without holding either record."""
+    """The record file's frame lines and a digest and place of each member line (NotInLayout if it is
+    not in the layout): enough to tell which aircraft differ without holding either record."""
     frames: list[str] = []
-    members: list[dict[bytes, bytes]] = []
-    for line in _lines(path):
+    members: list[dict[bytes, tuple[bytes, int, int]]] = []
+    for offset, line in _lines(path):
         member = _member(line)
         if member is None:
             frames.append(_text(line))
@@ -62,26 +66,32 @@ def layout(path: Path) -> Layout:
         elif not members or member[0] in members[-1]:
             raise NotInLayout
         else:
-            members[-1][member[0]] = line_digest(member[1])
+            members[-1][member[0]] = (line_digest(member[1]), offset, len(member[1]))
     if not frames:
         raise NotInLayout
     return frames, members
 
 
-def assemble(path: Path, keep: set[bytes]) -> str:
-    """The record file's text with only the member lines of the aircraft in `keep` (read again)."""
+def assemble(path: Path, found: Layout, keep: set[bytes]) -> str:
+    """The record file's text with only the member lines of the aircraft in `keep`, those read again
+    from where `layout` found them (the others are never read twice)."""
+    frames, members = found
     out: list[str] = []
-    kept: list[bytes] = []
-    for line in _lines(path):
-        member = _member(line)
-        if member is None:
-            out.append(_text(b",".join(kept)))
-            out.append(_text(line))
-            kept = []
-        elif member[0] in keep:
-            kept.append(member[1])
-    out.append(_text(b",".join(kept)))
+    with open(path, "rb") as handle:
+        for frame, before in zip(frames, [{}] + members[:-1]):
+            out += [_kept(handle, before, keep), frame]
+        out.append(_kept(handle, members[-1], keep))
     return "".join(out)
+
+
+def _kept(handle: BinaryIO, members: dict[bytes, tuple[bytes, int, int]], keep: set[bytes]) -> str:
+    """The member lines of the aircraft in `keep`, read from their places and joined by commas."""
+    kept = []
+    for aircraft_id, (_, offset, length) in members.items():
+        if aircraft_id in keep:
+            handle.seek(offset)
+            kept.append(handle.read(length))
+    return _text(b",".join(kept))
 
 
 def _text(data: bytes) -> str:
@@ -119,8 +129,8 @@ def _trimmed_pair(old_path: Path, new_path: Path, old_where: str, new_where: str
     old, new = layout(old_path), layout(new_path)
     if len(old[0]) != len(new[0]):
         return None
-    changed = {aircraft_id for before, after in zip(old[1], new[1])
-               for aircraft_id in before.keys() | after.keys() if before.get(aircraft_id) != after.get(aircraft_id)}
+    changed = {aircraft_id for before, after in zip(old[1], new[1]) for aircraft_id in before.keys() | after.keys()
+               if _digest(before.get(aircraft_id)) != _digest(after.get(aircraft_id))}
     old_frame = _parsed("".join(old[0]))
     new_frame = _parsed("".join(new[0]))
     if not isinstance(old_frame, dict) or not isinstance(new_frame, dict):
@@ -130,5 +140,9 @@ def _trimmed_pair(old_path: Path, new_path: Path, old_where: str, new_where: str
         return None
     changed |= {str(key).split("/", 1)[0].encode("utf-8") for key in old_found.keys() | new_found.keys()
                 if old_found.get(key) != new_found.get(key)}
-    return (validate(_parsed(assemble(old_path, changed)), old_where),
-            validate(_parsed(assemble(new_path, changed)), new_where))
+    return (validate(_parsed(assemble(old_path, old, changed)), old_where),
+            validate(_parsed(assemble(new_path, new, changed)), new_where))
+
+
+def _digest(member: tuple[bytes, int, int] | None) -> bytes | None:
+    return member[0] if member is not None else None

@@ -2,7 +2,7 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Iterator
+from typing import Any, Iterator
 
 import jinja2
 
@@ -25,10 +25,25 @@ CHANGES_NAV = ("changes", "Changes", "changes.html")
 """Shown in the navigation only when the build was compared with an earlier one."""
 
 
+class SiteEnvironment(jinja2.Environment):
+    """Jinja's environment, with `a.b` on a plain dict looked up as a key first. The pages' views are
+    mostly dicts, and Jinja tries the attribute first: for a dict that raises and catches an
+    AttributeError every time (0.56 µs against 0.07 µs for an attribute), millions of times in a large
+    build. A dict's own methods (`counts.items()`) are still found when it has no key of that name."""
+
+    def getattr(self, obj: Any, attribute: str) -> Any:
+        if type(obj) is dict:
+            try:
+                return obj[attribute]
+            except KeyError:
+                pass
+        return super().getattr(obj, attribute)
+
+
 def environment() -> jinja2.Environment:
     """Autoescaping on, undefined variables fail loudly; templates are read once per process (a build
     never edits them, and checking each file's time for every page cost more than some pages)."""
-    env = jinja2.Environment(
+    env = SiteEnvironment(
         loader=jinja2.FileSystemLoader(TEMPLATE_DIR),
         auto_reload=False,
         autoescape=True,

@@ -44,6 +44,18 @@ class Plate:
         """The face's bounding box: its lowest and its highest (STA, BL, WL), metres; worked out once."""
         return tuple(map(float, self.vertices_m.min(axis=0))), tuple(map(float, self.vertices_m.max(axis=0)))
 
+    @cached_property
+    def sphere_m(self) -> tuple[np.ndarray, float]:
+        """The face's bounding sphere about its vertices' mean: centre (m) and radius (m); worked out once."""
+        return bounding_sphere(self.vertices_m)
+
+    @cached_property
+    def frame_m(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The face's in-plane axes (u, v, see `plane_basis`) and its polygon in them (n, 2), metres from
+        its first vertex; worked out once."""
+        u, v = plane_basis(self)
+        return u, v, (self.vertices_m - self.vertices_m[0]) @ np.stack([u, v], axis=1)
+
     def near(self, point_m: tuple[float, ...], margin_m: float) -> bool:
         """True when a point (metres) lies in the bounding box grown by margin_m on every side."""
         low, high = self.box_m
@@ -62,6 +74,23 @@ class AirframeShape:
     plates: tuple[Plate, ...] = ()
     from_outline: bool = False
     assumptions: tuple[str, ...] = ()
+
+    @cached_property
+    def plate_groups(self) -> tuple[tuple[tuple[Plate, ...], np.ndarray, float], ...]:
+        """The faces by slab (group, else the face's own name), in order of first appearance, each with
+        the bounding sphere of all its vertices (centre, radius; metres); worked out once per shape."""
+        groups: dict[str, list[Plate]] = {}
+        for plate in self.plates:
+            groups.setdefault(plate.group or plate.name, []).append(plate)
+        return tuple((tuple(faces), *bounding_sphere(np.concatenate([f.vertices_m for f in faces])))
+                     for faces in groups.values())
+
+
+def bounding_sphere(vertices_m: np.ndarray) -> tuple[np.ndarray, float]:
+    """A sphere holding every vertex (n, 3): centred on their mean, radius to the farthest, widened by
+    1e-9 of itself so that rounding never leaves a vertex outside."""
+    centre = vertices_m.mean(axis=0)
+    return centre, math.sqrt(float(((vertices_m - centre) ** 2).sum(axis=1).max())) * (1 + 1e-9)
 
 
 @dataclass(frozen=True)
@@ -201,9 +230,9 @@ def plane_basis(pl: Plate) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _plate_skin(pl: Plate, p: np.ndarray) -> SkinPoint | None:
-    u, v = plane_basis(pl)
+    u, v, poly = pl.frame_m
     rel = p - pl.vertices_m[0]
-    if not inside_polygon(np.array([rel @ u, rel @ v]), (pl.vertices_m - pl.vertices_m[0]) @ np.stack([u, v], 1)):
+    if not inside_polygon(np.array([rel @ u, rel @ v]), poly):
         return None
     off = float(rel @ pl.normal)
     return SkinPoint(pl.name, abs(off), pl.normal.copy(), p - off * pl.normal)

@@ -27,8 +27,8 @@ from functools import lru_cache
 
 import numpy as np
 
-from registry.physics.airframe_shape import (AirframeShape, inside_polygon, locate_on_skin, plane_basis,
-                                             segment_coefficients, to_metres)
+from registry.physics.airframe_shape import (AirframeShape, inside_polygon, locate_on_skin, segment_coefficients,
+                                             to_metres)
 
 
 @dataclass(frozen=True)
@@ -113,11 +113,10 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     return hit
 
 
-def _cone_filter(vertices_m: np.ndarray, p: np.ndarray, d: np.ndarray, idx: np.ndarray) -> np.ndarray:
-    """The indices among idx of the rays inside the cone from p holding the vertices' bounding sphere
-    (a pre-filter that never drops a hit: every point of a convex hull lies inside that sphere)."""
-    centre = vertices_m.mean(axis=0)
-    radius = math.sqrt(float(((vertices_m - centre) ** 2).sum(axis=1).max())) * (1 + 1e-9)
+def _cone_filter(centre: np.ndarray, radius: float, p: np.ndarray, d: np.ndarray, idx: np.ndarray) -> np.ndarray:
+    """The indices among idx of the rays inside the cone from p holding a bounding sphere (centre,
+    radius) of some vertices (a pre-filter that never drops a hit: every point of a convex hull lies
+    inside that sphere)."""
     to_c = centre - p
     dist = math.sqrt(float(to_c @ to_c))
     if dist <= radius:
@@ -128,27 +127,24 @@ def _cone_filter(vertices_m: np.ndarray, p: np.ndarray, d: np.ndarray, idx: np.n
 def plates_block(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:
     """Boolean (N,): the rays p + t d (t_min < t < t_max) cross one of the shape's faces inside its polygon.
 
-    Rays are first filtered by the cone of each group's (slab's) bounding sphere, then of each face's.
+    Rays are first filtered by the cone of each group's (slab's) bounding sphere, then of each face's
+    (spheres and in-plane frames are worked out once per shape, `AirframeShape.plate_groups`).
     """
     hit = np.zeros(d.shape[0], dtype=bool)
-    groups: dict[str, list] = {}
-    for pl in shape.plates:
-        groups.setdefault(pl.group or pl.name, []).append(pl)
     upper = np.inf if t_max is None else t_max
-    for faces in groups.values():
-        in_group = _cone_filter(np.concatenate([f.vertices_m for f in faces]), p, d, np.flatnonzero(~hit))
+    for faces, centre, radius in shape.plate_groups:
+        in_group = _cone_filter(centre, radius, p, d, np.flatnonzero(~hit))
         for pl in faces:
-            idx = _cone_filter(pl.vertices_m, p, d, in_group[~hit[in_group]])
+            idx = _cone_filter(*pl.sphere_m, p, d, in_group[~hit[in_group]])
             if idx.size == 0:
                 continue
             dd = d[idx]
-            u, v = plane_basis(pl)
+            u, v, poly = pl.frame_m
             origin = pl.vertices_m[0]
             denom = dd @ pl.normal
             t = ((origin - p) @ pl.normal) / np.where(np.abs(denom) > 1e-12, denom, 1.0)
             cand = (np.abs(denom) > 1e-12) & (t > t_min) & (t < upper)
             rel = p[None, :] + t[:, None] * dd - origin
-            poly = (pl.vertices_m - origin) @ np.stack([u, v], axis=1)
             hit[idx] = cand & inside_polygon(np.stack([rel @ u, rel @ v], axis=-1), poly)
     return hit
 

@@ -12,7 +12,7 @@ from pathlib import Path
 
 from typing import TYPE_CHECKING
 
-from markupsafe import Markup
+from markupsafe import Markup, escape
 
 from registry.load.fleet import REGISTRY_FILES, REGISTRY_FOLDERS
 from registry.site.pages import Output, page
@@ -104,9 +104,8 @@ def registry_page(data_dir: Path, relative: str) -> Output:
                 source=source_html(lines or []), too_large=lines is None)
 
 
-LINE = Markup('<span class="line" id="L{0}"><a class="ln" href="#L{0}">{0}</a>{1}\n</span>')
-
-
 def source_html(lines: list[str]) -> Markup:
-    """The lines as the page's source listing; each line's text escaped (Markup.format escapes it)."""
-    return Markup("").join(LINE.format(number, text) for number, text in enumerate(lines, start=1))
+    """The lines as the page's source listing; each line's text escaped (markupsafe's escape, in C: a
+    thousand aircraft files are 600,000 lines, and `Markup.format` took ten times as long)."""
+    return Markup("".join([f'<span class="line" id="L{number}"><a class="ln" href="#L{number}">{number}</a>'
+                           f'{escape(text)}\n</span>' for number, text in enumerate(lines, start=1)]))

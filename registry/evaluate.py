@@ -196,7 +196,9 @@ def _keep(results: FleetResults, aircraft_id: str, summary: AircraftSummary) -> 
     if summary.record is not None:
         results.records[aircraft_id] = summary.record
         summary = summary._replace(record=None)
-    results.summaries[aircraft_id] = summary
+    shared = results.figure_use_of
+    results.summaries[aircraft_id] = summary._replace(
+        figure_uses={shared.setdefault(use, use): count for use, count in summary.figure_uses.items()})
 
 
 def _merge(fleet: Fleet, results: FleetResults, parts: dict[str, AircraftPart],

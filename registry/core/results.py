@@ -302,6 +302,9 @@ class FleetResults:
     """Content key of each aircraft's inputs (empty when no cache is kept): equal keys, equal figures."""
     unloaded: set[str] = field(default_factory=set)
     """Aircraft whose full figures are still in the cache."""
+    figure_use_of: dict[FigureUse, FigureUse] = field(default_factory=dict, repr=False)
+    """One `FigureUse` for all the summaries that count it (each summary read back brings its own copy
+    of the same hundred-odd labels, formulas and sources: about 70 MB at 1,000 aircraft)."""
     loader: Callable[[FleetResults, list[str]], None] | None = field(default=None, repr=False)
     """Reads aircraft's full figures into these results (given them, so that it holds no reference back)."""
 

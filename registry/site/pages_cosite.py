@@ -5,6 +5,7 @@ analysed as receivers."""
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator
 from typing import Any
 
 from markupsafe import Markup, escape
@@ -216,10 +217,10 @@ def frequency_chart(cosite: AircraftCosite) -> Markup:
     return Markup("".join(parts))
 
 
-def type_cosite_pages(data: SiteData) -> list[Page]:
-    """One page per airframe type: the transmitter → receiver paths every aircraft of the type has, with
-    the worst margin over them and each aircraft's own (from the aircraft summaries, no figures loaded)."""
-    pages = []
+def type_cosite_pages(data: SiteData) -> Iterator[Page]:
+    """One page per airframe type, made as it is asked for: the transmitter → receiver paths every
+    aircraft of the type has, with the worst margin over them and each aircraft's own (from the aircraft
+    summaries, no figures loaded)."""
     small = data.fleet.policy.cosite_small_margin_db
     for airframe in data.fleet.airframes.values():
         members = [a for a in data.fleet.aircraft.values() if a.airframe == airframe.id]
@@ -241,7 +242,6 @@ def type_cosite_pages(data: SiteData) -> list[Page]:
                          "each": [{"registration": a.registration, "href": cosite_path(a.id),
                                    "margin": "—" if c.margin_db is None else number_text(c.margin_db, "dB"),
                                    "what": c.what} for a, c in each]})
-        pages.append(page(type_cosite_path(airframe.id), "cosite_type.html", "fleet",
-                          f"{airframe.name} interference", [("Fleet", "index.html"), (airframe.name, None)],
-                          airframe=airframe, members=members, rows=rows, small_db=small))
-    return pages
+        yield page(type_cosite_path(airframe.id), "cosite_type.html", "fleet",
+                   f"{airframe.name} interference", [("Fleet", "index.html"), (airframe.name, None)],
+                   airframe=airframe, members=members, rows=rows, small_db=small)

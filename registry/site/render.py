@@ -9,7 +9,7 @@ Everything is sorted and nothing depends on the clock, so the same data gives th
 from __future__ import annotations
 
 from collections import defaultdict
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 from typing import Any, Iterable
 
@@ -123,9 +123,22 @@ def finish_site(site: SiteRun, discrepancies: Iterable[Discrepancy], pieces: dic
     files.update(site.put([fleet_page(data)]))
     pieces.update(site.aircraft.render_all(files, workers, progress, skip=set(pieces)))
     progress.stage("rendering fleet pages", 1)
-    files.update(site.put(fleet_wide_pages(data, pieces, site.store)))
+    files.update(render_one_by_one(site, fleet_wide_pages(data, pieces, site.store)))
     files.update(render_shared_out(site, aircraft_report_pages(data), workers))
     return dict(sorted(files.items()))
+
+
+def render_one_by_one(site: SiteRun, outputs: Iterable[Output]) -> dict[str, str | bytes]:
+    """Render `outputs` as they come: with a writer, each file is handed to it at once and the files
+    not yet written (none) are returned, else all of them are. A large fleet's fleet-wide pages run to
+    megabytes each (every aircraft's margin on the airframe type's interference page, the search index),
+    and neither their contexts nor their text are then held all at once."""
+    if site.aircraft.writer is None:
+        return site.put(outputs)
+    for output in outputs:
+        for path, content in site.put([output]).items():
+            site.aircraft.writer(path, content)
+    return {}
 
 
 def render_shared_out(site: SiteRun, makers: list[Callable[[], Output]], workers: int) -> dict[str, str | bytes]:
@@ -150,22 +163,21 @@ def shared_context(data: SiteData) -> dict[str, Any]:
             "nav_items": NAV_ITEMS + ((CHANGES_NAV,) if data.comparison is not None else ())}
 
 
-def fleet_wide_pages(data: SiteData, pieces: dict[str, AircraftPieces], store: plots.PlotStore) -> list[Output]:
-    """The catalogue, services, audit, methods and search pages (and the changes page with a comparison)."""
-    outputs = antenna_pages(data, pieces)
-    outputs += cable_pages(data, pieces, plot_files.cable_plots(data.results, list(data.fleet.cables), store))
-    outputs.append(services_page(data, pieces))
-    outputs += audit_pages(data)
-    outputs.append(methods_page(data))
-    outputs += type_cosite_pages(data)
-    outputs += search_pages(data, pieces)
-    outputs.append(fleet_report_page(data))
+def fleet_wide_pages(data: SiteData, pieces: dict[str, AircraftPieces], store: plots.PlotStore) -> Iterator[Output]:
+    """The catalogue, services, audit, methods and search pages (and the changes page with a comparison),
+    made one after the other as they are rendered."""
+    yield from antenna_pages(data, pieces)
+    yield from cable_pages(data, pieces, plot_files.cable_plots(data.results, list(data.fleet.cables), store))
+    yield services_page(data, pieces)
+    yield from audit_pages(data)
+    yield methods_page(data)
+    yield from type_cosite_pages(data)
+    yield from search_pages(data, pieces)
+    yield fleet_report_page(data)
     if data.comparison is not None:
-        outputs.append(page("changes.html", "changes.html", "changes", "Changes in this build",
-                            [("Fleet", "index.html"), ("Changes", None)],
-                            **changes_page(data.comparison, aircraft_href=aircraft_path,
-                                           installation_href=installation_path)))
-    return outputs
+        yield page("changes.html", "changes.html", "changes", "Changes in this build",
+                   [("Fleet", "index.html"), ("Changes", None)],
+                   **changes_page(data.comparison, aircraft_href=aircraft_path, installation_href=installation_path))
 
 
 class AircraftRun:

@@ -21,7 +21,7 @@ import numpy as np
 import pytest
 
 from registry import pipeline
-from registry.core.results import AircraftPart, AircraftSummary, Curve, Figure, PatternResult
+from registry.core.results import AircraftSummary, Curve, Figure, PatternResult
 from registry.evaluate import evaluate_fleet
 from registry.incremental import DiskCache, version_folder
 from registry.incremental import codec, store

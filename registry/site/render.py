@@ -146,13 +146,8 @@ def render_shared_out(site: SiteRun, makers: list[Callable[[], Output]], workers
     when there is one (the aircraft's printable reports, made again every build), else here; the files not
     yet written."""
     if site.aircraft.writer is None:
-        return site.put([make() for make in makers])
-
-    def one(n: int) -> None:
-        for path, content in site.put([makers[n]()]).items():
-            site.aircraft.writer(path, content)
-
-    for _ in ordered_map(one, range(len(makers)), workers):
+        return render_one_by_one(site, (make() for make in makers))
+    for _ in ordered_map(lambda n: render_one_by_one(site, [makers[n]()]), range(len(makers)), workers):
         pass
     return {}
 

@@ -43,7 +43,7 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
     transmitters = sorted({p for p, _, side, _ in cosite.bands if side == "tx"})
     receivers = sorted({p for p, _, side, _ in cosite.bands if side == "rx"})
     paths = {(path.tx, path.rx): path for path in cosite.paths}
-    notes = Notes(data.src_text)
+    notes = Notes(data.src_text, data.figure_cells.macros.arithmetic_row)
     rows = [{"tx": tx, "cells": [cell(paths.get((tx, rx)), tx == rx, small, notes) for rx in receivers]}
             for tx in transmitters]
     products = sorted((item for item in cosite.intermod if not item.excused_by), key=intermod_order)
@@ -89,36 +89,50 @@ def margin_text(hit: CositeHit) -> str:
 
 
 class Notes:
-    """The page's numbered sources, and how it shows a registry line (relative to the data folder)."""
+    """The page's numbered sources, how it shows a registry line (relative to the data folder), and its
+    arithmetic rows: a page's products share most of their figures (the same feeders, couplings and
+    thresholds recur), so each distinct figure's row is rendered once per page."""
 
-    def __init__(self, src_text):
+    def __init__(self, src_text, row_macro):
         self.numbers: dict[str, int] = {}
         self.src_text = src_text
+        self.row_macro = row_macro
+        self.rows: dict[Figure, str] = {}
 
     def number(self, source: str) -> int | None:
         return self.numbers.setdefault(source, len(self.numbers) + 1) if source else None
+
+    def rows_of(self, figures: tuple[Figure, ...]) -> Markup:
+        """The figures' rows of an arithmetic table (`partials/figures.html`, `arithmetic_row`);
+        sources numbered in the order the page first shows them."""
+        out = []
+        for f in figures:
+            try:
+                row = self.rows.get(f)
+            except TypeError:  # a value that cannot be hashed: rendered, not remembered
+                row = str(self.row_macro(figure_view(f, self)))
+            if row is None:
+                row = self.rows[f] = str(self.row_macro(figure_view(f, self)))
+            out.append(row)
+        return Markup("".join(out))
 
 
 STANDINGS = ("sourced", "common practice, no source", "unverified", "installed radio", "policy")
 
 
-def figure_views(figures: tuple[Figure, ...], notes: Notes) -> list[dict[str, Any]]:
-    """Figures as table rows; each source is numbered once per page (`notes`) and shown by its number and
-    standing, so long source texts are not repeated in every cell."""
-    rows = []
-    for f in figures:
-        standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
-        rows.append({"label": f.label, "value": format_value(f),
-                     "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs) if f.key == FK.COSITE_COUPLING_DB
-                     else "", "note": notes.number(f.source),
-                     "standing": standing, "src": notes.src_text(f.src) if f.src else ""})
-    return rows
+def figure_view(f: Figure, notes: Notes) -> dict[str, Any]:
+    """A figure as an arithmetic table's row; its source is numbered once per page (`notes`) and shown by its
+    number and standing, so long source texts are not repeated in every cell."""
+    standing = next((word for word in STANDINGS if f.source.startswith(word)), "")
+    return {"label": f.label, "value": format_value(f),
+            "inputs": ", ".join(f"{k} = {v}" for k, v in f.inputs) if f.key == FK.COSITE_COUPLING_DB else "",
+            "note": notes.number(f.source), "standing": standing, "src": notes.src_text(f.src) if f.src else ""}
 
 
 def hit_view(hit: CositeHit, notes: Notes) -> dict[str, Any]:
     """A hit's arithmetic, figure by figure and written out."""
     return {"product": hit.product, "channels": hit.channels,
-            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "figures": figure_views(hit.figures, notes),
+            "at": f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", "rows": notes.rows_of(hit.figures),
             "sum": arithmetic(hit.figures)}
 
 
@@ -172,7 +186,7 @@ def intermod_view(item: CositeIntermod, small_db: float, notes: Notes, number: i
     text = (format_value(next(f for f in item.figures if f.key == FK.COSITE_MARGIN_DB)) if margin is not None
             else "no level" + (f" ({'; '.join(missing)}: not given)" if missing else ""))
     return {"item": item, "state": state, "text": text, "id": f"im-{number + 1}",
-            "figures": figure_views(item.figures, notes) if margin is not None else [],
+            "rows": notes.rows_of(item.figures) if margin is not None else Markup(""),
             "sum": intermod_arithmetic(item.figures)}
 
 

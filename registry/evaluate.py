@@ -174,7 +174,8 @@ def compute(plan: Plan, workers: int, progress: Progress = QUIET, then: Then | N
 
     progress.stage("computing aircraft", len(plan.todo))
     done: dict[str, Any] = {}
-    computed = ordered_map(one, plan.todo, workers, progress)
+    # the first aircraft of each airframe type in this process: the workers inherit its type's caches
+    computed = ordered_map(one, plan.todo, workers, progress, warm_by=lambda job: fleet.aircraft[job[0]].airframe)
     # the generator first, so that zip runs it to its end and its worker pool is closed
     for (part, summary, patterns, extra), (aircraft_id, key) in zip(computed, plan.todo):
         if part is None:

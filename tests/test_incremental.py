@@ -187,3 +187,29 @@ def test_check_reads_the_findings_from_the_cache_and_says_the_same(tmp_path, cap
     assert said[0] == said[1] == said[2]
     assert said[0][0] == 1 and json.loads(said[0][1])["discrepancies"]
     assert any((diskcache.version_folder(tmp_path / "c") / "summaries").rglob("*.entry"))
+
+
+WARMED: dict[int, int] = {}
+"""What a task left in its process's memory, by kind (for the warm-up test below)."""
+
+
+def _note_and_report(item: int) -> tuple[int, int, tuple[int, ...]]:
+    import os
+    WARMED.setdefault(item % 3, item)
+    return item, os.getpid(), tuple(sorted(WARMED))
+
+
+def test_workers_start_with_what_the_first_item_of_each_kind_left_in_the_parent():
+    """ordered_map(warm_by=...): the first item of each kind runs in this process before any worker is
+    forked, results keep their order, and every worker sees what those items cached (internal behaviour,
+    no external source)."""
+    import os
+    from registry.incremental.parallel import ordered_map
+    WARMED.clear()
+    try:
+        out = list(ordered_map(_note_and_report, range(40), 2, warm_by=lambda item: item % 3))
+    finally:
+        WARMED.clear()
+    assert [item for item, _, _ in out] == list(range(40))
+    assert {item for item, pid, _ in out if pid == os.getpid()} == {0, 1, 2}
+    assert all(pid != os.getpid() and kinds == (0, 1, 2) for item, pid, kinds in out[3:])

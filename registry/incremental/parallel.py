@@ -2,7 +2,7 @@
 from __future__ import annotations
 
 import multiprocessing
-from collections.abc import Callable, Iterable, Iterator, Sequence
+from collections.abc import Callable, Hashable, Iterable, Iterator, Sequence
 from typing import Any, Protocol
 
 from registry.core.progress import QUIET, Progress
@@ -24,12 +24,17 @@ def _run(item: Any) -> Any:
 
 
 def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
-                progress: Progress = QUIET) -> Iterator[Any]:
+                progress: Progress = QUIET, warm_by: Callable[[Any], Hashable] | None = None) -> Iterator[Any]:
     """task(item) for every item, in order, advancing `progress` once per item.
 
     With several `workers`, enough items and a platform that can fork, the items are shared out over
     forked processes; only the items and the results cross between processes, so the task may be any
     closure. Run the returned iterator to its end: that closes the workers.
+
+    `warm_by` names each item's kind (an aircraft's airframe type, say): the first item of each kind is
+    done here before any worker is forked, so that every worker, the replacements included, starts with
+    what those items left in this process's caches (shapes, tables, compiled templates) instead of
+    working it out again. A fresh process spends about 1.5 s on its first aircraft's caches.
     """
     global _TASK
     items = list(items)
@@ -38,14 +43,23 @@ def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
             yield task(item)
             progress.advance()
         return
+    done: dict[int, Any] = {}
+    if warm_by is not None:
+        firsts: dict[Hashable, int] = {}
+        for n, item in enumerate(items):
+            firsts.setdefault(warm_by(item), n)
+        for n in sorted(firsts.values()):
+            done[n] = task(items[n])
+    rest = [item for n, item in enumerate(items) if n not in done]
     _TASK = task
     try:
-        chunksize = max(1, len(items) // (workers * 32))
+        chunksize = max(1, len(rest) // (workers * 32))
         chunks_per_worker = max(1, -(-ITEMS_PER_WORKER // chunksize))
         with multiprocessing.get_context("fork").Pool(workers, maxtasksperchild=chunks_per_worker) as pool:
             # small chunks: the last ones finish close together, so no worker idles long at the end
-            for result in pool.imap(_run, items, chunksize=chunksize):
-                yield result
+            results = pool.imap(_run, rest, chunksize=chunksize)
+            for n in range(len(items)):
+                yield done.pop(n) if n in done else next(results)
                 progress.advance()
     finally:
         _TASK = None

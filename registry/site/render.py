@@ -201,7 +201,7 @@ class AircraftRun:
         # in worker processes only when their pages can be written from there; the generator first in
         # zip, so that it is run to its end and its workers are closed
         entries = ordered_map(lambda aircraft: self.render(aircraft, files),
-                              todo, workers if self.writer else 1, progress)
+                              todo, workers if self.writer else 1, progress, warm_by=lambda aircraft: aircraft.airframe)
         for (entry, made), aircraft in zip(entries, todo):
             pieces[aircraft.id] = made
             self.keep(aircraft.id, entry, made)

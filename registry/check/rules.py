@@ -335,14 +335,15 @@ def cosite_discrepancies(fleet: Fleet, cosite: AircraftCosite) -> list[Discrepan
     its value is the worst margin."""
     small = fleet.policy.cosite_small_margin_db
     by_pair: dict[tuple[str, str], list[tuple[float, str, Figure, str]]] = {}
+    # only margins under the small margin can make a finding: an aircraft has about a thousand products
     for path in cosite.paths:
         for hit in path.hits:
-            if hit.margin_db is not None:
+            if hit.margin_db is not None and hit.margin_db < small:
                 by_pair.setdefault(tuple(sorted((path.tx, path.rx))), []).append(
                     (hit.margin_db, f"{path.tx} → {path.rx}: {hit.channels}, {hit.product} at "
                      f"{hit.product_lo_mhz:.3f}–{hit.product_hi_mhz:.3f} MHz", _margin_of(hit.figures), "harmonic"))
     for item in cosite.intermod:
-        if item.margin_db is not None and not item.excused_by:
+        if item.margin_db is not None and item.margin_db < small and not item.excused_by:
             by_pair.setdefault(tuple(sorted((item.generator, item.rx))), []).append(
                 (item.margin_db, f"{item.tx_a} + {item.tx_b} → {item.rx}: {item.product} (order {item.order}, made in "
                  f"{item.generator}) at {item.product_mhz[0]:.3f}–{item.product_mhz[1]:.3f} MHz from f1 "

@@ -165,3 +165,19 @@ def test_every_reported_product_lies_in_the_victims_band(demo_fleet):
             rx = demo_fleet.aircraft[aircraft.id].installations[item.rx]
             bands = demo_fleet.services[rx.service].rx_bands_mhz
             assert any(lo - 1e-6 <= item.product_mhz[0] <= item.product_mhz[1] <= hi + 1e-6 for lo, hi in bands)
+
+
+def test_interference_page_lays_out_the_worst_and_the_small_margin_products(demo_site, demo_fleet):
+    """QX-TJA's intermodulation table: the worst INTERMOD_ARITHMETIC rated products and every product under
+    the policy's small margin open their arithmetic; a product with a larger margin further down shows its
+    margin only (internal page rule, no external source)."""
+    from registry.site.pages_cosite import INTERMOD_ARITHMETIC
+    html = (demo_site / "aircraft" / "qx-tja" / "interference.html").read_text(encoding="utf-8")
+    table = html[html.index('<table class="cosite-intermod">'):]
+    table = table[:table.index("</table></div>")]
+    rows = re.findall(r'<tr data-product="[^"]*">.*?<td class="cosite-(\w+)">([^<]*)</td></tr>\n'
+                      r'(<tr class="cosite-im-arith">)?', table, re.S)
+    assert len(rows) > INTERMOD_ARITHMETIC
+    for n, (state, margin, arithmetic) in enumerate(rows):
+        assert bool(arithmetic) == (state != "unrated" and (n < INTERMOD_ARITHMETIC or state != "ok")), (n, state, margin)
+    assert any(state == "ok" and not arithmetic for state, _, arithmetic in rows)

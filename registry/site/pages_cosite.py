@@ -22,6 +22,10 @@ from registry.site.svg import n
 
 INTERMOD_SHOWN = 60
 """Intermodulation products listed on the page; the rest are counted (`check --details` lists all)."""
+INTERMOD_ARITHMETIC = 10
+"""Listed products whose arithmetic the page lays out: the worst this many, and every one whose margin is
+under the policy's small margin; the others show their margin (their arithmetic is the same, with their
+own numbers, and `check --details` lays each out)."""
 
 
 def cosite_path(aircraft_id: str) -> str:
@@ -54,7 +58,9 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
                 airframe=data.fleet.airframe_of(aircraft), type_href=type_cosite_path(aircraft.airframe),
                 max_order=data.fleet.policy.cosite_max_harmonic_order,
                 chart=frequency_chart(cosite),
-                intermod=[intermod_view(item, small, notes, n) for n, item in enumerate(products[:INTERMOD_SHOWN])],
+                intermod=[intermod_view(item, small, notes, n, n < INTERMOD_ARITHMETIC)
+                          for n, item in enumerate(products[:INTERMOD_SHOWN])],
+                intermod_arithmetic=INTERMOD_ARITHMETIC,
                 intermod_more=max(0, len(products) - INTERMOD_SHOWN),
                 intermod_unrated=sum(1 for item in products if item.margin_db is None),
                 not_analysed=cosite.not_analysed,
@@ -178,16 +184,18 @@ def intermod_order(item: CositeIntermod) -> tuple:
     return (item.margin_db is None, item.margin_db or 0.0, item.tx_a, item.tx_b, item.rx, item.product)
 
 
-def intermod_view(item: CositeIntermod, small_db: float, notes: Notes, number: int) -> dict[str, Any]:
-    """One product's row: where it lands, which transmitter makes it, its margin and its arithmetic."""
+def intermod_view(item: CositeIntermod, small_db: float, notes: Notes, number: int, worst: bool) -> dict[str, Any]:
+    """One product's row: where it lands, which transmitter makes it, its margin, and its arithmetic when it
+    is among the `worst` or its margin is under the small margin (`INTERMOD_ARITHMETIC`)."""
     margin = item.margin_db
     state = ("unrated" if margin is None else "unserviceable" if margin < 0 else "query" if margin < small_db else "ok")
+    laid_out = margin is not None and (worst or state != "ok")
     missing = [f.label for f in item.figures if f.value is None]
     text = (format_value(next(f for f in item.figures if f.key == FK.COSITE_MARGIN_DB)) if margin is not None
             else "no level" + (f" ({'; '.join(missing)}: not given)" if missing else ""))
     return {"item": item, "state": state, "text": text, "id": f"im-{number + 1}",
-            "rows": notes.rows_of(item.figures) if margin is not None else Markup(""),
-            "sum": intermod_arithmetic(item.figures)}
+            "rows": notes.rows_of(item.figures) if laid_out else Markup(""),
+            "sum": intermod_arithmetic(item.figures) if laid_out else ""}
 
 
 CHART_WIDTH, ROW_HEIGHT, LEFT, TOP = 860, 22, 150, 28

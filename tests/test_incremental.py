@@ -213,3 +213,38 @@ def test_workers_start_with_what_the_first_item_of_each_kind_left_in_the_parent(
     assert [item for item, _, _ in out] == list(range(40))
     assert {item for item, pid, _ in out if pid == os.getpid()} == {0, 1, 2}
     assert all(pid != os.getpid() and kinds == (0, 1, 2) for item, pid, kinds in out[3:])
+
+
+class _Cyclic:
+    """An object kept alive only by a reference cycle; LIVE counts those not yet freed in this process."""
+
+    LIVE = 0
+
+    def __init__(self):
+        _Cyclic.LIVE += 1
+        self.me = self
+
+    def __del__(self):
+        _Cyclic.LIVE -= 1
+
+
+def _leave_a_cycle(item: int) -> int:
+    _Cyclic()
+    return _Cyclic.LIVE
+
+
+def test_workers_free_reference_cycles_while_the_collector_is_paused():
+    """A build pauses the cycle collector (collector_paused); a worker still frees what its items leave in
+    cycles every COLLECT_EVERY items, so its memory does not grow with the items it does (internal
+    behaviour, no external source)."""
+    import gc
+    from registry.incremental import parallel
+    enabled = gc.isenabled()
+    gc.disable()
+    try:
+        live = list(parallel.ordered_map(_leave_a_cycle, range(300), 2))
+    finally:
+        if enabled:
+            gc.enable()
+    assert max(live) <= parallel.COLLECT_EVERY
+    assert max(live) > 1

@@ -1,6 +1,7 @@
 """Work shared out over forked processes, for the stages that go aircraft by aircraft."""
 from __future__ import annotations
 
+import gc
 import multiprocessing
 from collections.abc import Callable, Hashable, Iterable, Iterator, Sequence
 from typing import Any, Protocol
@@ -9,18 +10,41 @@ from registry.core.progress import QUIET, Progress
 
 MIN_ITEMS = 8
 """Below this many items the work stays in this process: starting workers would cost more."""
-ITEMS_PER_WORKER = 100
+ITEMS_PER_WORKER = 500
 """A worker is replaced by a fresh fork after about this many items (in whole chunks): what it kept for
-itself (figures cached per process, rendered fragments) goes with it, so a worker's memory stays near its
-parent's however large the fleet; a fresh fork inherits everything the parent worked out before the work
-began (patterns, impedances, compiled templates)."""
+itself (figures cached per process, rendered fragments) goes with it; a fresh fork inherits everything the
+parent worked out before the work began (patterns, impedances, compiled templates, the first aircraft of
+each type: `ordered_map`'s `warm_by`)."""
+COLLECT_EVERY = 25
+"""A worker runs the cycle collector after this many items, over what it made since the last time only
+(`_start_worker`, `_run`). The build pauses the collector (`collector.collector_paused`), and rendering leaves
+reference cycles (Jinja's contexts): without collections a worker grew by about 1.8 MB an aircraft and had
+to be replaced every hundred. Measured at 1,000 aircraft: every 25 items and replaced after 500, no worker
+grows past its parent's size (457 MB against 511 MB) and the build takes 142 s of CPU in the workers
+against 158 s."""
 
 _TASK: Callable[[Any], Any] | None = None
 """The task a forked worker runs: inherited from the parent at fork time, so it is never pickled."""
 
 
+_DONE = 0
+"""Items this worker has done (for COLLECT_EVERY)."""
+
+
+def _start_worker() -> None:
+    """A fresh worker leaves what it inherited out of the collector's walks (gc.freeze: the parent's
+    objects, which it keeps alive anyway), so that its collections walk only what it made itself."""
+    gc.freeze()
+
+
 def _run(item: Any) -> Any:
-    return _TASK(item)
+    global _DONE
+    result = _TASK(item)
+    _DONE += 1
+    if _DONE % COLLECT_EVERY == 0:
+        gc.collect()  # rendering leaves reference cycles: freed here, so a worker's memory stays flat
+        gc.freeze()   # and what survives is not walked again
+    return result
 
 
 def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
@@ -55,7 +79,7 @@ def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
     try:
         chunksize = max(1, len(rest) // (workers * 32))
         chunks_per_worker = max(1, -(-ITEMS_PER_WORKER // chunksize))
-        with multiprocessing.get_context("fork").Pool(workers, maxtasksperchild=chunks_per_worker) as pool:
+        with multiprocessing.get_context("fork").Pool(workers, _start_worker, maxtasksperchild=chunks_per_worker) as pool:
             # small chunks: the last ones finish close together, so no worker idles long at the end
             results = pool.imap(_run, rest, chunksize=chunksize)
             for n in range(len(items)):

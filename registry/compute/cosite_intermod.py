@@ -64,8 +64,9 @@ class Rating:
     def rated(self, head: tuple, first_generates: bool, pair: tuple[Side, Side], rx: Side) -> CositeIntermod:
         """The product (`head`: the `CositeIntermod` fields up to `excused_by`) with its generator, level and
         margin (figures step by step; margin None when a figure for the level is missing: a power or the
-        conversion loss of the generator's order). The first transmitter of `pair` generates when its
-        coefficient is the larger (`first_generates`)."""
+        conversion loss of the generator's order, and then the figures stop at the product's making, as
+        nothing after it can give a level). The first transmitter of `pair` generates when its coefficient
+        is the larger (`first_generates`)."""
         generator, intruder = pair if first_generates else (pair[1], pair[0])
         order, f1_mhz, f2_mhz, product_mhz = head[5], head[6], head[7], head[8]
         intruder_lo = (f2_mhz if generator is pair[0] else f1_mhz)[0]
@@ -73,12 +74,12 @@ class Rating:
         if key not in self.heads:
             self.heads[key] = product_figures(intruder, generator, order, intruder_lo, self.geometry)
         figures, tx = self.heads[key]
+        if tx is None:  # no level: the figures end where one is missing (a power or the conversion loss)
+            return CositeIntermod(*head, generator.position, None, figures)
         key = (generator.position, rx.position, product_mhz[0])
         if key not in self.tails:
             self.tails[key] = receiver_figures(generator, rx, product_mhz[0], self.geometry)
         out, receive, plane, generator_feeder = self.tails[key]
-        if tx is None:
-            return CositeIntermod(*head, generator.position, None, figures + out + receive)
         m = cosite.interference_margin(tx.product_dbm, 0.0, generator_feeder, out[-1].value,
                                        receive[0].value if plane == "receiver_input" else 0.0, receive[-1].value,
                                        plane)

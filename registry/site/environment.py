@@ -5,6 +5,7 @@ from pathlib import Path
 from typing import Any, Iterator
 
 import jinja2
+import jinja2.compiler
 
 from registry.site.format import exact, fmt, vswr_text
 from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, STATUS_LABELS
@@ -25,11 +26,24 @@ CHANGES_NAV = ("changes", "Changes", "changes.html")
 """Shown in the navigation only when the build was compared with an earlier one."""
 
 
+class _QuickEscapeGenerator(jinja2.compiler.CodeGenerator):
+    """Compiles templates as Jinja does, then points their `escape` at `escaping.escape` (the same output,
+    about twice as quick for text and numbers): the compiled module looks the name up when a page is
+    rendered, so rebinding it at the end of the module is enough."""
+
+    def visit_Template(self, node, frame=None) -> None:
+        super().visit_Template(node, frame)
+        self.writeline("from registry.site.escaping import escape")
+
+
 class SiteEnvironment(jinja2.Environment):
-    """Jinja's environment, with `a.b` on a plain dict looked up as a key first. The pages' views are
-    mostly dicts, and Jinja tries the attribute first: for a dict that raises and catches an
-    AttributeError every time (0.56 µs against 0.07 µs for an attribute), millions of times in a large
-    build. A dict's own methods (`counts.items()`) are still found when it has no key of that name."""
+    """Jinja's environment, with `a.b` on a plain dict looked up as a key first, and templates that
+    escape through `escaping.escape`. The pages' views are mostly dicts, and Jinja tries the attribute
+    first: for a dict that raises and catches an AttributeError every time (0.56 µs against 0.07 µs for an
+    attribute), millions of times in a large build. A dict's own methods (`counts.items()`) are still
+    found when it has no key of that name."""
+
+    code_generator_class = _QuickEscapeGenerator
 
     def getattr(self, obj: Any, attribute: str) -> Any:
         if type(obj) is dict:

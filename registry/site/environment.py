@@ -7,6 +7,7 @@ from typing import Any, Iterator
 import jinja2
 import jinja2.compiler
 
+from registry.site import escaping
 from registry.site.format import exact, fmt, vswr_text
 from registry.site.labels import SEVERITY_LABELS, STATE_LABELS, STATUS_LABELS
 
@@ -33,7 +34,7 @@ class _QuickEscapeGenerator(jinja2.compiler.CodeGenerator):
 
     def visit_Template(self, node, frame=None) -> None:
         super().visit_Template(node, frame)
-        self.writeline("from registry.site.escaping import escape")
+        self.writeline(f"from {escaping.__name__} import escape")
 
 
 class SiteEnvironment(jinja2.Environment):

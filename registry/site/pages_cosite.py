@@ -60,7 +60,7 @@ def cosite_page(data: SiteData, aircraft: Aircraft, cosite: AircraftCosite) -> P
                 chart=frequency_chart(cosite),
                 intermod=[intermod_view(item, small, notes, n, n < INTERMOD_ARITHMETIC)
                           for n, item in enumerate(products[:INTERMOD_SHOWN])],
-                intermod_arithmetic=INTERMOD_ARITHMETIC,
+                arithmetic_shown=INTERMOD_ARITHMETIC,
                 intermod_more=max(0, len(products) - INTERMOD_SHOWN),
                 intermod_unrated=sum(1 for item in products if item.margin_db is None),
                 not_analysed=cosite.not_analysed,
@@ -116,17 +116,21 @@ class Notes:
             try:
                 row = self.rows.get(f)
             except TypeError:  # a value that cannot be hashed: rendered, not remembered
-                row = str(self.row_macro(figure_view(f, self)))
+                out.append(self.row(f))
+                continue
             if row is None:
-                row = self.rows[f] = str(self.row_macro(figure_view(f, self)))
+                row = self.rows[f] = self.row(f)
             out.append(row)
         return Markup("".join(out))
+
+    def row(self, f: Figure) -> str:
+        return str(self.row_macro(arithmetic_view(f, self)))
 
 
 STANDINGS = ("sourced", "common practice, no source", "unverified", "installed radio", "policy")
 
 
-def figure_view(f: Figure, notes: Notes) -> dict[str, Any]:
+def arithmetic_view(f: Figure, notes: Notes) -> dict[str, Any]:
     """A figure as an arithmetic table's row; its source is numbered once per page (`notes`) and shown by its
     number and standing, so long source texts are not repeated in every cell."""
     standing = next((word for word in STANDINGS if f.source.startswith(word)), "")

@@ -141,3 +141,27 @@ def test_fin_shades_a_crown_antenna_straight_aft_only():
     low_aft = g.blocked[(g.el_deg > 0) & (g.el_deg < 10)][:, 180]
     assert low_aft.all()  # straight aft, just above the crown: the fin
     assert not g.blocked[(g.el_deg > 0)][:, 150].any()  # 30 deg off the tail: clear
+
+
+def test_a_single_line_of_sight_enters_the_fuselage_exactly_when_the_ray_fan_says_so():
+    """`fuselage_blocks` takes one ray (a line of sight, `segment_clear`) over every segment at once and a
+    fan of rays segment by segment; the two must agree ray for ray, whichever the ray: from inside the
+    fuselage's stations or beyond them, across the axis (dx = 0) or along it, cut short or not. Reference:
+    the same geometry through the fan's path (consistency, no outside source); the fan's own results are
+    checked against closed-form solid angles above."""
+    from registry.physics.shadowing import fuselage_blocks
+    data = _fleet("tc-44")  # a tapered fuselage from the demo outline: segments of every slope
+    shape = shape_from_outline(data["fuselage"], 0.0254, data["wing"], data["fin"])
+    rng = np.random.default_rng(7)
+    low, high = shape.sta_m[0], shape.sta_m[-1]
+    points = np.column_stack([rng.uniform(low - 2, high + 2, 400), rng.uniform(-3, 3, 400), rng.uniform(-1, 4, 400)])
+    rays = rng.normal(size=(400, 3))
+    rays[::9, 0] = 0.0  # across the axis: no station range to intersect
+    rays /= np.linalg.norm(rays, axis=1)[:, None]
+    entered = 0
+    for n, (p, d) in enumerate(zip(points, rays)):
+        t_max = None if n % 3 == 0 else 0.5 + n / 20
+        fan = fuselage_blocks(shape, p, np.vstack([d, -d]), 1e-9, t_max)[0]
+        assert fuselage_blocks(shape, p, d[None, :], 1e-9, t_max)[0] == fan
+        entered += bool(fan)
+    assert 20 < entered < 380  # both answers occur

@@ -91,6 +91,10 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     tol = 1e-9 * float(np.max(shape.half_width_m)) ** 2
     big = 1e3 * (shape.sta_m[-1] - shape.sta_m[0]) + 1e3 * float(np.linalg.norm(p))
     big = big if t_max is None else float(t_max)
+    if d.shape[0] == 1:  # one ray (a line of sight): every segment at once, the same arithmetic
+        return np.array([_fuselage_hits(np.asarray(x0s), np.asarray(x1s), np.asarray(w0s), np.asarray(dws),
+                                        np.asarray(c0s), np.asarray(dcs), np.asarray(qs), p, d[0], t_min, big,
+                                        tol).any()])
     dx, dy, dz = d[:, 0], d[:, 1], d[:, 2]
     hit = np.zeros(d.shape[0], dtype=bool)
     safe_dx = np.where(np.abs(dx) > 1e-12, dx, 1.0)
@@ -111,6 +115,31 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
         f_v = np.where(a > 0, (a * t_v + b) * t_v + c, np.inf)
         hit |= ok & (np.minimum(np.minimum(f_lo, f_hi), f_v) < -tol)
     return hit
+
+
+def _fuselage_hits(x0, x1, w0, dw, c0, dc, q, p: np.ndarray, d: np.ndarray, t_min: float, big: float,
+                   tol: float) -> np.ndarray:
+    """`fuselage_blocks` for one ray d (3,), over every segment at once (x0 ... q arrays (S,), from
+    `segment_coefficients`): boolean (S,), the segments the ray enters. The same operations in the same
+    order as the per-segment loop, so the same bits."""
+    dx, dy, dz = d[0], d[1], d[2]
+    w_p, c_p = w0 + dw * (p[0] - x0), c0 + dc * (p[0] - x0)
+    ez = dz - dc * dx
+    a = dy**2 + (ez / q) ** 2 - (dw * dx) ** 2
+    b = 2 * (p[1] * dy + (p[2] - c_p) * ez / q**2 - w_p * dw * dx)
+    c = p[1] ** 2 + ((p[2] - c_p) / q) ** 2 - w_p**2
+    if abs(dx) > 1e-12:
+        ta, tb = (x0 - p[0]) / dx, (x1 - p[0]) / dx
+        lo, hi = np.minimum(ta, tb), np.maximum(ta, tb)
+    else:
+        inside_x = (x0 <= p[0]) & (p[0] <= x1)
+        lo, hi = np.where(inside_x, -big, big), np.where(inside_x, big, -big)
+    lo, hi = np.maximum(lo, t_min), np.minimum(hi, big)
+    ok = hi > lo
+    f_lo, f_hi = (a * lo + b) * lo + c, (a * hi + b) * hi + c
+    t_v = np.clip(-b / np.where(a > 0, 2 * a, 1.0), lo, hi)
+    f_v = np.where(a > 0, (a * t_v + b) * t_v + c, np.inf)
+    return ok & (np.minimum(np.minimum(f_lo, f_hi), f_v) < -tol)
 
 
 def _cone_filter(centre: np.ndarray, radius: float, p: np.ndarray, d: np.ndarray, idx: np.ndarray) -> np.ndarray:

@@ -31,18 +31,20 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
     one suppression line are marked excused (and get no level)."""
     out = []
     rating = Rating(geometry)
+    tx_bands = [[tuple(band) for band in side.value("tx_bands_mhz")] for side in transmitters]
+    rx_bands = [[tuple(band) for band in side.value("rx_bands_mhz")] for side in receivers]
     for i, one in enumerate(transmitters):
-        for two in transmitters[i + 1:]:
+        for j in range(i + 1, len(transmitters)):
+            two = transmitters[j]
             pair = (one, two)
-            for rx in receivers:
+            for rx, victims in zip(receivers, rx_bands):
                 if rx.installation is one.installation or rx.installation is two.installation:
                     continue
                 line = one.line if one.line and one.line == two.line == rx.line else ""
-                for f1 in one.value("tx_bands_mhz"):
-                    for f2 in two.value("tx_bands_mhz"):
-                        for victim in rx.value("rx_bands_mhz"):
-                            for a, b, label, order, r1, r2, product in _intermod_hits(tuple(f1), tuple(f2),
-                                                                                      tuple(victim)):
+                for f1 in tx_bands[i]:
+                    for f2 in tx_bands[j]:
+                        for victim in victims:
+                            for a, b, label, order, r1, r2, product in _intermod_hits(f1, f2, victim):
                                 head = (aircraft_id, one.position, two.position, rx.position, label, order, r1, r2,
                                         product, line)
                                 out.append(CositeIntermod(*head) if line

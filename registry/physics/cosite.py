@@ -36,6 +36,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import NamedTuple
 
 _EPS_MHZ = 1e-9
 """Tolerance on frequency comparisons, MHz (1 mHz): absorbs rounding in channel arithmetic."""
@@ -232,9 +233,9 @@ def intermod_hits(f1_mhz: tuple[float, float], f2_mhz: tuple[float, float],
 
 # --- margin -------------------------------------------------------------------------------------
 
-@dataclass(frozen=True)
-class InterferenceMargin:
-    """Every step of the co-site level and margin, so a page can lay the arithmetic out.
+class InterferenceMargin(NamedTuple):
+    """Every step of the co-site level and margin, so a page can lay the arithmetic out (a named tuple:
+    an aircraft rates a thousand intermodulation products, and tuples are the cheapest to make).
 
     emission_dbm        = tx_power_dbm + emission_dbc         (at the transmitter's port)
     at_tx_antenna_dbm   = emission_dbm − tx_feeder_loss_db

@@ -54,9 +54,14 @@ def round_sig(value: float, digits: int) -> float | str:
 def plain(value: Any, data_dir: Path, digits: int = REGISTRY_DIGITS) -> Any:
     """A model value as JSON data: dataclasses and mappings become objects, tuples lists, dates ISO text,
     paths text relative to the data folder, floats rounded to `digits` significant digits."""
-    if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return {item.name: plain(getattr(value, item.name), data_dir, digits)
-                for item in dataclasses.fields(value) if item.name not in SKIPPED_FIELDS}
+    kind = type(value)
+    if kind is str or kind is bool or value is None:  # the commonest first (a model holds thousands)
+        return value
+    if kind is float:
+        return round_sig(value, digits)
+    names = _recorded_fields(kind)
+    if names is not None:
+        return {name: plain(getattr(value, name), data_dir, digits) for name in names}
     if isinstance(value, Mapping):
         return {str(key): plain(item, data_dir, digits) for key, item in value.items()}
     if isinstance(value, (list, tuple)):
@@ -74,6 +79,14 @@ def plain(value: Any, data_dir: Path, digits: int = REGISTRY_DIGITS) -> Any:
     if hasattr(value, "item"):  # a numpy scalar
         return plain(value.item(), data_dir, digits)
     raise TypeError(f"cannot record a value of type {type(value).__name__}")
+
+
+@functools.lru_cache(maxsize=None)
+def _recorded_fields(kind: type) -> tuple[str, ...] | None:
+    """The fields `plain` records of a dataclass (all but `SKIPPED_FIELDS`), in order; None for any other type."""
+    if not dataclasses.is_dataclass(kind):
+        return None
+    return tuple(item.name for item in dataclasses.fields(kind) if item.name not in SKIPPED_FIELDS)
 
 
 def relative_path(path: Path | str, data_dir: Path) -> str:

@@ -6,6 +6,7 @@ A problem prints gcc style, so editors and CI make it clickable:
 """
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from typing import Iterable, NamedTuple
 
@@ -105,8 +106,10 @@ def format_path(parts: Iterable[str | int]) -> str:
     return text or FILE_FIELD
 
 
+@functools.lru_cache(maxsize=4096)
 def parse_path(text: str) -> tuple[str | int, ...]:
-    """The inverse of `format_path`: `feeder.length_m` → `('feeder', 'length_m')`."""
+    """The inverse of `format_path`: `feeder.length_m` → `('feeder', 'length_m')`. Kept per text in a
+    process: the computation asks for the same few field paths for every figure of every aircraft."""
     parts: list[str | int] = []
     for dotted in text.split("."):
         name, *indices = dotted.replace("]", "").split("[")

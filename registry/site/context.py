@@ -4,7 +4,7 @@ from __future__ import annotations
 
 
 from collections import defaultdict
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Iterable, Mapping, NamedTuple
 
@@ -37,7 +37,7 @@ class FigureCells:
         self.seen: dict[Figure, Markup] = {}
 
     def __call__(self, figure: Figure) -> Markup:
-        plain = figure._replace(src="")
+        plain = figure[:-1]  # every field but `src` (the last): a tuple slice, cheaper than _replace
         try:
             cells = self.seen.get(plain)
         except TypeError:  # a value that cannot be hashed: rendered, not remembered
@@ -72,6 +72,8 @@ class SiteData:
     figure_cells: FigureCells
     history: FleetHistory | None = None
     """Each aircraft file's history from the data folder's git history (`load.history`); None when not read."""
+    src_views: dict[str, tuple[str, str | None]] = field(default_factory=dict, compare=False)
+    """`figure_view`'s registry line and link, by the figure's `src`: a page's figures rest on few lines."""
 
     def src_text(self, text: str) -> str:
         """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
@@ -96,8 +98,13 @@ class SiteData:
     def figure_view(self, figure: Figure) -> tuple[Markup, str, str | None]:
         """A figure's row in a figure table: its cells up to the registry line, its registry line, and the
         link to that line on its registry file's page (None when it has none)."""
-        src = self.src_text(figure.src) if figure.src else ""
-        return self.figure_cells(figure), src, line_href(src, self.fleet.data_dir)
+        shown = self.src_views.get(figure.src)
+        if shown is None:
+            if len(self.src_views) > FigureCells.LIMIT:  # bounded: each aircraft file has lines of its own
+                self.src_views.clear()
+            src = self.src_text(figure.src) if figure.src else ""
+            shown = self.src_views[figure.src] = (src, line_href(src, self.fleet.data_dir))
+        return self.figure_cells(figure), *shown
 
 
 def pattern_of(results: FleetResults, aircraft_id: str, position: str) -> str | None:

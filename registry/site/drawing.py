@@ -241,30 +241,45 @@ def view_parts(airframe: Airframe, markers: list[Marker], f: Frame, view: str) -
 def plan_view(airframe: Airframe, markers: list[Marker], f: Frame, parts: Parts, span: tuple[float, float],
               ident: str) -> View:
     """The plan view from above, where the drawing's origin is."""
-    left, right = span
-    return View(title="Plan view from above · bottom antennas dashed", title_x=n(left),
-                title_y=n(parts.top - f.font * 0.9), shift_x="0", shift_y="0",
-                outline=parts.shapes, composite=composite_paths(airframe, "plan", parts.top, parts.bottom),
-                clip_id=f"clip-plan-{ident}", axis=f"M{n(left)},0 H{n(right)}",
-                side_labels=((n(right), n(parts.top + f.font * 0.8), "end", "right side"),
-                             (n(right), n(parts.bottom - f.font * 0.2), "end", "left side")),
-                markers=place(markers, "plan", parts.labels, f, span, parts.top - f.font * 2.2, ident),
-                tick_y=n(parts.bottom), axis_label_y=n(parts.bottom + f.font * 3.0),
-                **sta_scale(f, airframe.coord_unit))
+    return View(**_plan_frame(airframe, f, parts.shapes, parts.top, parts.bottom, span, ident),
+                markers=place(markers, "plan", parts.labels, f, span, parts.top - f.font * 2.2, ident))
 
 
 def side_view(airframe: Airframe, markers: list[Marker], f: Frame, parts: Parts, span: tuple[float, float],
               ident: str, shift: tuple[float, float]) -> View:
     """The side view from the left, shifted right of the plan view by `shift` (x, y)."""
+    return View(**_side_frame(airframe, f, parts.shapes, parts.top, parts.bottom, span, ident, shift),
+                markers=place(markers, "side", parts.labels, f, span, parts.top - f.font * 2.2, ident))
+
+
+@lru_cache(maxsize=256)
+def _plan_frame(airframe: Airframe, f: Frame, shapes: tuple, top: float, bottom: float, span: tuple[float, float],
+                ident: str) -> dict[str, object]:
+    """The plan view's fields but its markers: the same for every page that draws this airframe with the
+    same extent (an aircraft's installation pages), so worked out once per process."""
     left, right = span
-    return View(title="Side view from the left · right-side antennas dashed", title_x=n(left),
-                title_y=n(parts.top - f.font * 0.9), shift_x=n(shift[0]), shift_y=n(shift[1]),
-                outline=parts.shapes, composite=composite_paths(airframe, "side", parts.top, parts.bottom),
+    return dict(title="Plan view from above · bottom antennas dashed", title_x=n(left),
+                title_y=n(top - f.font * 0.9), shift_x="0", shift_y="0",
+                outline=shapes, composite=composite_paths(airframe, "plan", top, bottom),
+                clip_id=f"clip-plan-{ident}", axis=f"M{n(left)},0 H{n(right)}",
+                side_labels=((n(right), n(top + f.font * 0.8), "end", "right side"),
+                             (n(right), n(bottom - f.font * 0.2), "end", "left side")),
+                tick_y=n(bottom), axis_label_y=n(bottom + f.font * 3.0),
+                **sta_scale(f, airframe.coord_unit))
+
+
+@lru_cache(maxsize=256)
+def _side_frame(airframe: Airframe, f: Frame, shapes: tuple, top: float, bottom: float, span: tuple[float, float],
+                ident: str, shift: tuple[float, float]) -> dict[str, object]:
+    """The side view's fields but its markers (see `_plan_frame`)."""
+    left, right = span
+    return dict(title="Side view from the left · right-side antennas dashed", title_x=n(left),
+                title_y=n(top - f.font * 0.9), shift_x=n(shift[0]), shift_y=n(shift[1]),
+                outline=shapes, composite=composite_paths(airframe, "side", top, bottom),
                 clip_id=f"clip-side-{ident}", axis=f"M{n(left)},{n(-f.centreline_wl)} H{n(right)}",
                 side_labels=((n(left), n(-f.centreline_wl - f.font * 0.4), "start",
                               f"WL {n(f.centreline_wl)} centreline"),),
-                markers=place(markers, "side", parts.labels, f, span, parts.top - f.font * 2.2, ident),
-                tick_y=n(parts.bottom), axis_label_y=n(parts.bottom + f.font * 3.0),
+                tick_y=n(bottom), axis_label_y=n(bottom + f.font * 3.0),
                 **sta_scale(f, airframe.coord_unit))
 
 

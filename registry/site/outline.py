@@ -15,6 +15,7 @@ therefore lies on (or, seen from the other view, within) the drawn outline.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
@@ -156,12 +157,20 @@ def side_outline(airframe: Airframe, f: Frame) -> tuple[tuple[tuple[str, str], .
 
 def extent(airframe: Airframe, stations: list[float], f: Frame) -> tuple[float, float]:
     """Left and right edge of each view: the airframe with every slab, and the antennas' `stations`."""
+    low, high = _airframe_span(airframe, f)
+    left = min(low, min(stations, default=f.x0)) - f.margin
+    right = max(high, max(stations, default=f.x1)) + f.margin
+    return left, right
+
+
+@lru_cache(maxsize=64)
+def _airframe_span(airframe: Airframe, f: Frame) -> tuple[float, float]:
+    """The first and last station the airframe reaches, slabs included; once per airframe content in a
+    process (every installation page with a coverage map draws its aircraft again)."""
     shape, scale = shape_of(airframe), SCALE_M[airframe.coord_unit]
     xs = [f.x0, f.x1] + [float(p.vertices_m[:, 0].min() / scale) for p in shape.plates] \
         + [float(p.vertices_m[:, 0].max() / scale) for p in shape.plates]
-    left = min(min(xs), min(stations, default=f.x0)) - f.margin
-    right = max(max(xs), max(stations, default=f.x1)) + f.margin
-    return left, right
+    return min(xs), max(xs)
 
 
 PLAN_SURFACES = {"top", "bottom", "nose", "tail", "wing_left", "wing_right", "side_left", "side_right"}

@@ -85,6 +85,19 @@ class AirframeShape:
         return tuple((tuple(faces), *bounding_sphere(np.concatenate([f.vertices_m for f in faces])))
                      for faces in groups.values())
 
+    @cached_property
+    def segments(self) -> tuple[np.ndarray, ...]:
+        """`segment_coefficients`: per segment (K-1,), x0, x1, w0, dw/dx, c0, dc/dx, aspect q."""
+        x, c, w, h = self.sta_m, self.centre_wl_m, self.half_width_m, self.half_height_m
+        dx = np.diff(x)
+        found = (x[:-1], x[1:], w[:-1], np.diff(w) / dx, c[:-1], np.diff(c) / dx, (h[:-1] + h[1:]) / (w[:-1] + w[1:]))
+        return tuple(_read_only(np.array(part)) for part in found)
+
+
+def _read_only(values: np.ndarray) -> np.ndarray:
+    values.setflags(write=False)
+    return values
+
 
 def bounding_sphere(vertices_m: np.ndarray) -> tuple[np.ndarray, float]:
     """A sphere holding every vertex (n, 3): centred on their mean, radius to the farthest, widened by
@@ -172,11 +185,9 @@ def to_metres(point, scale_m: float) -> np.ndarray:
 
 
 def segment_coefficients(shape: AirframeShape):
-    """Per segment (K-1,): x0, x1, w0, dw/dx, c0, dc/dx, aspect q (see the module docstring)."""
-    x, c, w, h = shape.sta_m, shape.centre_wl_m, shape.half_width_m, shape.half_height_m
-    dx = np.diff(x)
-    return (x[:-1], x[1:], w[:-1], np.diff(w) / dx, c[:-1], np.diff(c) / dx,
-            (h[:-1] + h[1:]) / (w[:-1] + w[1:]))
+    """Per segment (K-1,): x0, x1, w0, dw/dx, c0, dc/dx, aspect q (see the module docstring); worked out
+    once per shape (`AirframeShape.segments`), read-only."""
+    return shape.segments
 
 
 def fuselage_at(shape: AirframeShape, x_m: float):

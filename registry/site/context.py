@@ -9,13 +9,14 @@ from pathlib import Path
 from typing import Any, Iterable, Mapping, NamedTuple
 
 import jinja2
-from markupsafe import Markup
+from markupsafe import Markup, escape
 
 from registry.output.comparison import Comparison
 from registry.core.model import Fleet
 from registry.load.history import FleetHistory
 from registry.core.results import Discrepancy, Figure, FleetResults
 from registry.check.reviews import finding_order
+from registry.site.drawing import Drawing
 from registry.site.format import fmt
 from registry.site.info import BuildInfo
 from registry.site.labels import severity_rank
@@ -54,6 +55,32 @@ class FigureCells:
         return cells
 
 
+class DrawingFrames:
+    """The parts of an airframe drawing's views that do not depend on the markers (outline, axis, labels,
+    scale: partials/drawing_frame.html), rendered once per distinct view in this process: every page of an
+    aircraft that draws it draws the same frame."""
+
+    LIMIT = 4_096
+
+    def __init__(self, env: jinja2.Environment):
+        self.macros = env.get_template("partials/drawing_frame.html").module
+        self.seen: dict[tuple, dict[str, Markup]] = {}
+
+    def __call__(self, drawing: Drawing) -> list[dict[str, Markup]]:
+        """Each view's `head` and `scale`, in the order of `drawing.views`."""
+        frames = []
+        for view in drawing.views:
+            key = (replace(view, markers=(), sectors=()), drawing.small_font)
+            frame = self.seen.get(key)
+            if frame is None:
+                if len(self.seen) > self.LIMIT:
+                    self.seen.clear()
+                frame = self.seen[key] = {"head": Markup(self.macros.view_head(view)),
+                                          "scale": Markup(self.macros.view_scale(view, drawing.small_font))}
+            frames.append(frame)
+        return frames
+
+
 @dataclass(frozen=True)
 class SiteData:
     """The read-only context of the page functions."""
@@ -70,10 +97,11 @@ class SiteData:
     pattern_alts: Mapping[str, str]         # pattern plot path -> alt text
     src_prefixes: tuple[str, ...]
     figure_cells: FigureCells
+    drawing_frames: DrawingFrames
     history: FleetHistory | None = None
     """Each aircraft file's history from the data folder's git history (`load.history`); None when not read."""
-    src_views: dict[str, tuple[str, str | None]] = field(default_factory=dict, compare=False)
-    """`figure_view`'s registry line and link, by the figure's `src`: a page's figures rest on few lines."""
+    src_cells: dict[tuple[str, str], str] = field(default_factory=dict, compare=False)
+    """`src_cell`'s cells, by the figure's `src` and the page's root."""
 
     def src_text(self, text: str) -> str:
         """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
@@ -95,16 +123,28 @@ class SiteData:
         """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
         return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
 
-    def figure_view(self, figure: Figure) -> tuple[Markup, str, str | None]:
-        """A figure's row in a figure table: its cells up to the registry line, its registry line, and the
-        link to that line on its registry file's page (None when it has none)."""
-        shown = self.src_views.get(figure.src)
-        if shown is None:
-            if len(self.src_views) > FigureCells.LIMIT:  # bounded: each aircraft file has lines of its own
-                self.src_views.clear()
-            src = self.src_text(figure.src) if figure.src else ""
-            shown = self.src_views[figure.src] = (src, line_href(src, self.fleet.data_dir))
-        return self.figure_cells(figure), *shown
+    def figure_rows(self, figures: Iterable[Figure], root: str) -> Markup:
+        """The rows of a figure table (partials/figures.html `figure_table`) on a page `root` away from the
+        site's top: each row the figure's cells up to its registry line (`FigureCells`, once per distinct
+        figure) and its registry line, linked to that line on its registry file's page when it has one
+        (once per line and page depth: a page's figures rest on few lines)."""
+        parts = []  # joined as plain text: Markup's own + would escape the registry-line cell
+        for figure in figures:
+            parts += (self.figure_cells(figure), self.src_cell(figure.src, root))
+        return Markup("".join(parts))
+
+    def src_cell(self, src: str, root: str) -> str:
+        """The registry-line cell that ends a figure's row, with the row's end."""
+        cell = self.src_cells.get((src, root))
+        if cell is None:
+            if len(self.src_cells) > FigureCells.LIMIT:  # bounded: each aircraft file has lines of its own
+                self.src_cells.clear()
+            shown = self.src_text(src) if src else ""
+            href = line_href(shown, self.fleet.data_dir)
+            link = (f'<a href="{escape(root)}{escape(href)}">{escape(shown)}</a>' if href
+                    else str(escape(shown or "—")))
+            cell = self.src_cells[(src, root)] = f'\n  <td class="src">{link}</td>\n</tr>'
+        return cell
 
 
 def pattern_of(results: FleetResults, aircraft_id: str, position: str) -> str | None:
@@ -140,7 +180,7 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
     data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
     return SiteData(fleet=fleet, results=results, discrepancies=ordered, build=build, comparison=comparison,
                     by_position=by_position, by_aircraft=by_aircraft, reviews_of=reviews_of, model_patterns=model_patterns,
-                    pattern_alts=pattern_alts, figure_cells=FigureCells(env), history=history,
+                    pattern_alts=pattern_alts, figure_cells=FigureCells(env), drawing_frames=DrawingFrames(env), history=history,
                     src_prefixes=(data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/",
                                   PACKAGE_PREFIX))
 

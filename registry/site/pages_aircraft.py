@@ -73,6 +73,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
     return page(page_path, "aircraft.html", "fleet", aircraft.registration,
                 [("Fleet", "index.html"), (aircraft.registration, None)],
                 aircraft=aircraft, airframe=airframe, installations=rows, drawing=drawing,
+                frames=data.drawing_frames(drawing),
                 modifications=aircraft_modification_rows(data, aircraft),
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 matrix=severity_matrix(items), src=data.model_src(aircraft),
@@ -85,6 +86,7 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
 def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs) -> list[dict[str, Any]]:
     """The installation's co-site pairs: the other antenna, distance, isolation and figures."""
     rows = []
+    root = root_of(installation_path(aircraft.id, installation.position))
     for pair in pairs_of.get((aircraft.id, installation.position), ()):
         other = pair.position_b if pair.position_a == installation.position else pair.position_a
         other_install = aircraft.installations.get(other)
@@ -96,7 +98,7 @@ def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pa
                      "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
                      "model": fmt_figure(pair.figure("pair.model")) if pair.figure("pair.model") else "",
                      "no_model": bool(pair.figure("pair.model")) and pair.figure("pair.model").value == "none",
-                     "near_field": pair.near_field, "figures": [data.figure_view(f) for f in pair.figures]})
+                     "near_field": pair.near_field, "figures": data.figure_rows(pair.figures, root)})
     return rows
 
 
@@ -104,15 +106,16 @@ def result_views(data: SiteData, aircraft: Aircraft, installation: Installation,
                  result: InstallationResult | None) -> dict[str, Any]:
     """What an installation's page shows of its computed result: figures, pattern, VSWR plot, feeder."""
     figures = result.figures if result else ()
+    root = root_of(installation_path(aircraft.id, installation.position))
     pattern = None
     if result and result.pattern_key and result.pattern_key in data.results.patterns:
-        pattern = pattern_view(data, data.results.patterns[result.pattern_key], installation.antenna)
+        pattern = pattern_view(data, data.results.patterns[result.pattern_key], installation.antenna, root)
     vswr = None
     key = plots.vswr_key(result) if result is not None else None
     if key is not None:
         title = f"{aircraft.registration} {installation.position}"
         vswr = {"src": vswr_plot_path(key), "alt": plots.vswr_alt(result, title)}
-    return {"groups": figure_groups(data, figures), "computed": result is not None, "pattern": pattern,
+    return {"groups": figure_groups(data, figures, root), "computed": result is not None, "pattern": pattern,
             "vswr": vswr, "breakdown": feeder_breakdown(figures)}
 
 
@@ -121,7 +124,7 @@ def coverage_views(data: SiteData, aircraft: Aircraft, installation: Installatio
     airframe = data.fleet.airframe_of(aircraft)
     cmap = coverage_map(airframe, installation, service)
     if cmap is None:
-        return {"cmap": None, "drawing": None}
+        return {"cmap": None, "drawing": None, "frames": []}
     row = installation_row(data, aircraft, installation)
     loc = installation.location
     marker = sitedrawing.Marker(
@@ -131,7 +134,7 @@ def coverage_views(data: SiteData, aircraft: Aircraft, installation: Installatio
                    f"{words(installation.surface)} · {STATUS_LABELS[row['status']]}"))
     sectors = (loc.sta, loc.bl, blocked_sectors(airframe, installation, service))
     drawing = sitedrawing.airframe_drawing(airframe, [marker], f"{anchor(aircraft.id)}-cov", sectors)
-    return {"cmap": cmap, "drawing": drawing}
+    return {"cmap": cmap, "drawing": drawing, "frames": data.drawing_frames(drawing)}
 
 
 def installation_page(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs) -> Page:

@@ -14,7 +14,7 @@ from registry.site.context import SiteData
 from registry.site.format import bands_text, exact, field_rows, fmt, vswr_text, words
 from registry.site.context import AircraftPieces
 from registry.site.pages import File, Output, page
-from registry.site.paths import antenna_path, cable_path, cable_plot_path, service_anchor
+from registry.site.paths import antenna_path, cable_path, cable_plot_path, root_of, service_anchor
 from registry.site.views import pattern_view
 
 
@@ -45,7 +45,7 @@ def antenna_pages(data: SiteData, pieces: Pieces) -> list[Output]:
                             [("Antennas", "antennas.html"), (model.id, None)],
                             model=model, kind=words(model.kind), bands=bands_text(model.bands_mhz),
                             geometry=field_rows(model.geometry),
-                            patterns=[pattern_view(data, p, model.id) for p in patterns],
+                            patterns=[pattern_view(data, p, model.id, root_of(antenna_path(model.id))) for p in patterns],
                             uses_count=uses_count, uses_rows=uses_rows, src=data.model_src(model)))
     outputs.append(page("antennas.html", "antennas.html", "antennas", "Antenna models", [], models=rows))
     return outputs
@@ -63,7 +63,7 @@ def cable_page(data: SiteData, pieces: Pieces, cable: Cable, drawn: plots.Drawn 
                 cable=cable, table=[(exact(f), fmt(a)) for f, a in cable.attenuation_db_per_100m],
                 declared=("per 100 ft in the registry, shown per 100 m"
                           if cable.declared_unit == "db_per_100ft" else "per 100 m"),
-                plot=plot, figures=[data.figure_view(f) for f in result.figures] if result else [],
+                plot=plot, figures=data.figure_rows(result.figures if result else (), root_of(cable_path(cable.id))),
                 uses_count=uses_count, uses_rows=uses_rows, src=data.model_src(cable)), row
 
 

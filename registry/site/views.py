@@ -80,8 +80,9 @@ def installation_row(data: SiteData, aircraft: Aircraft, installation: Installat
     }
 
 
-def figure_groups(data: SiteData, figures: Iterable[Figure]) -> list[dict[str, Any]]:
-    """Figures in tables by their key's first part, in the order the parts first appear."""
+def figure_groups(data: SiteData, figures: Iterable[Figure], root: str) -> list[dict[str, Any]]:
+    """Figures in tables by their key's first part, in the order the parts first appear (on a page `root`
+    away from the site's top)."""
     groups: dict[str, list[Figure]] = defaultdict(list)
     order: list[str] = []
     for figure in figures:
@@ -90,7 +91,7 @@ def figure_groups(data: SiteData, figures: Iterable[Figure]) -> list[dict[str, A
             order.append(prefix)
         groups[prefix].append(figure)
     return [{"title": FIGURE_GROUPS.get(prefix, words(prefix).capitalize()), "id": anchor(prefix),
-             "figures": [data.figure_view(f) for f in groups[prefix]]} for prefix in order]
+             "figures": data.figure_rows(groups[prefix], root)} for prefix in order]
 
 
 def feeder_breakdown(figures: Iterable[Figure]) -> dict[str, Any] | None:
@@ -116,8 +117,9 @@ def feeder_breakdown(figures: Iterable[Figure]) -> dict[str, Any] | None:
     }
 
 
-def pattern_view(data: SiteData, pattern: PatternResult, model_id: str) -> dict[str, Any]:
-    """A pattern as a page shows it for one antenna model: its plot, the plot's alt text, its figures."""
+def pattern_view(data: SiteData, pattern: PatternResult, model_id: str, root: str) -> dict[str, Any]:
+    """A pattern as a page (`root` away from the site's top) shows it for one antenna model: its plot, the
+    plot's alt text, its figures."""
     path = pattern_plot_path(pattern.key, model_id, pattern.antenna)
     return {"src": path, "alt": data.pattern_alts.get(path, ""), "freq": fmt(pattern.freq_mhz, "MHz"),
-            "figures": [data.figure_view(f) for f in pattern.metrics]}
+            "figures": data.figure_rows(pattern.metrics, root)}

@@ -150,3 +150,22 @@ def test_unreadable_file(tmp_path):
 ])
 def test_syntax_messages(tmp_path, text, expected):
     assert messages(tmp_path, text) == [expected]
+
+
+@pytest.mark.parametrize("levels", [60, 990, 1500])
+def test_deep_nesting_is_refused_at_the_limit_whatever_the_depth(tmp_path, levels):
+    """Below libyaml's own nesting limit (1,000: the C composer builds the tree, the builder stops at
+    MAX_DEPTH) and above it (the pure-Python scan stops first), the same message at the same column;
+    never a RecursionError. Common practice, no source: libyaml 0.2.5 refuses deeper nesting."""
+    deep = "a: " + "[" * levels + "]" * levels + "\n"
+    assert messages(tmp_path, deep) == [
+        f"doc.yaml:1:{3 + MAX_DEPTH}: error: (file): found lists and mappings nested more than {MAX_DEPTH} deep, "
+        f"expected at most {MAX_DEPTH} levels"]
+
+
+def test_deep_block_nesting_is_refused_where_it_passes_the_limit(tmp_path):
+    # line n opens the mapping at level n (the document's is level 1) at column 2n - 1
+    deep = "".join("  " * level + "k:\n" for level in range(300)) + "  " * 300 + "x\n"
+    assert messages(tmp_path, deep) == [
+        f"doc.yaml:{MAX_DEPTH + 1}:{2 * MAX_DEPTH + 1}: error: (file): found lists and mappings nested more than "
+        f"{MAX_DEPTH} deep, expected at most {MAX_DEPTH} levels"]

@@ -105,20 +105,22 @@ def parse_yaml(raw: bytes, shown: str) -> tuple[YamlDoc | None, list[Problem]]:
     text, problem = _decode(raw, shown)
     if problem:
         return None, [problem]
-    problem = _scan(text, shown, FAST_LOADER)  # libyaml when present: the same events and positions, faster
-    if problem is not None and FAST_LOADER is not yaml.SafeLoader:
-        problem = _scan(text, shown, yaml.SafeLoader)  # word the message as the pure-Python parser does
-    root = None
-    if problem is None:
+    root, composed = None, False
+    if FAST_LOADER is not yaml.SafeLoader:
+        # libyaml refuses nesting past its own limit (1,000 levels), so its composer needs no first pass;
+        # the builder stops at MAX_DEPTH
         try:
-            root = yaml.compose(text, Loader=FAST_LOADER)
+            root, composed = yaml.compose(text, Loader=FAST_LOADER), True
         except yaml.YAMLError:
-            try:
-                root = yaml.compose(text, Loader=yaml.SafeLoader)
-            except yaml.YAMLError as error:
-                return None, [_yaml_problem(error, text, shown)]
-    if problem:
-        return None, [problem]
+            pass
+    if not composed:  # no libyaml, or a problem: the pure-Python parser words the message
+        problem = _scan(text, shown, yaml.SafeLoader)
+        if problem is not None:
+            return None, [problem]
+        try:
+            root = yaml.compose(text, Loader=yaml.SafeLoader)
+        except yaml.YAMLError as error:
+            return None, [_yaml_problem(error, text, shown)]
     builder = _Builder(shown)
     data = None
     if root is not None:
@@ -240,10 +242,14 @@ class _Builder:
         here = _src(self.shown, node.start_mark)
         text = node.value if isinstance(node, ScalarNode) else None
         self.index[parts] = Placed(key, here, text)
+        first = id(node) not in self.seen  # where it is written, not a copy through an alias
         self.seen.add(id(node))
         self.count(here)
         if isinstance(node, ScalarNode):
             return self.scalar(node, parts, here)
+        if first and len(parts) >= MAX_DEPTH:  # the document itself is the first level
+            raise _Refused(Problem.at(here, FILE_FIELD, f"lists and mappings nested more than {MAX_DEPTH} deep",
+                                      f"at most {MAX_DEPTH} levels"))
         if id(node) in self.active:
             raise _Refused(Problem.at(here, format_path(parts), "an alias inside its own anchor",
                                       "data that does not contain itself"))

@@ -32,7 +32,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import ellipe, ellipk, j1
 
 from registry.core.units import C_M_PER_S, EPS0, MU0
 
@@ -82,6 +81,7 @@ def _points(mesh: Mesh, rule):
 
 def _ring_static(rho_o, rho_s):
     """(1/2pi) int_0^2pi dphi/(4 pi R) and the same with cos(phi), rings at one height (elliptic form)."""
+    from scipy.special import ellipe, ellipk  # imported when first needed: a check from the cache never is
     big_a, big_b = rho_o**2 + rho_s**2, 2 * rho_o * rho_s
     m = np.clip(2 * big_b / (big_a + big_b), 0.0, 1 - 1e-15)
     root = rho_o + rho_s
@@ -217,6 +217,7 @@ def node_currents(mesh: Mesh, freq_hz: float) -> np.ndarray:
 
 def far_field_theta(mesh: Mesh, currents: np.ndarray, freq_hz: float, theta_rad) -> np.ndarray:
     """E_theta r e^{jkr} (V) at polar angles theta_rad from the node currents (module docstring)."""
+    from scipy.special import j1
     k = 2 * np.pi * freq_hz / C_M_PER_S
     rho, z, wt, u = _points(mesh, np.polynomial.legendre.leggauss(8))
     cur = currents[:-1, None] * (1 - u) + currents[1:, None] * u

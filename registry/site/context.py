@@ -27,6 +27,11 @@ PACKAGE_PREFIX = str(Path(__file__).resolve().parent.parent.parent) + "/"
 """Shipped files (registry/data/...) are shown relative to the package's folder, never as absolute paths."""
 
 
+SRC_CELLS_LIMIT = 4_096
+"""Bounded low: an aircraft's figures rest on its own file's lines (a thousand or so), which no other
+aircraft's pages show; held for the whole fleet they would grow a worker by tens of megabytes."""
+
+
 class FigureCells:
     """A figure's cells in a figure table, rendered once per distinct figure in this process."""
 
@@ -60,7 +65,8 @@ class DrawingFrames:
     scale: partials/drawing_frame.html), rendered once per distinct view in this process: every page of an
     aircraft that draws it draws the same frame."""
 
-    LIMIT = 4_096
+    LIMIT = 256
+    """Bounded: a view is drawn again only on its own aircraft's pages (its clip ids name the aircraft)."""
 
     def __init__(self, env: jinja2.Environment):
         self.macros = env.get_template("partials/drawing_frame.html").module
@@ -137,7 +143,7 @@ class SiteData:
         """The registry-line cell that ends a figure's row, with the row's end."""
         cell = self.src_cells.get((src, root))
         if cell is None:
-            if len(self.src_cells) > FigureCells.LIMIT:  # bounded: each aircraft file has lines of its own
+            if len(self.src_cells) > SRC_CELLS_LIMIT:
                 self.src_cells.clear()
             shown = self.src_text(src) if src else ""
             href = line_href(shown, self.fleet.data_dir)

@@ -252,7 +252,7 @@ def side_view(airframe: Airframe, markers: list[Marker], f: Frame, parts: Parts,
                 markers=place(markers, "side", parts.labels, f, span, parts.top - f.font * 2.2, ident))
 
 
-@lru_cache(maxsize=256)
+@lru_cache(maxsize=32)
 def _plan_frame(airframe: Airframe, f: Frame, shapes: tuple, top: float, bottom: float, span: tuple[float, float],
                 ident: str) -> dict[str, object]:
     """The plan view's fields but its markers: the same for every page that draws this airframe with the
@@ -268,7 +268,7 @@ def _plan_frame(airframe: Airframe, f: Frame, shapes: tuple, top: float, bottom:
                 **sta_scale(f, airframe.coord_unit))
 
 
-@lru_cache(maxsize=256)
+@lru_cache(maxsize=32)
 def _side_frame(airframe: Airframe, f: Frame, shapes: tuple, top: float, bottom: float, span: tuple[float, float],
                 ident: str, shift: tuple[float, float]) -> dict[str, object]:
     """The side view's fields but its markers (see `_plan_frame`)."""

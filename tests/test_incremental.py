@@ -5,7 +5,10 @@ bytes (common practice for reproducible builds, no source). Hard links keep an u
 which is how "not rewritten" is observed (POSIX link(2)).
 """
 import json
+import os
 import shutil
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -248,3 +251,18 @@ def test_workers_free_reference_cycles_while_the_collector_is_paused():
             gc.enable()
     assert max(live) <= parallel.COLLECT_EVERY
     assert max(live) > 1
+
+
+@pytest.mark.skipif(not Path("/proc/self/task").is_dir(), reason="counts threads in /proc (Linux)")
+def test_a_process_of_the_package_runs_one_blas_thread_unless_its_caller_sets_the_number():
+    # The build runs one process per core; OpenBLAS would add threads of its own in each (spinning while
+    # they wait for work). Common practice, no source: OPENBLAS_NUM_THREADS is read when numpy loads.
+    program = ("import os, registry, numpy, scipy.linalg; a = numpy.ones((600, 600)); a @ a; "
+               "scipy.linalg.solve(a + 600 * numpy.eye(600), a); "
+               "print(len(os.listdir('/proc/self/task')), os.environ['OPENBLAS_NUM_THREADS'])")
+    env = {key: value for key, value in os.environ.items() if key != "OPENBLAS_NUM_THREADS"}
+    ours = subprocess.run([sys.executable, "-c", program], env=env, capture_output=True, text=True, check=True)
+    assert ours.stdout.split() == ["1", "1"]
+    theirs = subprocess.run([sys.executable, "-c", program], env={**env, "OPENBLAS_NUM_THREADS": "2"},
+                            capture_output=True, text=True, check=True)
+    assert theirs.stdout.split()[1] == "2"

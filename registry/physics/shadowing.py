@@ -92,9 +92,7 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     big = 1e3 * (shape.sta_m[-1] - shape.sta_m[0]) + 1e3 * float(np.linalg.norm(p))
     big = big if t_max is None else float(t_max)
     if d.shape[0] == 1:  # one ray (a line of sight): every segment at once, the same arithmetic
-        return np.array([_fuselage_hits(np.asarray(x0s), np.asarray(x1s), np.asarray(w0s), np.asarray(dws),
-                                        np.asarray(c0s), np.asarray(dcs), np.asarray(qs), p, d[0], t_min, big,
-                                        tol).any()])
+        return np.array([_fuselage_hits(x0s, x1s, w0s, dws, c0s, dcs, qs, p, d[0], t_min, big, tol).any()])
     dx, dy, dz = d[:, 0], d[:, 1], d[:, 2]
     hit = np.zeros(d.shape[0], dtype=bool)
     safe_dx = np.where(np.abs(dx) > 1e-12, dx, 1.0)

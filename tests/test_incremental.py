@@ -218,6 +218,31 @@ def test_workers_start_with_what_the_first_item_of_each_kind_left_in_the_parent(
     assert all(pid != os.getpid() and kinds == (0, 1, 2) for item, pid, kinds in out[3:])
 
 
+def test_no_worker_is_started_when_every_item_was_the_first_of_its_kind():
+    """ordered_map(warm_by=...) with as many kinds as items: all run here, in order, and no pool is made
+    (internal behaviour, no external source)."""
+    import multiprocessing
+    import os
+    from registry.incremental import parallel
+    WARMED.clear()
+    made = []
+    real = multiprocessing.get_context
+
+    def spying(method=None):
+        made.append(method)
+        return real(method)
+
+    multiprocessing.get_context = spying
+    try:
+        out = list(parallel.ordered_map(_note_and_report, range(12), 2, warm_by=lambda item: item))
+    finally:
+        multiprocessing.get_context = real
+        WARMED.clear()
+    assert [item for item, _, _ in out] == list(range(12))
+    assert all(pid == os.getpid() for _, pid, _ in out)
+    assert made == []
+
+
 class _Cyclic:
     """An object kept alive only by a reference cycle; LIVE counts those not yet freed in this process."""
 

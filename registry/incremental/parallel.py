@@ -75,6 +75,11 @@ def ordered_map(task: Callable[[Any], Any], items: Iterable[Any], workers: int,
         for n in sorted(firsts.values()):
             done[n] = task(items[n])
     rest = [item for n, item in enumerate(items) if n not in done]
+    if not rest:  # every item was the first of its kind: no worker has anything to do
+        for n in range(len(items)):
+            yield done.pop(n)
+            progress.advance()
+        return
     _TASK = task
     try:
         chunksize = max(1, len(rest) // (workers * 32))

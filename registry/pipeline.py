@@ -83,7 +83,7 @@ def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incr
     from registry.site import plots, render
     fleet = plan.fleet
     site = render.start_site(fleet, plan.results, info, None, plots.PlotStore(cache_root), incremental,
-                             write, workers, plan.model_patterns, history)
+                             write, workers, plan.model_patterns, history, plan.as_of)
 
     def pages(aircraft, part, summary):
         return site.aircraft.render_fresh(aircraft, part,
@@ -117,7 +117,7 @@ def _compute_then_render(plan: evaluate.Plan, info, baseline: Side | None, cache
         comparison = compare(baseline.record, json.loads(record.to_text(outcome)), old_label=baseline.label,
                              new_label=f"registry {fleet.data_dir}")
     site = render.start_site(fleet, results, info, comparison, plots.PlotStore(cache_root, naive), incremental,
-                             write, workers, history=history)
+                             write, workers, history=history, as_of=plan.as_of)
     return outcome, site, {}
 
 

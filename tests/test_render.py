@@ -342,3 +342,13 @@ def test_build_info_in_git_uses_commit_and_marks_changes(tmp_path):
     assert info.time == "2024-02-03 04:05:06 UTC"
     (data / "fleet.yaml").write_text("operator: y\n")
     assert build_info(data, environ={}).revision == info.revision + "+modified"
+
+
+def test_the_pages_print_the_date_the_figures_were_computed_as_of():
+    # The audit worksheet and the printable reports state the as-of date the build computed with, not
+    # one read again from the data folder (internal behaviour, no external source).
+    files = render.render_site(small_fleet(), small_results(), small_discrepancies(), BUILD, as_of=date(2031, 5, 6))
+    aircraft_reports = [path for path in files if path.startswith("reports/")]
+    assert aircraft_reports
+    for path in ["audit.html", "report.html", *aircraft_reports]:
+        assert "2031-05-06" in text(files, path), path

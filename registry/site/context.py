@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 from dataclasses import dataclass, field, replace
+from datetime import date
 from pathlib import Path
 from typing import Any, Iterable, Mapping, NamedTuple
 
@@ -13,6 +14,7 @@ from markupsafe import Markup, escape
 
 from registry.output.comparison import Comparison
 from registry.core.model import Fleet
+from registry.load.git import as_of_date
 from registry.load.history import FleetHistory
 from registry.core.results import Discrepancy, Figure, FleetResults
 from registry.check.reviews import finding_order
@@ -106,8 +108,14 @@ class SiteData:
     drawing_frames: DrawingFrames
     history: FleetHistory | None = None
     """Each aircraft file's history from the data folder's git history (`load.history`); None when not read."""
+    as_of: date | None = None
+    """The date the figures were computed as of (`pipeline`); None: the data folder's (`git.as_of_date`)."""
     src_cells: dict[tuple[str, str], str] = field(default_factory=dict, compare=False)
     """`src_cell`'s cells, by the figure's `src` and the page's root."""
+
+    def as_of_text(self) -> str:
+        """The as-of date the pages print (ISO): the computation's, so that no page can state another."""
+        return (self.as_of or as_of_date(Path(self.fleet.data_dir))).isoformat()
 
     def src_text(self, text: str) -> str:
         """A "file:line" shown relative to the data folder, so the site does not depend on where it was built."""
@@ -174,7 +182,8 @@ def patterns_by_model(fleet: Fleet, results: FleetResults) -> dict[str, set[str]
 
 def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepancy], build: BuildInfo,
               comparison: Comparison | None, env: jinja2.Environment, model_patterns: dict[str, set[str]],
-              pattern_alts: dict[str, str], history: FleetHistory | None = None) -> SiteData:
+              pattern_alts: dict[str, str], history: FleetHistory | None = None,
+              as_of: date | None = None) -> SiteData:
     """The pages' context, with the lookups made once."""
     reviews_of: dict[str, list] = defaultdict(list)
     for name, review in fleet.reviews.items():
@@ -186,7 +195,7 @@ def site_data(fleet: Fleet, results: FleetResults, discrepancies: list[Discrepan
     data_prefix = str(Path(fleet.data_dir)).rstrip("/") + "/"
     return SiteData(fleet=fleet, results=results, discrepancies=ordered, build=build, comparison=comparison,
                     by_position=by_position, by_aircraft=by_aircraft, reviews_of=reviews_of, model_patterns=model_patterns,
-                    pattern_alts=pattern_alts, figure_cells=FigureCells(env), drawing_frames=DrawingFrames(env), history=history,
+                    pattern_alts=pattern_alts, figure_cells=FigureCells(env), drawing_frames=DrawingFrames(env), history=history, as_of=as_of,
                     src_prefixes=(data_prefix, str(Path(fleet.data_dir).resolve()).rstrip("/") + "/",
                                   PACKAGE_PREFIX))
 

@@ -10,7 +10,6 @@ from registry.check.reviews import stale_reviews
 from registry.core.model import Aircraft
 from registry.core.results import Discrepancy
 from registry.core.rulebook import OPEN_STATES, SEVERITIES
-from registry.load.git import as_of_date
 from registry.output import findings_export
 from registry.site import search as sitesearch
 from registry.site.context import SiteData
@@ -85,7 +84,7 @@ def audit_pages(data: SiteData) -> list[Output]:
     rows = findings_export.rows(data.discrepancies, data.fleet)
     stale = [findings_export.stale_entry(review, Path(data.fleet.data_dir))
              for review in stale_reviews(list(data.discrepancies), data.fleet.reviews)]
-    as_of = as_of_date(Path(data.fleet.data_dir)).isoformat()
+    as_of = data.as_of_text()
     units = sorted({item.unit for item in data.discrepancies})
     options = {
         "aircraft": sorted({(v["aircraft"], v["registration"]) for v in views}, key=lambda p: p[1]),

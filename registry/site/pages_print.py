@@ -10,14 +10,12 @@ from __future__ import annotations
 
 import functools
 from collections.abc import Callable
-from pathlib import Path
 from typing import Any
 
 from registry.check.reviews import stale_reviews
 from registry.core.model import Aircraft
 from registry.core.results import Discrepancy
 from registry.core.rulebook import SEVERITIES
-from registry.load.git import as_of_date
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT, exact
 from registry.site.pages import Output, page
@@ -47,7 +45,7 @@ def report_pages(data: SiteData) -> list[Output]:
 def aircraft_report_pages(data: SiteData) -> list[Callable[[], Output]]:
     """Each aircraft's report, as a function that makes it: the page's content is worked out where it is
     rendered (in the workers, for a fleet), not all in this process first."""
-    as_of = as_of_date(Path(data.fleet.data_dir)).isoformat()
+    as_of = data.as_of_text()
     stale = stale_reviews(list(data.discrepancies), data.fleet.reviews)
     return [functools.partial(aircraft_report_page, data, aircraft, as_of, stale)
             for aircraft in data.fleet.aircraft.values()]
@@ -65,7 +63,7 @@ def aircraft_report_page(data: SiteData, aircraft: Aircraft, as_of: str, stale: 
 
 def fleet_report_page(data: SiteData) -> Output:
     """The fleet's report: every aircraft's section (without the schedules above FLEET_SCHEDULES_UP_TO)."""
-    as_of = as_of_date(Path(data.fleet.data_dir)).isoformat()
+    as_of = data.as_of_text()
     stale = stale_reviews(list(data.discrepancies), data.fleet.reviews)
     schedules = len(data.fleet.aircraft) <= FLEET_SCHEDULES_UP_TO
     sections = [aircraft_section(data, aircraft, stale, schedules) for aircraft in data.fleet.aircraft.values()]

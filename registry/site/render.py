@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections import defaultdict
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
+from datetime import date
 from typing import Any, Iterable
 
 import jinja2
@@ -64,7 +65,8 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
                 plot_store: plots.PlotStore | None = None,
                 incremental: Incremental | None = None,
                 writer: FileWriter | None = None, workers: int = 1,
-                progress: Progress = QUIET, history: FleetHistory | None = None) -> dict[str, str | bytes]:
+                progress: Progress = QUIET, history: FleetHistory | None = None,
+                as_of: date | None = None) -> dict[str, str | bytes]:
     """Every file of the site, keyed by its path relative to the site root. With a `comparison` to an
     earlier build, the site also gets a changes page and each changed page a mark. Plots come from
     `plot_store` (drawn once per content; kept on disk when the store has a cache folder). With
@@ -72,9 +74,10 @@ def render_site(fleet: Fleet, results: FleetResults, discrepancies: Iterable[Dis
     again: its files are given as REUSE. With a `writer` and several `workers`, the aircraft pages are
     rendered in forked processes that hand each file straight to `writer(path, content)`; the returned
     dict then holds the other files only. `history`: the aircraft files' git history for the aircraft
-    pages' timelines (`load.history.fleet_history`)."""
+    pages' timelines (`load.history.fleet_history`). `as_of`: the date the results were computed as of,
+    which the pages print (default: the data folder's, `load.git.as_of_date`)."""
     site = start_site(fleet, results, build_info, comparison, plot_store, incremental, writer, workers,
-                      history=history)
+                      history=history, as_of=as_of)
     return finish_site(site, discrepancies, {}, workers, progress)
 
 
@@ -93,7 +96,8 @@ class SiteRun:
 def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, comparison: Comparison | None = None,
                plot_store: plots.PlotStore | None = None, incremental: Incremental | None = None,
                writer: FileWriter | None = None, workers: int = 1,
-               model_patterns: dict[str, set[str]] | None = None, history: FleetHistory | None = None) -> SiteRun:
+               model_patterns: dict[str, set[str]] | None = None, history: FleetHistory | None = None,
+               as_of: date | None = None) -> SiteRun:
     """What the pages share, made once: the environment, the pattern plots (every pattern must be in
     `results.patterns`; `model_patterns` gives each antenna model's, when not every aircraft has its
     figures or summary yet), the static files. The aircraft pages can be rendered from here on, one by
@@ -106,7 +110,7 @@ def start_site(fleet: Fleet, results: FleetResults, build_info: BuildInfo, compa
     model_patterns = patterns_by_model(fleet, results) if model_patterns is None else model_patterns
     patterns = plot_files.pattern_plots(results, model_patterns, store, workers)
     data = site_data(fleet, results, [], build_info, comparison, env, model_patterns,
-                     {path: drawn.alt for path, drawn in patterns.items()}, history)
+                     {path: drawn.alt for path, drawn in patterns.items()}, history, as_of)
     put = Renderer(env, shared_context(data), store)
     files: dict[str, str | bytes] = dict(static_files())
     files.update((path, drawn.svg) for path, drawn in patterns.items())

@@ -42,10 +42,11 @@ class Outcome:
     stale_reviews: list[Review]
 
 
-def load(data_dir: Path, cache_dir: Path | None = None, workers: int = 1) -> Fleet:
-    """Load and validate the registry; raises DataError with every problem found."""
+def load(data_dir: Path, cache_dir: Path | None = None, workers: int = 1, as_of: date | None = None) -> Fleet:
+    """Load and validate the registry (reviews dated up to `as_of` or today: `load_fleet`); raises
+    DataError with every problem found."""
     from registry.load.fleet import load_fleet
-    return load_fleet(data_dir, cache_dir=cache_dir, workers=workers)
+    return load_fleet(data_dir, cache_dir=cache_dir, workers=workers, as_of=as_of)
 
 
 def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None,
@@ -63,9 +64,10 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
         with collector_paused():
             progress.stage("reading the registry", 1)
             workers = workers or os.cpu_count() or 1
-            fleet = load(data_dir, cache_root, workers)
+            data_as_of = as_of_date(data_dir) if as_of is None else None  # a given date does not date reviews
+            fleet = load(data_dir, cache_root, workers, data_as_of)
             progress.advance()
-            as_of = as_of or as_of_date(data_dir)
+            as_of = as_of or data_as_of
             results = evaluate.evaluate_fleet(fleet, as_of, cache_root, workers, progress, lazy=lazy)
             return _outcome(fleet, as_of, results)
     finally:
@@ -163,7 +165,7 @@ def build(data_dir: Path, out_dir: Path, baseline: Side | None = None, cache_dir
     try:
         with collector_paused():
             progress.stage("reading the registry", 1)
-            fleet = load(data_dir, cache_root, workers)
+            fleet = load(data_dir, cache_root, workers, as_of)
             plan = evaluate.prepare(fleet, as_of, cache_root, lazy=True, workers=workers)
             history = fleet_history(data_dir, cache_root=cache_root)  # one git log pass; before the workers fork
             progress.advance()

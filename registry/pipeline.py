@@ -56,8 +56,8 @@ def run(data_dir: Path, as_of: date | None = None, cache_dir: Path | None = None
     `as_of` overrides the date measurement ages are counted to (`build.py diff` computes both sides
     of a comparison as of one date). `cache_dir` keeps what depends only on content between runs (the
     same folder `build` uses); `workers` processes share the computation (default: one per core). With
-    `lazy`, an aircraft unchanged since the cache last saw it contributes its summary (findings, record)
-    only; `FleetResults.load` computes its full figures if they are wanted."""
+    `lazy`, an aircraft unchanged since the cache last saw it contributes its findings (and pattern keys)
+    only, no share of the build record; `FleetResults.load` computes its full figures if they are wanted."""
     from registry import evaluate
     cache_root = version_folder(cache_dir) if cache_dir is not None else None
     try:

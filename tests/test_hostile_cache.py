@@ -111,6 +111,9 @@ def assert_every_entry_reads_back(cache: Path) -> None:
 
 def test_every_entry_of_a_real_build_reads_back_as_its_type(filled_cache):
     assert_every_entry_reads_back(filled_cache)
+    findings = entries(filled_cache, "findings")  # what check reads (a build reads the whole summaries)
+    reader = DiskCache(version_folder(filled_cache), "findings", AircraftSummary)
+    assert findings and all(reader.get(path.stem) is not None for path in findings)
     assert not list(filled_cache.rglob("*.pickle"))
 
 

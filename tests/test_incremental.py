@@ -14,7 +14,7 @@ from pathlib import Path
 import pytest
 import yaml
 
-from registry import pipeline
+from registry import evaluate, pipeline
 from registry import incremental as diskcache
 
 DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
@@ -190,6 +190,47 @@ def test_check_reads_the_findings_from_the_cache_and_says_the_same(tmp_path, cap
     assert said[0] == said[1] == said[2]
     assert said[0][0] == 1 and json.loads(said[0][1])["discrepancies"]
     assert any((diskcache.version_folder(tmp_path / "c") / "summaries").rglob("*.entry"))
+
+
+def test_a_warm_check_reads_each_aircraft_s_findings_entry_and_falls_back_to_its_summary(tmp_path, capsys, monkeypatch):
+    # after a build, check reads `findings/` (findings and pattern keys only), not the whole summaries: with
+    # the summaries gone it still computes nothing; with the findings entries gone or forged it reads the
+    # summaries; every way it says what a check that keeps nothing says (internal behaviour, no source)
+    from registry import cli
+    from registry.incremental import codec, store
+
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1764806400")
+    cache = tmp_path / "c"
+    pipeline.build(DEMO, tmp_path / "site", cache_dir=cache, workers=1)
+    folder = diskcache.version_folder(cache)
+    findings = sorted((folder / "findings").rglob("*.entry"))
+    assert findings and {path.name for path in findings} == {path.name for path in (folder / "summaries").rglob("*.entry")}
+
+    def check(cache_args: list[str]) -> tuple[int, str]:
+        code = cli.main(["check", str(DEMO), "--format", "json", *cache_args])
+        return code, capsys.readouterr().out
+
+    plain = check(["--no-cache"])
+    computed: list[str] = []
+    real = pipeline.run
+
+    def counting(*args, **kwargs):
+        outcome = real(*args, **kwargs)
+        computed.extend(set(outcome.fleet.aircraft) - outcome.results.unloaded)
+        return outcome
+
+    monkeypatch.setattr(pipeline, "run", counting)
+    summaries = folder / "summaries"
+    kept = tmp_path / "summaries"
+    summaries.rename(kept)
+    assert check(["--cache", str(cache)]) == plain and computed == []
+    kept.rename(summaries)
+    payload = store.checked_payload(findings[1].stem, findings[1].read_bytes())
+    wrong = codec.loads(payload, evaluate.AircraftSummary)._replace(pattern_of={})
+    forged = codec.dumps(wrong, evaluate.AircraftSummary).replace(b'["d"]', b'"not a mapping"', 1)
+    findings[1].write_bytes(store.MAGIC + store.checksum(findings[1].stem, forged) + b"\n" + forged)
+    findings[0].unlink()
+    assert check(["--cache", str(cache)]) == plain and computed == []
 
 
 WARMED: dict[int, int] = {}

@@ -34,6 +34,31 @@ def test_positions_of_keys_and_values(tmp_path):
     assert doc.placed(("b", 0, "missing")) == doc.index[("b", 0)]
 
 
+def test_positions_read_back_from_their_text_as_they_were_read(tmp_path):
+    # A document's positions travel (in the cache, between processes) as JSON text and are made into
+    # objects when asked: the same positions as the file just read, and the same index for the objects
+    # built from it; a row of another shape (a forged cache entry) is left out (internal behaviour).
+    import json
+    import pickle
+
+    from registry.incremental import codec
+    from registry.load.yamlsource import PlacedIndex, YamlDoc
+
+    doc, _ = read(tmp_path, "a: 1\nb:\n  - {c: x, d: 2}\n  - plain\nq: &x [1, 2]\nr: *x\n")
+    back = codec.loads(codec.dumps(doc, YamlDoc), YamlDoc)
+    assert back.index._table is None  # still text
+    assert dict(back.index.srcs()) == dict(doc.index.srcs()) and len(doc.index.srcs()) == len(doc.index)
+    assert dict(back.index) == dict(doc.index)
+    assert dict(pickle.loads(pickle.dumps(doc.index))) == dict(doc.index)
+    assert back.index.srcs()[("b", 0, "d")] == Src("doc.yaml", 3, 12)  # a key's position
+    assert back.index.srcs()[("b", 1)] == Src("doc.yaml", 4, 5)  # a list item's: its value's
+    rows = [row for row in json.loads(doc.index.rows) if row[5:] not in (["a"], ["b"])]
+    forged = PlacedIndex("doc.yaml", json.dumps([["x", 1, 1, 1, None, "a"], [0, 0, 2, 1, 5, "b"], *rows]))
+    assert ("a",) not in forged and ("b",) not in forged and forged[("q",)] == doc.index[("q",)]
+    assert ("a",) not in forged.srcs() and len(forged.srcs()) == len(doc.index) - 2
+    assert dict(PlacedIndex("doc.yaml", "not json")) == {} and dict(PlacedIndex("doc.yaml", "{}")) == {}
+
+
 def test_scalars_follow_yaml_1_1_and_dates_stay_text(tmp_path):
     # YAML 1.1 (yaml.org/type/bool.html): yes/no are booleans; a float needs a dot (yaml.org/type/float.html),
     # so 1e3 stays text. Dates are kept as written for the schema's `format: date`.

@@ -11,7 +11,7 @@ from pathlib import Path
 from typing import Any, Callable
 
 from registry.core.errors import Problem, Src, parse_path
-from registry.core.base import FieldIndex, FrozenMap, Locator, freeze
+from registry.core.base import FrozenMap, Locator, freeze
 from registry.core.model import (AdapterPart, Aircraft, Airframe, Amplifier, AntennaModel, Bonding, Cable,
                                  ConnectorEnd, Feeder, Fin, Fuselage, GroundPlane, Installation, Location,
                                  ManualRef, Measured, Modification, RadioFigures, RadioUnit, Review, Section,
@@ -29,7 +29,7 @@ class Doc:
         self.data = doc.data
         self.file = file
         self.path = doc.path
-        self.srcs = FieldIndex.of(doc.path, {parts: placed.src for parts, placed in doc.index.items()})
+        self.srcs = doc.index.srcs()
 
     def at(self, *parts: str | int) -> dict[str, Any]:
         src = self.srcs.get(parts) or self.srcs[()]

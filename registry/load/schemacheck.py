@@ -12,13 +12,15 @@ import re
 from collections.abc import Callable
 from datetime import date
 from importlib import resources
-from typing import Any, Iterable
-
-import fastjsonschema
-from jsonschema import Draft202012Validator, ValidationError
+from typing import TYPE_CHECKING, Any, Iterable
 
 from registry.core.errors import Problem, format_path
 from registry.load.yamlsource import YamlDoc
+
+if TYPE_CHECKING:
+    from jsonschema import Draft202012Validator, ValidationError
+# both validators are imported when a file is first checked: a run whose files all come from the cache
+# (a check or a rebuild with a warm cache) never loads them (about 40 ms)
 
 ID_PATTERN = "^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$"
 ID_WORDS = "an id of up to 64 letters, digits, '.', '_' or '-', starting with a letter or digit"
@@ -50,6 +52,7 @@ _EXPONENT_WITHOUT_DOT = re.compile(r"[-+]?\d+[eE][-+]?\d+")
 @functools.cache
 def validator(kind: str) -> Draft202012Validator:
     """The validator for one file kind: fleet, airframe, antennas, cables, services, policy, aircraft, reviews."""
+    from jsonschema import Draft202012Validator
     text = (resources.files("registry") / "schemas" / f"{kind}.schema.json").read_text(encoding="utf-8")
     return Draft202012Validator(json.loads(text), format_checker=Draft202012Validator.FORMAT_CHECKER)
 
@@ -89,6 +92,7 @@ def fast_validator(kind: str) -> Callable[[Any], Any] | None:
     schema = json.loads(text)
     if _keywords(schema) & DRAFT_2020_ONLY:
         return None
+    import fastjsonschema
     return fastjsonschema.compile({**schema, "$schema": "http://json-schema.org/draft-07/schema#"},
                                   formats={"date": _iso_date})
 
@@ -97,10 +101,11 @@ def check(doc: YamlDoc, kind: str) -> list[Problem]:
     """Every schema problem in `doc`, each at the line of the key or value it concerns."""
     fast = fast_validator(kind)
     if fast is not None:
+        from fastjsonschema import JsonSchemaException
         try:
             fast(doc.data)
             return []
-        except fastjsonschema.JsonSchemaException:
+        except JsonSchemaException:
             pass  # found and worded below
     problems: list[Problem] = []
     for error in validator(kind).iter_errors(doc.data):

@@ -1,0 +1,121 @@
+"""A parsed YAML document (`YamlDoc`): its data as plain Python and where each value sits (`Placed`, by
+path tuple, in a `PlacedIndex` that travels as JSON text). `yamlsource` makes them."""
+from __future__ import annotations
+
+import json
+import sys
+from collections.abc import Iterator, Mapping
+from dataclasses import dataclass
+from typing import Any, NamedTuple
+
+from registry.core.base import FieldIndex
+from registry.core.errors import Src
+
+
+class Placed(NamedTuple):
+    """Where one value sits: its key (for a mapping member), the value itself, and the scalar as written."""
+
+    key: Src | None
+    value: Src
+    text: str | None
+
+    @property
+    def src(self) -> Src:
+        """The key's position when there is one, else the value's."""
+        return self.key or self.value
+
+
+class PlacedIndex(Mapping):
+    """`YamlDoc.index`: where each value of a file sits (`Placed`), by path tuple.
+
+    Kept (in the cache, and when handed between processes) as the file's path once and `rows`, JSON text
+    of [key line, key column, line, column, text, part, part, ...] per value (key line 0: no key; text
+    null: not a scalar); the table is made from it only when first asked. A file read back from the
+    cache is only built into objects, which want each value's position alone (`srcs`, made straight
+    from the rows): a large fleet's modifications file (36,000 values) then reads back in 0.03 s, not
+    0.2 s. Rows that do not read back as that shape are left out (`FieldIndex` does the same)."""
+
+    __slots__ = ("path", "_rows", "_table")
+
+    def __init__(self, path: str, rows: str):
+        self.path = sys.intern(path)
+        self._rows: str | None = rows
+        self._table: dict[tuple[str | int, ...], Placed] | None = None
+
+    @classmethod
+    def of(cls, path: str, table: dict[tuple[str | int, ...], Placed]) -> PlacedIndex:
+        """The index of a file just read (`table` already made; `rows` written when first asked)."""
+        made = cls(path, "")
+        made._rows, made._table = None, table
+        return made
+
+    @property
+    def rows(self) -> str:
+        if self._rows is None:
+            self._rows = json.dumps([[*(placed.key[1:] if placed.key else (0, 0)), *placed.value[1:], placed.text,
+                                      *parts] for parts, placed in self._table.items()], separators=(",", ":"))
+        return self._rows
+
+    @property
+    def table(self) -> dict[tuple[str | int, ...], Placed]:
+        if self._table is None:
+            path = self.path
+            self._table = {tuple(row[5:]): Placed(Src(path, row[0], row[1]) if row[0] else None,
+                                                  Src(path, row[2], row[3]), row[4])
+                           for row in _placed_rows(self._rows)}
+        return self._table
+
+    def srcs(self) -> FieldIndex:
+        """Each value's position (its key's, for a mapping member: `Placed.src`), as the index the
+        objects built from the file share."""
+        if self._table is not None:
+            return FieldIndex.of(self.path, {parts: placed.src for parts, placed in self._table.items()})
+        path = self.path
+        return FieldIndex.of(path, {tuple(row[5:]): Src(path, row[0], row[1]) if row[0] else Src(path, row[2], row[3])
+                                    for row in _placed_rows(self._rows)})
+
+    def __getitem__(self, parts: tuple[str | int, ...]) -> Placed:
+        return self.table[parts]
+
+    def __contains__(self, parts: object) -> bool:
+        return parts in self.table
+
+    def __iter__(self) -> Iterator[tuple[str | int, ...]]:
+        return iter(self.table)
+
+    def __len__(self) -> int:
+        return len(self.table)
+
+    def __getstate__(self) -> tuple[str, str]:
+        return self.path, self.rows
+
+    def __setstate__(self, state: tuple[str, str]) -> None:
+        self.__init__(*state)
+
+
+def _placed_rows(rows: str | None) -> list[list]:
+    """The rows of `PlacedIndex.rows` that have its shape (a damaged or forged cache entry: the others
+    are left out, and a position falls back to its parent's)."""
+    try:
+        items = json.loads(rows or "[]")
+    except ValueError:
+        return []
+    if type(items) is not list:
+        return []
+    return [row for row in items if type(row) is list and len(row) >= 5 and all(type(n) is int for n in row[:4])
+            and (row[4] is None or type(row[4]) is str) and all(type(part) in (str, int) for part in row[5:])]
+
+
+@dataclass(frozen=True, slots=True)
+class YamlDoc:
+    """A parsed file: `data` as plain Python, `index` from a path tuple to where that value sits."""
+
+    path: str
+    data: Any
+    index: PlacedIndex
+
+    def placed(self, parts: tuple[str | int, ...]) -> Placed:
+        """The nearest recorded position at or above `parts`."""
+        while parts not in self.index:
+            parts = parts[:-1]
+        return self.index[parts]

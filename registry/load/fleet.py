@@ -97,6 +97,7 @@ class _Run:
     def __init__(self, data_dir: Path, shipped_dir: Path, cache_dir: Path | None, workers: int = 1,
                  as_of: date | None = None):
         self.data_dir = data_dir
+        self.resolved_dir = data_dir.resolve()  # once: every file read is checked to lie inside it
         self.as_of = as_of
         self.shipped_dir = shipped_dir
         self.cache = DiskCache(cache_dir, "files", Parsed)
@@ -124,7 +125,7 @@ class _Run:
         """Whether `file`, its links followed, is a regular file inside the registry folder; a problem if
         not (nothing of it is read, so nothing of it is shown)."""
         target = file.resolve()
-        if not target.is_relative_to(self.data_dir.resolve()):
+        if not target.is_relative_to(self.resolved_dir):
             self.problem(file, "a link to a file outside the registry folder",
                          f"a file inside {self.data_dir} (links are followed, and must stay inside)")
             return False

@@ -102,8 +102,12 @@ def _placed_rows(rows: str | None) -> list[list]:
         return []
     if type(items) is not list:
         return []
-    return [row for row in items if type(row) is list and len(row) >= 5 and all(type(n) is int for n in row[:4])
-            and (row[4] is None or type(row[4]) is str) and all(type(part) in (str, int) for part in row[5:])]
+    return [row for row in items if type(row) is list and len(row) >= 5 and type(row[0]) is int
+            and type(row[1]) is int and type(row[2]) is int and type(row[3]) is int
+            and (row[4] is None or type(row[4]) is str) and _PART_TYPES.issuperset(map(type, row[5:]))]
+
+
+_PART_TYPES = frozenset({str, int})
 
 
 @dataclass(frozen=True, slots=True)

@@ -303,11 +303,16 @@ def test_a_table_of_positions_reads_back_and_a_bad_row_is_refused():
 
 def test_an_aircraft_model_reads_back_with_every_position_and_its_index_written_once(demo_fleet):
     # the model cache's entry type (AircraftRead): every object of the aircraft holds its file's index
-    # of positions; the entry holds the index once, and every field's line survives the round trip
+    # of positions; the entry holds the index once, and each position once however many objects hold it
+    # (an object's own and its locator's fallback), and every field's line survives the round trip
     aircraft = demo_fleet.aircraft["qx-tca"]
     payload = codec.dumps(AircraftRead(aircraft, []), AircraftRead)
     assert payload.count(b'"FieldIndex"') == 1
+    first = next(iter(aircraft.installations.values()))
+    assert first.locator.fallback is first.src  # as the loader builds them: one position, held twice
     back = codec.loads(payload, AircraftRead).model
+    assert all(item.locator.fallback is item.src and item.src == aircraft.installations[position].src
+               for position, item in back.installations.items())
     index = next(iter(aircraft.installations.values())).locator.index
     assert back.locator.index is next(iter(back.installations.values())).locator.index
     assert dict(back.locator.index) == dict(index) and len(index) > 100

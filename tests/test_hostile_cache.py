@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import dataclasses
 import functools
+import json
 import os
 import pickle
 import shutil
@@ -144,6 +145,27 @@ def test_wrong_types_with_correct_checksums_give_the_plain_build(cache, tmp_path
     summary.write_bytes(signed(summary.stem, forged.replace(b'["d"]', b'"not a mapping"', 1)))
     assert rebuild(cache, tmp_path) == reference
     assert_every_entry_reads_back(cache)
+
+
+def test_a_cached_document_whose_positions_are_garbage_still_builds(cache, tmp_path, reference):
+    # a files entry of the right type, correctly signed, whose index of positions is rows of another
+    # shape: the rows are left out, the objects take the file's first line, and the build runs through
+    # (the site's data is the same; only registry lines can differ: content is not the checksum's to vouch for)
+    from registry.load.fleet import Parsed
+    from registry.load.yamldoc import PlacedIndex
+
+    forged = 0
+    for path in entries(cache, "files"):
+        doc, problems = codec.loads(store.checked_payload(path.stem, path.read_bytes()), Parsed)
+        if doc is None:
+            continue
+        bad = dataclasses.replace(doc, index=PlacedIndex(doc.path, '[["x"], {"a": 1}, [1, 2, 3]]'))
+        path.write_bytes(signed(path.stem, codec.dumps((bad, problems), Parsed)))
+        forged += 1
+    assert forged >= 5
+    site = rebuild(cache, tmp_path)
+    assert sorted(site) == sorted(reference)
+    assert json.loads(site["record.json"])["discrepancies"].keys() == json.loads(reference["record.json"])["discrepancies"].keys()
 
 
 def test_a_pickle_in_the_cache_runs_nothing(cache, tmp_path, reference):
@@ -334,3 +356,5 @@ def test_an_index_of_positions_with_bad_rows_falls_back_to_the_objects_own_line(
                           Locator)
     back = codec.loads(payload, Locator)  # the rows are read only when a position is asked
     assert back.where("feeder.length_m") == own
+    top = codec.loads(codec.dumps(Locator(FieldIndex("fleet_data/policy.yaml", rows), (), own), Locator), Locator)
+    assert top.where("vswr_limit") == own  # a file's own locator (no prefix) with no root row: still an answer

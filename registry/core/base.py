@@ -125,11 +125,12 @@ class Locator:
     def where(self, field_path: str) -> Src:
         """The position of `field_path` (`feeder.length_m`, `bands_mhz[0][1]`), or of its nearest present parent."""
         parts = self.prefix + parse_path(field_path)
-        while len(parts) >= len(self.prefix):
+        while True:
             if parts in self.index:
                 return self.index[parts]
+            if len(parts) <= len(self.prefix):  # the object's own path is the last tried (a file's: ())
+                return self.fallback
             parts = parts[:-1]
-        return self.fallback
 
     def field_path(self, field_path: str) -> str:
         """The field's full path in its file, as messages show it (`installations[2].feeder.length_m`)."""

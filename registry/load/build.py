@@ -32,7 +32,8 @@ class Doc:
         self.srcs = doc.index.srcs()
 
     def at(self, *parts: str | int) -> dict[str, Any]:
-        src = self.srcs.get(parts) or self.srcs[()]
+        # the file's first line when even the document's own position is missing (a forged cache entry)
+        src = self.srcs.get(parts) or self.srcs.get(()) or Src(self.path, 1, 1)
         return {"src": src, "locator": Locator(self.srcs, parts, src)}
 
 

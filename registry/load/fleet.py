@@ -303,7 +303,7 @@ class _Run:
         if "default" not in merged.get("feeder_loss_budget_db", {"default": 0}):
             missing.append("feeder_loss_budget_db.default")
         for key in missing:
-            self.problems.append(Problem.at(shipped.srcs[()], key, "nothing",
+            self.problems.append(Problem.at(shipped.at()["src"], key, "nothing",
                                             f"a value here or in {self.data_dir / 'policy.yaml'}"))
         if missing:
             return None
@@ -316,7 +316,7 @@ class _Run:
             rules.update((tuple(sorted(rule.services)), rule) for rule in layer)
         top = layers[0]
         return Policy(
-            src=top.srcs[()],
+            src=top.at()["src"],
             locator=build.LayeredLocator([doc.at()["locator"] for doc in layers]),
             length_tolerance_pct=float(merged["length_tolerance_pct"]),
             vswr_limit=float(merged["vswr_limit"]),

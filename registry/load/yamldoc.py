@@ -119,7 +119,7 @@ class YamlDoc:
     index: PlacedIndex
 
     def placed(self, parts: tuple[str | int, ...]) -> Placed:
-        """The nearest recorded position at or above `parts`."""
-        while parts not in self.index:
+        """The nearest recorded position at or above `parts` (the file's first line when there is none)."""
+        while parts and parts not in self.index:
             parts = parts[:-1]
-        return self.index[parts]
+        return self.index.get(parts) or Placed(None, Src(self.path, 1, 1), None)

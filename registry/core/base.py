@@ -41,45 +41,48 @@ def freeze(value: Any) -> Any:
     return value
 
 
-class FieldIndex(Mapping):
-    """Where each field of one file sits: a mapping from path tuples (`("installations", 2, "feeder")`)
-    to positions, shared by every object built from the file.
-
-    Kept (in the cache, and when handed between processes) as the file's path once and `rows`, JSON text
-    of [line, column, part, part, ...] per field; the table is made from it only when a position is
-    first asked. An aircraft read back from the cache is seldom asked (only when its figures are
-    computed again or a finding names a line), and its thousand positions as objects were most of what
-    reading a large fleet from the cache cost. Rows that do not read back as [int, int, str | int, ...]
-    are left out: a position then falls back to its object's own, as for a field not in the file."""
+class TextIndex(Mapping):
+    """A table by path tuple kept (in the cache, and when handed between processes) as the file's path
+    once and `rows`, JSON text of one list per entry; the table is made from the text only when first
+    asked. Subclasses say how an entry becomes a row (`row_of`) and how rows become the table
+    (`table_of`, which leaves out rows of any other shape: a damaged or forged cache entry)."""
 
     __slots__ = ("path", "_rows", "_table")
 
     def __init__(self, path: str, rows: str):
         self.path = sys.intern(path)
         self._rows: str | None = rows
-        self._table: dict[tuple[str | int, ...], Src] | None = None
+        self._table: dict[tuple[str | int, ...], Any] | None = None
 
     @classmethod
-    def of(cls, path: str, table: dict[tuple[str | int, ...], Src]) -> "FieldIndex":
+    def of(cls, path: str, table: dict[tuple[str | int, ...], Any]):
         """The index of a file just read (`table` already made; `rows` written when first asked)."""
         made = cls(path, "")
         made._rows, made._table = None, table
         return made
 
+    @staticmethod
+    def row_of(parts: tuple[str | int, ...], value: Any) -> list:
+        raise NotImplementedError
+
+    @staticmethod
+    def table_of(path: str, rows: str) -> dict[tuple[str | int, ...], Any]:
+        raise NotImplementedError
+
     @property
     def rows(self) -> str:
         if self._rows is None:
-            self._rows = json.dumps([[src.line, src.column, *parts] for parts, src in self._table.items()],
+            self._rows = json.dumps([self.row_of(parts, value) for parts, value in self._table.items()],
                                     separators=(",", ":"))
         return self._rows
 
     @property
-    def table(self) -> dict[tuple[str | int, ...], Src]:
+    def table(self) -> dict[tuple[str | int, ...], Any]:
         if self._table is None:
-            self._table = _table_of(self.path, self._rows or "[]")
+            self._table = self.table_of(self.path, self._rows or "[]")
         return self._table
 
-    def __getitem__(self, parts: tuple[str | int, ...]) -> Src:
+    def __getitem__(self, parts: tuple[str | int, ...]) -> Any:
         return self.table[parts]
 
     def __contains__(self, parts: object) -> bool:
@@ -96,6 +99,27 @@ class FieldIndex(Mapping):
 
     def __setstate__(self, state: tuple[str, str]) -> None:
         self.__init__(*state)
+
+
+class FieldIndex(TextIndex):
+    """Where each field of one file sits: a mapping from path tuples (`("installations", 2, "feeder")`)
+    to positions, shared by every object built from the file.
+
+    A `TextIndex` whose rows are [line, column, part, part, ...]. An aircraft read back from the cache is
+    seldom asked (only when its figures are computed again or a finding names a line), and its thousand
+    positions as objects were most of what reading a large fleet from the cache cost. Rows that do not
+    read back as [int, int, str | int, ...] are left out: a position then falls back to its object's
+    own, as for a field not in the file."""
+
+    __slots__ = ()
+
+    @staticmethod
+    def row_of(parts: tuple[str | int, ...], src: Src) -> list:
+        return [src.line, src.column, *parts]
+
+    @staticmethod
+    def table_of(path: str, rows: str) -> dict[tuple[str | int, ...], Src]:
+        return _table_of(path, rows)
 
 
 def _table_of(path: str, rows: str) -> dict[tuple[str | int, ...], Src]:

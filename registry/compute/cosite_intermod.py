@@ -31,8 +31,8 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
     one suppression line are marked excused (and get no level)."""
     out = []
     rating = Rating(geometry)
-    tx_bands = [[tuple(band) for band in side.value("tx_bands_mhz")] for side in transmitters]
-    rx_bands = [[tuple(band) for band in side.value("rx_bands_mhz")] for side in receivers]
+    tx_bands = [tuple(tuple(band) for band in side.value("tx_bands_mhz")) for side in transmitters]
+    rx_bands = [tuple(tuple(band) for band in side.value("rx_bands_mhz")) for side in receivers]
     for i, one in enumerate(transmitters):
         for j in range(i + 1, len(transmitters)):
             two = transmitters[j]
@@ -41,14 +41,9 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
                 if rx.installation is one.installation or rx.installation is two.installation:
                     continue
                 line = one.line if one.line and one.line == two.line == rx.line else ""
-                for f1 in tx_bands[i]:
-                    for f2 in tx_bands[j]:
-                        for victim in victims:
-                            for a, b, label, order, r1, r2, product in _intermod_hits(f1, f2, victim):
-                                head = (aircraft_id, one.position, two.position, rx.position, label, order, r1, r2,
-                                        product, line)
-                                out.append(CositeIntermod(*head) if line
-                                           else rating.rated(head, abs(a) > abs(b), pair, rx))
+                for a, b, label, order, r1, r2, product in _ranges_hits(tx_bands[i], tx_bands[j], victims):
+                    head = (aircraft_id, one.position, two.position, rx.position, label, order, r1, r2, product, line)
+                    out.append(CositeIntermod(*head) if line else rating.rated(head, abs(a) > abs(b), pair, rx))
     return out
 
 
@@ -123,6 +118,16 @@ def receiver_figures(generator: Side, rx: Side, product_lo_mhz: float,
     receive, plane = receive_figures(rx)
     feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, "", generator).value
     return out, tuple(receive), plane, feeder
+
+
+@lru_cache(maxsize=4096)
+def _ranges_hits(f1_ranges: tuple[tuple[float, float], ...], f2_ranges: tuple[tuple[float, float], ...],
+                 victims: tuple[tuple[float, float], ...]) -> tuple:
+    """`_intermod_hits` over every range of two transmitters and a receiver, in that order (first
+    transmitter's ranges, the second's, the receiver's): once per set of services in a process, where
+    an aircraft asks for a few thousand (range, range, band) sets, most of them without a product."""
+    return tuple(hit for f1 in f1_ranges for f2 in f2_ranges for victim in victims
+                 for hit in _intermod_hits(f1, f2, victim))
 
 
 @lru_cache(maxsize=4096)

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 
 from collections import defaultdict
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field, fields, replace
 from datetime import date
 from pathlib import Path
 from typing import Any, Iterable, Mapping, NamedTuple
@@ -18,7 +18,7 @@ from registry.load.git import as_of_date
 from registry.load.history import FleetHistory
 from registry.core.results import Discrepancy, Figure, FleetResults
 from registry.check.reviews import finding_order
-from registry.site.drawing import Drawing
+from registry.site.drawing import Drawing, View
 from registry.site.format import fmt
 from registry.site.info import BuildInfo
 from registry.site.labels import severity_rank
@@ -78,7 +78,7 @@ class DrawingFrames:
         """Each view's `head` and `scale`, in the order of `drawing.views`."""
         frames = []
         for view in drawing.views:
-            key = (replace(view, markers=(), sectors=()), drawing.small_font)
+            key = (*(getattr(view, name) for name in FRAME_FIELDS), drawing.small_font)
             frame = self.seen.get(key)
             if frame is None:
                 if len(self.seen) > self.LIMIT:
@@ -87,6 +87,10 @@ class DrawingFrames:
                                           "scale": Markup(self.macros.view_scale(view, drawing.small_font))}
             frames.append(frame)
         return frames
+
+
+FRAME_FIELDS = tuple(item.name for item in fields(View) if item.name not in ("markers", "sectors"))
+"""What a view's frame is drawn from: the view but its markers and blocked sectors."""
 
 
 @dataclass(frozen=True)

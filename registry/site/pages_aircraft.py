@@ -34,8 +34,9 @@ def aircraft_outputs(data: SiteData, aircraft: Aircraft, pairs_of: Pairs) -> lis
     own_file = aircraft_registry_page(data, aircraft)
     if own_file is not None:
         outputs.append(own_file)
+    shown: PairCells = {}  # a pair's cells, made on its first antenna's page and reused on the other's
     for installation in aircraft.installations.values():
-        outputs.append(installation_page(data, aircraft, installation, pairs_of))
+        outputs.append(installation_page(data, aircraft, installation, pairs_of, shown))
         result = data.results.installations.get((aircraft.id, installation.position))
         key = plots.vswr_key(result) if result is not None else None
         if key is not None:
@@ -83,23 +84,38 @@ def aircraft_page(data: SiteData, aircraft: Aircraft) -> Page:
                 status_kinds=("unserviceable", "query", "note", "clear"))
 
 
-def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs) -> list[dict[str, Any]]:
-    """The installation's co-site pairs: the other antenna, distance, isolation and figures."""
+PairCells = dict[tuple[int, str], dict[str, Any]]
+"""What an installation page shows of a pair whichever end it is on, by the pair's id() and the page's
+root (both antennas' pages are at the same depth, so the figure table's rows are the same on both)."""
+
+
+def pair_rows(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs,
+              shown: PairCells | None = None) -> list[dict[str, Any]]:
+    """The installation's co-site pairs: the other antenna, distance, isolation and figures (the cells
+    that do not depend on the end taken from `shown` when the other end's page made them)."""
     rows = []
     root = root_of(installation_path(aircraft.id, installation.position))
+    shown = {} if shown is None else shown
     for pair in pairs_of.get((aircraft.id, installation.position), ()):
         other = pair.position_b if pair.position_a == installation.position else pair.position_a
         other_install = aircraft.installations.get(other)
+        cells = shown.pop((id(pair), root), None)  # a pair has two ends: its cells are wanted twice at most
+        if cells is None:
+            cells = shown[(id(pair), root)] = pair_cells(data, pair, root)
         rows.append({"other": other, "href": installation_path(aircraft.id, other) if other_install else None,
                      "service": data.fleet.services[other_install.service].name
-                     if other_install and other_install.service in data.fleet.services else "",
-                     "distance": fmt_figure(pair.figure("pair.distance_m")),
-                     "isolation": fmt_figure(pair.figure("pair.isolation_db")),
-                     "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
-                     "model": fmt_figure(pair.figure("pair.model")) if pair.figure("pair.model") else "",
-                     "no_model": bool(pair.figure("pair.model")) and pair.figure("pair.model").value == "none",
-                     "near_field": pair.near_field, "figures": data.figure_rows(pair.figures, root)})
+                     if other_install and other_install.service in data.fleet.services else "", **cells})
     return rows
+
+
+def pair_cells(data: SiteData, pair: PairResult, root: str) -> dict[str, Any]:
+    """A pair's row cells and figure table that are the same on both its antennas' pages."""
+    model = pair.figure("pair.model")
+    return {"distance": fmt_figure(pair.figure("pair.distance_m")),
+            "isolation": fmt_figure(pair.figure("pair.isolation_db")),
+            "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
+            "model": fmt_figure(model) if model else "", "no_model": bool(model) and model.value == "none",
+            "near_field": pair.near_field, "figures": data.figure_rows(pair.figures, root)}
 
 
 def result_views(data: SiteData, aircraft: Aircraft, installation: Installation,
@@ -137,7 +153,8 @@ def coverage_views(data: SiteData, aircraft: Aircraft, installation: Installatio
     return {"cmap": cmap, "drawing": drawing, "frames": data.drawing_frames(drawing)}
 
 
-def installation_page(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs) -> Page:
+def installation_page(data: SiteData, aircraft: Aircraft, installation: Installation, pairs_of: Pairs,
+                      shown: PairCells | None = None) -> Page:
     page_path = installation_path(aircraft.id, installation.position)
     result = data.results.installations.get((aircraft.id, installation.position))
     airframe = data.fleet.airframe_of(aircraft)
@@ -157,7 +174,7 @@ def installation_page(data: SiteData, aircraft: Aircraft, installation: Installa
                 location=location_text(installation.location, airframe.coord_unit),
                 zone=airframe.zone_at(installation.location.sta, installation.surface),
                 **result_views(data, aircraft, installation, result),
-                pairs=pair_rows(data, aircraft, installation, pairs_of),
+                pairs=pair_rows(data, aircraft, installation, pairs_of, shown),
                 **coverage_views(data, aircraft, installation, service),
                 discrepancies=[discrepancy_view(data, d) for d in items],
                 card=technician_card(aircraft, installation, airframe.coord_unit),

@@ -6,6 +6,7 @@ file share or any sub-path of a web server.
 from __future__ import annotations
 
 import re
+from functools import lru_cache
 
 from registry.incremental import text_key
 
@@ -18,8 +19,10 @@ def safe_name(key: str) -> str:
     return f"{slug}-{text_key(key)}"
 
 
+@lru_cache(maxsize=8192)
 def anchor(text: str) -> str:
-    """An id for an HTML anchor: only letters, digits, "_" and "-"."""
+    """An id for an HTML anchor: only letters, digits, "_" and "-" (remembered: pages ask for the same
+    figure keys, positions and aircraft ids again and again)."""
     return re.sub(r"[^A-Za-z0-9_-]", "_", text.replace("/", "__").replace("+", "--"))
 
 

@@ -330,8 +330,24 @@ class Policy(Sourced):
 
     def min_isolation_for(self, service_a: str, service_b: str) -> IsolationRule | None:
         """The isolation rule for a pair of services (in either order), or None."""
-        pair = tuple(sorted((service_a, service_b)))
-        return next((rule for rule in self.min_isolation_db if tuple(sorted(rule.services)) == pair), None)
+        return _isolation_index(self.min_isolation_db).get(tuple(sorted((service_a, service_b))))
+
+
+def _isolation_index(rules: tuple[IsolationRule, ...]) -> dict[tuple[str, ...], IsolationRule]:
+    """The rules by their sorted services, the first rule of a pair kept (made once per tuple of rules:
+    every pair of antennas of every aircraft asks)."""
+    held = _ISOLATION_INDEX.get(id(rules))
+    if held is None or held[0] is not rules:
+        if len(_ISOLATION_INDEX) >= 64:  # a build has one policy; tests make many
+            _ISOLATION_INDEX.clear()
+        index: dict[tuple[str, ...], IsolationRule] = {}
+        for rule in rules:
+            index.setdefault(tuple(sorted(rule.services)), rule)
+        held = _ISOLATION_INDEX[id(rules)] = (rules, index)  # the rules held: their id is not reused
+    return held[1]
+
+
+_ISOLATION_INDEX: dict[int, tuple[tuple, dict]] = {}
 
 
 POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name not in ("sources", "src", "locator"))

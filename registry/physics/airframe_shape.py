@@ -254,7 +254,33 @@ def locate_on_skin(shape: AirframeShape, point, scale_m: float, tolerance_m: flo
 
     Fuselage distance: along the ray from the section centre (exact for circles, a close measure for
     ellipses); plate distance: perpendicular to the plane, the foot inside the polygon.
+
+    Remembered per shape and point given as a tuple (`_LOCATED`): an antenna's point is located once for
+    each of the other antennas it is paired with. The answer's arrays are read-only.
     """
+    try:
+        key = (id(shape), point, scale_m, tolerance_m)
+        held = _LOCATED.get(key)
+    except TypeError:  # a point given as an array: not remembered
+        return _locate_on_skin(shape, point, scale_m, tolerance_m)
+    if held is not None and held[0] is shape:
+        return held[1]
+    if len(_LOCATED) >= LOCATED_LIMIT:
+        _LOCATED.clear()
+    hit = _locate_on_skin(shape, point, scale_m, tolerance_m)
+    if hit is not None:
+        hit.normal.setflags(write=False)
+        hit.on_skin_m.setflags(write=False)
+    _LOCATED[key] = (shape, hit)  # the shape held too, so that its id is not reused while the entry lives
+    return hit
+
+
+LOCATED_LIMIT = 8_192
+"""Bounded: an aircraft's points are asked for during its own computation only."""
+_LOCATED: dict[tuple, tuple[AirframeShape, SkinPoint | None]] = {}
+
+
+def _locate_on_skin(shape: AirframeShape, point, scale_m: float, tolerance_m: float) -> SkinPoint | None:
     p = to_metres(point, scale_m)
     at = tuple(float(c) for c in p)  # a foot inside the polygon within tolerance implies p inside the box
     near = [pl for pl in shape.plates if pl.near(at, tolerance_m)]  # grown by the tolerance
@@ -273,4 +299,4 @@ def surface_normal(shape: AirframeShape, point, scale_m: float, tolerance_m: flo
     hit = locate_on_skin(shape, point, scale_m, tolerance_m)
     if hit is None:
         raise ValueError(f"point {tuple(point)} is not within {tolerance_m} m of the skin")
-    return hit.normal
+    return hit.normal.copy()

@@ -14,6 +14,7 @@ from datetime import date
 from pathlib import Path
 
 from registry.core.base import FrozenMap, Sourced
+from registry.core.memo import by_unordered
 from registry.core.hardware import (AdapterPart, Amplifier, Bonding, ConnectorEnd, ManualRef,  # noqa: F401
                                     RadioUnit, Splitter)
 
@@ -330,24 +331,7 @@ class Policy(Sourced):
 
     def min_isolation_for(self, service_a: str, service_b: str) -> IsolationRule | None:
         """The isolation rule for a pair of services (in either order), or None."""
-        return _isolation_index(self.min_isolation_db).get(tuple(sorted((service_a, service_b))))
-
-
-def _isolation_index(rules: tuple[IsolationRule, ...]) -> dict[tuple[str, ...], IsolationRule]:
-    """The rules by their sorted services, the first rule of a pair kept (made once per tuple of rules:
-    every pair of antennas of every aircraft asks)."""
-    held = _ISOLATION_INDEX.get(id(rules))
-    if held is None or held[0] is not rules:
-        if len(_ISOLATION_INDEX) >= 64:  # a build has one policy; tests make many
-            _ISOLATION_INDEX.clear()
-        index: dict[tuple[str, ...], IsolationRule] = {}
-        for rule in rules:
-            index.setdefault(tuple(sorted(rule.services)), rule)
-        held = _ISOLATION_INDEX[id(rules)] = (rules, index)  # the rules held: their id is not reused
-    return held[1]
-
-
-_ISOLATION_INDEX: dict[int, tuple[tuple, dict]] = {}
+        return by_unordered(self.min_isolation_db, "services").get(tuple(sorted((service_a, service_b))))
 
 
 POLICY_KEYS = tuple(item.name for item in fields(Policy) if item.name not in ("sources", "src", "locator"))

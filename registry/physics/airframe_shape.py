@@ -25,6 +25,8 @@ from functools import cached_property
 
 import numpy as np
 
+from registry.core.memo import ByIdentity
+
 #: half-width of the fore-body and tail-cone tips relative to the maximum, for outlines (assumed)
 TIP_FRACTION = 0.12
 
@@ -259,25 +261,21 @@ def locate_on_skin(shape: AirframeShape, point, scale_m: float, tolerance_m: flo
     each of the other antennas it is paired with. The answer's arrays are read-only.
     """
     try:
-        key = (id(shape), point, scale_m, tolerance_m)
-        held = _LOCATED.get(key)
+        return _LOCATED.get((shape,), (point, scale_m, tolerance_m),
+                            lambda: _read_only_hit(_locate_on_skin(shape, point, scale_m, tolerance_m)))
     except TypeError:  # a point given as an array: not remembered
         return _locate_on_skin(shape, point, scale_m, tolerance_m)
-    if held is not None and held[0] is shape:
-        return held[1]
-    if len(_LOCATED) >= LOCATED_LIMIT:
-        _LOCATED.clear()
-    hit = _locate_on_skin(shape, point, scale_m, tolerance_m)
+
+
+_LOCATED: ByIdentity[SkinPoint | None] = ByIdentity(limit=8_192)
+"""Bounded: an aircraft's points are asked for during its own computation only."""
+
+
+def _read_only_hit(hit: SkinPoint | None) -> SkinPoint | None:
     if hit is not None:
         hit.normal.setflags(write=False)
         hit.on_skin_m.setflags(write=False)
-    _LOCATED[key] = (shape, hit)  # the shape held too, so that its id is not reused while the entry lives
     return hit
-
-
-LOCATED_LIMIT = 8_192
-"""Bounded: an aircraft's points are asked for during its own computation only."""
-_LOCATED: dict[tuple, tuple[AirframeShape, SkinPoint | None]] = {}
 
 
 def _locate_on_skin(shape: AirframeShape, point, scale_m: float, tolerance_m: float) -> SkinPoint | None:

@@ -8,6 +8,7 @@ import math
 import numpy as np
 
 from registry.core import figure_keys as FK
+from registry.core.memo import ByIdentity
 from registry.compute import antenna as cache
 from registry.compute.kinds import kind_of
 from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
@@ -174,6 +175,26 @@ def in_bands(freqs_mhz: np.ndarray, bands) -> np.ndarray:
 
 def modelled_vswr(model: AntennaModel, service: Service, cable: Cable,
                   policy: Policy) -> tuple[list[Figure], Curve | None]:
+    """`bare_element_vswr`, once per antenna model, service, cable and policy object in a process: it
+    depends on nothing else, and a fleet fits the same antenna on the same cable over and over. The
+    curve's arrays are read-only; the list is the caller's own."""
+    figures, curve = _MODELLED.get((model, service, cable, policy), None,
+                                   lambda: _read_only_curve(*bare_element_vswr(model, service, cable, policy)))
+    return list(figures), curve
+
+
+_MODELLED: ByIdentity[tuple[tuple[Figure, ...], Curve | None]] = ByIdentity(limit=1_024)
+
+
+def _read_only_curve(figures: list[Figure], curve: Curve | None) -> tuple[tuple[Figure, ...], Curve | None]:
+    if curve is not None:
+        curve.x.setflags(write=False)
+        curve.y.setflags(write=False)
+    return tuple(figures), curve
+
+
+def bare_element_vswr(model: AntennaModel, service: Service, cable: Cable,
+                      policy: Policy) -> tuple[list[Figure], Curve | None]:
     """VSWR across the service band from the method-of-moments input impedance of the element, and
     whether any matching network could hold the VSWR limit across each service band.
 

@@ -220,17 +220,17 @@ def _fuselage_skin(shape: AirframeShape, p: np.ndarray) -> SkinPoint | None:
 
 
 def inside_polygon(points_2d: np.ndarray, poly_2d: np.ndarray) -> np.ndarray:
-    """Even-odd (crossing number) test of points (..., 2) against a polygon (n, 2); boolean (...)."""
-    px, py = points_2d[..., 0], points_2d[..., 1]
-    inside = np.zeros(px.shape, dtype=bool)
-    n = poly_2d.shape[0]
-    for k in range(n):
-        (xa, ya), (xb, yb) = poly_2d[k], poly_2d[(k + 1) % n]
-        crosses = (ya > py) != (yb > py)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            x_cross = xa + (py - ya) * (xb - xa) / (yb - ya)
-        inside ^= crosses & (px < x_cross)
-    return inside
+    """Even-odd (crossing number) test of points (..., 2) against a polygon (n, 2); boolean (...).
+
+    Every edge k (a = vertex k, b = vertex k + 1) at once: a point is inside when an odd number of edges
+    satisfy (y_a > y) != (y_b > y) and x < x_a + (y − y_a)(x_b − x_a)/(y_b − y_a)."""
+    px, py = np.asarray(points_2d[..., 0])[..., None], np.asarray(points_2d[..., 1])[..., None]
+    xa, ya = poly_2d[:, 0], poly_2d[:, 1]
+    xb, yb = np.roll(xa, -1), np.roll(ya, -1)
+    crosses = (ya > py) != (yb > py)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x_cross = xa + (py - ya) * (xb - xa) / (yb - ya)
+    return np.logical_xor.reduce(crosses & (px < x_cross), axis=-1)
 
 
 def plane_basis(pl: Plate) -> tuple[np.ndarray, np.ndarray]:

@@ -93,26 +93,26 @@ def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: f
     big = big if t_max is None else float(t_max)
     if d.shape[0] == 1:  # one ray (a line of sight): every segment at once, the same arithmetic
         return np.array([_fuselage_hits(x0s, x1s, w0s, dws, c0s, dcs, qs, p, d[0], t_min, big, tol).any()])
+    # every segment (rows) against every ray (columns) at once: the same operations element by element
+    # as one segment at a time, so the same bits
     dx, dy, dz = d[:, 0], d[:, 1], d[:, 2]
-    hit = np.zeros(d.shape[0], dtype=bool)
     safe_dx = np.where(np.abs(dx) > 1e-12, dx, 1.0)
-    for x0, x1, w0, dw, c0, dc, q in zip(x0s, x1s, w0s, dws, c0s, dcs, qs):
-        w_p, c_p = w0 + dw * (p[0] - x0), c0 + dc * (p[0] - x0)
-        ez = dz - dc * dx
-        a = dy**2 + (ez / q) ** 2 - (dw * dx) ** 2
-        b = 2 * (p[1] * dy + (p[2] - c_p) * ez / q**2 - w_p * dw * dx)
-        c = p[1] ** 2 + ((p[2] - c_p) / q) ** 2 - w_p**2
-        ta, tb = (x0 - p[0]) / safe_dx, (x1 - p[0]) / safe_dx
-        inside_x = (x0 <= p[0]) & (p[0] <= x1)
-        lo = np.where(np.abs(dx) > 1e-12, np.minimum(ta, tb), np.where(inside_x, -big, big))
-        hi = np.where(np.abs(dx) > 1e-12, np.maximum(ta, tb), np.where(inside_x, big, -big))
-        lo, hi = np.maximum(lo, t_min), np.minimum(hi, big)
-        ok = hi > lo
-        f_lo, f_hi = (a * lo + b) * lo + c, (a * hi + b) * hi + c
-        t_v = np.clip(-b / np.where(a > 0, 2 * a, 1.0), lo, hi)
-        f_v = np.where(a > 0, (a * t_v + b) * t_v + c, np.inf)
-        hit |= ok & (np.minimum(np.minimum(f_lo, f_hi), f_v) < -tol)
-    return hit
+    x0, x1, w0, dw, c0, dc, q = (part[:, None] for part in (x0s, x1s, w0s, dws, c0s, dcs, qs))
+    w_p, c_p = w0 + dw * (p[0] - x0), c0 + dc * (p[0] - x0)
+    ez = dz - dc * dx
+    a = dy**2 + (ez / q) ** 2 - (dw * dx) ** 2
+    b = 2 * (p[1] * dy + (p[2] - c_p) * ez / q**2 - w_p * dw * dx)
+    c = p[1] ** 2 + ((p[2] - c_p) / q) ** 2 - w_p**2
+    ta, tb = (x0 - p[0]) / safe_dx, (x1 - p[0]) / safe_dx
+    inside_x = (x0 <= p[0]) & (p[0] <= x1)
+    lo = np.where(np.abs(dx) > 1e-12, np.minimum(ta, tb), np.where(inside_x, -big, big))
+    hi = np.where(np.abs(dx) > 1e-12, np.maximum(ta, tb), np.where(inside_x, big, -big))
+    lo, hi = np.maximum(lo, t_min), np.minimum(hi, big)
+    ok = hi > lo
+    f_lo, f_hi = (a * lo + b) * lo + c, (a * hi + b) * hi + c
+    t_v = np.clip(-b / np.where(a > 0, 2 * a, 1.0), lo, hi)
+    f_v = np.where(a > 0, (a * t_v + b) * t_v + c, np.inf)
+    return (ok & (np.minimum(np.minimum(f_lo, f_hi), f_v) < -tol)).any(axis=0)
 
 
 def _fuselage_hits(x0, x1, w0, dw, c0, dc, q, p: np.ndarray, d: np.ndarray, t_min: float, big: float,

@@ -165,3 +165,43 @@ def test_a_single_line_of_sight_enters_the_fuselage_exactly_when_the_ray_fan_say
         assert fuselage_blocks(shape, p, d[None, :], 1e-9, t_max)[0] == fan
         entered += bool(fan)
     assert 20 < entered < 380  # both answers occur
+
+
+def test_a_skin_point_is_located_once_per_shape_and_point_and_the_answer_cannot_be_changed():
+    """The remembered answer (a point given as a tuple) is the one worked out afresh (the same point given
+    as an array, which is never remembered); its arrays are read-only, so no caller can change what the
+    next caller gets, and surface_normal hands out a copy of its own. Ellipse geometry as above."""
+    body = fuselage([0.0, 400.0], [100.0, 100.0], [50.0, 50.0], [60.0, 60.0], 0.0254)
+    t = 0.7
+    point = (100.0, 50 * math.cos(t), 100.0 + 60 * math.sin(t))
+    first, again = locate_on_skin(body, point, 0.0254), locate_on_skin(body, point, 0.0254)
+    fresh = locate_on_skin(body, np.array(point), 0.0254)
+    assert again is first and fresh is not first
+    assert first.part == fresh.part and first.distance_m == fresh.distance_m
+    assert np.array_equal(first.normal, fresh.normal) and np.array_equal(first.on_skin_m, fresh.on_skin_m)
+    with pytest.raises(ValueError):
+        first.normal[0] = 1.0
+    normal = surface_normal(body, point, 0.0254)
+    normal *= -1.0  # the caller's own copy
+    assert np.allclose(surface_normal(body, point, 0.0254), first.normal)
+    other = fuselage([0.0, 400.0], [100.0, 100.0], [50.0, 50.0], [60.0, 60.0], 0.0254)  # equal, not the same
+    assert locate_on_skin(other, point, 0.0254) is not first
+
+
+def test_points_in_a_concave_polygon_against_the_closed_form_region():
+    """Even-odd test, every edge at once, on an L-shaped hexagon: the square [0, 2] x [0, 2] without its
+    corner (1, 2] x (1, 2] (exact geometry, no source needed); points off the edges by at least 1e-6,
+    given as (N, 2), as a (5, N/5, 2) block and one at a time."""
+    from registry.physics.airframe_shape import inside_polygon
+    poly = np.array([[0.0, 0.0], [2.0, 0.0], [2.0, 1.0], [1.0, 1.0], [1.0, 2.0], [0.0, 2.0]])
+    rng = np.random.default_rng(7)
+    pts = rng.uniform(-0.5, 2.5, size=(2000, 2))
+    x, y = pts[:, 0], pts[:, 1]
+    near_edge = np.min(np.abs(np.stack([x, x - 1, x - 2, y, y - 1, y - 2])), axis=0) < 1e-6
+    pts, x, y = pts[~near_edge], x[~near_edge], y[~near_edge]
+    pts, x, y = pts[:1995], x[:1995], y[:1995]
+    expected = (x > 0) & (x < 2) & (y > 0) & (y < 2) & ~((x > 1) & (y > 1))
+    assert expected.sum() > 500 and (~expected).sum() > 500
+    assert np.array_equal(inside_polygon(pts, poly), expected)
+    assert np.array_equal(inside_polygon(pts.reshape(5, -1, 2), poly).ravel(), expected)
+    assert [bool(inside_polygon(p, poly)) for p in pts[:40]] == list(expected[:40])

@@ -32,20 +32,26 @@ def is_vswr(key: str = "", unit: str = "") -> bool:
     return unit == ":1" or key in VSWR_KEYS
 
 
+FIXED_DECIMALS = {"MHz": 3, "GHz": 4, "kHz": 1, "°": 1, "deg": 1, "days": 0, "λ": 2}
+"""Units whose decimals do not depend on the size of the value."""
+
+
 def decimals(value: float, unit: str) -> int | None:
     """Decimal places for a value of this unit; None for "4 significant digits"."""
     size = abs(value)
     if unit in DB_UNITS:
         return 2 if size < 10 else 1
-    table = {
-        "%": 1 if size < 100 else 0,
-        "m": 3 if size < 1 else 2 if size < 100 else 1,
-        "mm": 2 if size < 10 else 1 if size < 100 else 0,
-        "MHz": 3, "GHz": 4, "kHz": 1,
-        "Ω": 1 if size < 100 else 0,
-        "°": 1, "deg": 1, "days": 0, "λ": 2,
-    }
-    return table.get(unit)
+    if unit in FIXED_DECIMALS:
+        return FIXED_DECIMALS[unit]
+    if unit == "%":
+        return 1 if size < 100 else 0
+    if unit == "m":
+        return 3 if size < 1 else 2 if size < 100 else 1
+    if unit == "mm":
+        return 2 if size < 10 else 1 if size < 100 else 0
+    if unit == "Ω":
+        return 1 if size < 100 else 0
+    return None
 
 
 def plain_number(value: float, places: int | None, keep_zeros: bool = False) -> str:

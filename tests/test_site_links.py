@@ -11,16 +11,19 @@ from registry import pipeline
 
 
 class Links(HTMLParser):
-    """Collects every href/src and every id of one page."""
+    """Collects every href/src and every id of one page (and the ids written more than once)."""
 
     def __init__(self) -> None:
         super().__init__(convert_charrefs=True)
         self.refs: list[tuple[str, str]] = []
         self.ids: set[str] = set()
+        self.repeated: set[str] = set()
 
     def handle_starttag(self, tag, attrs):
         for name, value in attrs:
             if name == "id" and value:
+                if value in self.ids:
+                    self.repeated.add(value)
                 self.ids.add(value)
             if name in ("href", "src") and value is not None and not (tag == "form"):
                 self.refs.append((tag, value))
@@ -56,6 +59,15 @@ def test_no_broken_internal_link_anywhere(demo_site):
     assert checked > 500
     assert broken == []
     assert external_resources == []
+
+
+def test_every_id_is_written_once_on_its_page(demo_site):
+    """HTML Living Standard, "The id attribute" (#the-id-attribute): the value "must be unique amongst all
+    the IDs in the element's tree" (a link to a repeated one lands on the first). Pages that show several figure tables of the same keys (one per
+    pair of antennas, one per pattern of an antenna model) give each table's rows their own prefix."""
+    repeated = {str(page.relative_to(demo_site)): sorted(parse(page).repeated)[:3]
+                for page in sorted(demo_site.rglob("*.html"))}
+    assert {page: ids for page, ids in repeated.items() if ids} == {}
 
 
 def test_every_installation_has_a_page_and_a_drawing_marker(demo_site, demo_fleet):

@@ -54,7 +54,7 @@ class FigureCells:
             if len(self.seen) > self.LIMIT:
                 self.seen.clear()
             cells = Markup(self.macros.figure_cells({
-                "anchor": anchor(figure.key), "label": figure.label, "value": fmt(figure.value, figure.unit, figure.key),
+                "label": figure.label, "value": fmt(figure.value, figure.unit, figure.key),
                 "unit": figure.unit, "formula": figure.formula,
                 "inputs": tuple((name, value) for name, value in figure.inputs), "source": figure.source}))
             if plain is not None:
@@ -141,14 +141,17 @@ class SiteData:
         """Why this aircraft's (or installation's) page changed since the compared build; () without one."""
         return self.comparison.marks(aircraft_id, position) if self.comparison is not None else ()
 
-    def figure_rows(self, figures: Iterable[Figure], root: str) -> Markup:
+    def figure_rows(self, figures: Iterable[Figure], root: str, prefix: str = "") -> Markup:
         """The rows of a figure table (partials/figures.html `figure_table`) on a page `root` away from the
-        site's top: each row the figure's cells up to its registry line (`FigureCells`, once per distinct
-        figure) and its registry line, linked to that line on its registry file's page when it has one
-        (once per line and page depth: a page's figures rest on few lines)."""
+        site's top: each row its id ("fig-", `prefix`, the figure's key: a page that shows several tables
+        of the same keys, one per pair or per pattern, gives each its own prefix, so that every id is
+        unique on the page), the figure's cells up to its registry line (`FigureCells`, once per
+        distinct figure) and its registry line, linked to that line on its registry file's page when it
+        has one (once per line and page depth: a page's figures rest on few lines)."""
         parts = []  # joined as plain text: Markup's own + would escape the registry-line cell
         for figure in figures:
-            parts += (self.figure_cells(figure), self.src_cell(figure.src, root))
+            parts += (f'<tr id="fig-{anchor(prefix + figure.key)}">\n  ', self.figure_cells(figure),
+                      self.src_cell(figure.src, root))
         return Markup("".join(parts))
 
     def src_cell(self, src: str, root: str) -> str:

@@ -115,7 +115,8 @@ def pair_cells(data: SiteData, pair: PairResult, root: str) -> dict[str, Any]:
             "isolation": fmt_figure(pair.figure("pair.isolation_db")),
             "minimum": fmt_figure(pair.figure("pair.min_isolation_db")),
             "model": fmt_figure(model) if model else "", "no_model": bool(model) and model.value == "none",
-            "near_field": pair.near_field, "figures": data.figure_rows(pair.figures, root)}
+            "near_field": pair.near_field,
+            "figures": data.figure_rows(pair.figures, root, f"{pair.position_a}+{pair.position_b}-")}
 
 
 def result_views(data: SiteData, aircraft: Aircraft, installation: Installation,

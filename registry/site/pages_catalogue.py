@@ -45,7 +45,8 @@ def antenna_pages(data: SiteData, pieces: Pieces) -> list[Output]:
                             [("Antennas", "antennas.html"), (model.id, None)],
                             model=model, kind=words(model.kind), bands=bands_text(model.bands_mhz),
                             geometry=field_rows(model.geometry),
-                            patterns=[pattern_view(data, p, model.id, root_of(antenna_path(model.id))) for p in patterns],
+                            patterns=[pattern_view(data, p, model.id, root_of(antenna_path(model.id)),
+                                                    f"{p.freq_mhz:g}MHz-") for p in patterns],
                             uses_count=uses_count, uses_rows=uses_rows, src=data.model_src(model)))
     outputs.append(page("antennas.html", "antennas.html", "antennas", "Antenna models", [], models=rows))
     return outputs

@@ -117,9 +117,9 @@ def feeder_breakdown(figures: Iterable[Figure]) -> dict[str, Any] | None:
     }
 
 
-def pattern_view(data: SiteData, pattern: PatternResult, model_id: str, root: str) -> dict[str, Any]:
+def pattern_view(data: SiteData, pattern: PatternResult, model_id: str, root: str, prefix: str = "") -> dict[str, Any]:
     """A pattern as a page (`root` away from the site's top) shows it for one antenna model: its plot, the
-    plot's alt text, its figures."""
+    plot's alt text, its figures (their rows' ids after `prefix`: a page with several patterns)."""
     path = pattern_plot_path(pattern.key, model_id, pattern.antenna)
     return {"src": path, "alt": data.pattern_alts.get(path, ""), "freq": fmt(pattern.freq_mhz, "MHz"),
-            "figures": data.figure_rows(pattern.metrics, root)}
+            "figures": data.figure_rows(pattern.metrics, root, prefix)}

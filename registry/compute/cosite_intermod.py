@@ -10,6 +10,7 @@ Coupling is taken at the lowest frequency of each range (the strongest free-spac
 from __future__ import annotations
 
 from functools import lru_cache
+from typing import Any
 
 from registry.compute.cosite_sides import (Geometry, Side, coupling_figures, feeder_figure, figure_of,
                                           level_figures, receive_figures)
@@ -57,6 +58,8 @@ class Rating:
         self.geometry = geometry
         self.heads: dict[tuple, tuple] = {}
         self.tails: dict[tuple, tuple] = {}
+        self.parts: dict[tuple, Any] = {}
+        """`product_figures`' pieces that several heads share (a side's feeder, a coupling's labelled figures)."""
 
     def rated(self, head: tuple, first_generates: bool, pair: tuple[Side, Side], rx: Side) -> CositeIntermod:
         """The product (`head`: the `CositeIntermod` fields up to `excused_by`) with its generator, level and
@@ -69,7 +72,7 @@ class Rating:
         intruder_lo = (f2_mhz if generator is pair[0] else f1_mhz)[0]
         key = (intruder.position, generator.position, order, intruder_lo)
         if key not in self.heads:
-            self.heads[key] = product_figures(intruder, generator, order, intruder_lo, self.geometry)
+            self.heads[key] = product_figures(intruder, generator, order, intruder_lo, self.geometry, self.parts)
         figures, tx = self.heads[key]
         if tx is None:  # no level: the figures end where one is missing (a power or the conversion loss)
             return CositeIntermod(*head, generator.position, None, figures)
@@ -84,18 +87,23 @@ class Rating:
         return CositeIntermod(*head, generator.position, m.margin_db, figures + out + receive + level)
 
 
-def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz: float,
-                    geometry: Geometry) -> tuple[tuple[Figure, ...], cosite.TransmitterIntermod | None]:
+def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz: float, geometry: Geometry,
+                    parts: dict[tuple, Any] | None = None) -> tuple[tuple[Figure, ...], cosite.TransmitterIntermod | None]:
     """The product at the generator's port, step by step: the intruder's power and feeder, the coupling
     into the generator (at the lowest frequency of the intruder's range), the generator's feeder and its
     conversion loss for the order, then the product; None for the level when a power or the conversion loss
-    is missing (the figures end with the conversion loss then)."""
+    is missing (the figures end with the conversion loss then). `parts` keeps the feeder figures and the
+    labelled coupling for the aircraft's other products (both orders of a pair share them)."""
+    parts = {} if parts is None else parts
     power = figure_of(intruder, "tx_peak_power_dbm", FK.COSITE_TX_POWER_DBM, f"Peak power of {intruder.position}",
                       "dBm")
-    intruder_feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, f"Feeder loss of {intruder.position}", intruder)
-    into = [f._replace(label=f"{f.label}, {intruder.position} → {generator.position}")
-            for f in coupling_figures(intruder, generator, geometry, intruder_lo_mhz)]
-    generator_feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, f"Feeder loss of {generator.position}", generator)
+    intruder_feeder = _feeder(intruder, parts)
+    key = ("into", intruder.position, generator.position, intruder_lo_mhz)
+    if key not in parts:
+        parts[key] = tuple(f._replace(label=f"{f.label}, {intruder.position} → {generator.position}")
+                           for f in coupling_figures(intruder, generator, geometry, intruder_lo_mhz))
+    into = parts[key]
+    generator_feeder = _feeder(generator, parts)
     conversion = figure_of(generator, f"im{order}_conversion_loss_db", FK.COSITE_CONVERSION_LOSS_DB,
                            f"Conversion loss of {generator.position}, order {order}", "dB")
     figures = (power, intruder_feeder, *into, generator_feeder, conversion)
@@ -107,6 +115,14 @@ def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz
                      "P_I − L_I + C_IG − L_G − L_conv", (("coupled in", f"{tx.coupled_in_dbm:.1f} dBm"),),
                      INTERMOD_SOURCE, conversion.src)
     return (*figures, product), tx
+
+
+def _feeder(side: Side, parts: dict[tuple, Any]) -> Figure:
+    """A transmitter's feeder figure as a product's arithmetic shows it, once per side."""
+    key = ("feeder", side.position)
+    if key not in parts:
+        parts[key] = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, f"Feeder loss of {side.position}", side)
+    return parts[key]
 
 
 def receiver_figures(generator: Side, rx: Side, product_lo_mhz: float,

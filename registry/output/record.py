@@ -55,10 +55,12 @@ def plain(value: Any, data_dir: Path, digits: int = REGISTRY_DIGITS) -> Any:
     """A model value as JSON data: dataclasses and mappings become objects, tuples lists, dates ISO text,
     paths text relative to the data folder, floats rounded to `digits` significant digits."""
     kind = type(value)
-    if kind is str or kind is bool or value is None:  # the commonest first (a model holds thousands)
+    if kind is str or kind is bool or value is None or kind is int:  # the commonest first (a model holds thousands)
         return value
     if kind is float:
         return round_sig(value, digits)
+    if kind is tuple or kind is list:
+        return [plain(item, data_dir, digits) for item in value]
     names = _recorded_fields(kind)
     if names is not None:
         return {name: plain(getattr(value, name), data_dir, digits) for name in names}

@@ -352,3 +352,28 @@ def test_the_pages_print_the_date_the_figures_were_computed_as_of():
     assert aircraft_reports
     for path in ["audit.html", "report.html", *aircraft_reports]:
         assert "2031-05-06" in text(files, path), path
+
+
+def test_a_build_leaves_no_page_context_in_a_reference_cycle(demo_data, tmp_path):
+    """Common practice, no source: memory that reference counting frees is freed the moment a page is
+    made, while what sits in a reference cycle waits for the cycle collector, which the build pauses and
+    runs in its workers every few aircraft (incremental/parallel.py). A partial imported "with context"
+    makes a module per page that holds the page's context in such a cycle, and with it everything the page
+    was given. The templates pass what their macros need as arguments instead; what is left is each
+    partial's own module, made once per process."""
+    import gc
+    from collections import Counter
+
+    import jinja2.runtime
+
+    from registry import pipeline
+    gc.collect()
+    gc.set_debug(gc.DEBUG_SAVEALL)
+    try:
+        pipeline.build(demo_data, tmp_path / "site", workers=1)
+        gc.collect()
+        contexts = Counter(item.name for item in gc.garbage if isinstance(item, jinja2.runtime.Context))
+    finally:
+        gc.set_debug(0)
+        gc.garbage.clear()
+    assert {name: count for name, count in contexts.items() if count > 1 or not name.startswith("partials/")} == {}

@@ -69,13 +69,18 @@ def findings_only(summary: AircraftSummary) -> AircraftSummary:
     return AircraftSummary(pattern_of=summary.pattern_of, findings=summary.findings, figure_uses={})
 
 
-def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date) -> tuple[AircraftPart, AircraftSummary,
-                                                                               dict[str, PatternResult]]:
-    """One aircraft through compute and check: its full figures, its summary, its patterns."""
+def evaluate_aircraft(fleet: Fleet, aircraft: Aircraft, as_of: date, brief: bool = False
+                      ) -> tuple[AircraftPart, AircraftSummary, dict[str, PatternResult]]:
+    """One aircraft through compute and check: its full figures, its summary (with `brief`, its findings
+    and pattern keys only: `findings_only`), its patterns."""
     part, patterns = compute_aircraft(fleet, aircraft, as_of)
     summary = AircraftSummary(
         pattern_of={position: result.pattern_key for (_, position), result in part.installations.items()},
         findings=tuple(aircraft_discrepancies(fleet, aircraft, part.installations, part.pairs, part.cosite)),
+        figure_uses={})
+    if brief:
+        return part, summary, patterns
+    summary = summary._replace(
         figure_uses=figure_uses(part.installations.values(), part.pairs),
         record=record.pack_share(record.share_text(record.aircraft_record(
             aircraft, part.installations, part.pairs, Path(fleet.data_dir), part.cosite))),
@@ -97,6 +102,10 @@ class Plan(NamedTuple):
     lazy: bool
     model_patterns: dict[str, set[str]]
     """Each antenna model's pattern keys, over every aircraft."""
+    findings_only: bool = False
+    """The caller wants each aircraft's findings and pattern keys only (`check`, the history): an aircraft
+    computed and not kept in a cache then gets no record share, figure counts or co-site cells (at 1,000
+    aircraft those were an eighth of `check --no-cache`)."""
 
 
 Then = Callable[[Aircraft, AircraftPart, AircraftSummary], Any]
@@ -109,7 +118,7 @@ def evaluate_fleet(fleet: Fleet, as_of: date, cache_dir: Path | None = None, wor
     """All figures and rule findings of the fleet. With `lazy`, an unchanged aircraft contributes its
     findings and pattern keys only (`findings_only`: no record share, no figure counts); its full figures
     stay in the cache until `FleetResults.load` asks for them."""
-    plan = prepare(fleet, as_of, cache_dir, lazy, workers, brief=lazy)
+    plan = prepare(fleet, as_of, cache_dir, lazy, workers, brief=lazy)._replace(findings_only=lazy)
     compute(plan, workers, progress)
     return finish(plan)
 
@@ -186,7 +195,7 @@ def compute(plan: Plan, workers: int, progress: Progress = QUIET, then: Then | N
     def one(job: tuple[str, str]) -> tuple[AircraftPart | None, AircraftSummary, dict[str, PatternResult], Any]:
         aircraft_id, key = job
         aircraft = fleet.aircraft[aircraft_id]
-        part, summary, patterns = evaluate_aircraft(fleet, aircraft, as_of)
+        part, summary, patterns = evaluate_aircraft(fleet, aircraft, as_of, brief=plan.findings_only and not key)
         fresh = {pattern_key: pattern for pattern_key, pattern in patterns.items() if pattern_key not in sent}
         sent.update(fresh)
         if key:

@@ -332,3 +332,27 @@ def test_a_process_of_the_package_runs_one_blas_thread_unless_its_caller_sets_th
     theirs = subprocess.run([sys.executable, "-c", program], env={**env, "OPENBLAS_NUM_THREADS": "2"},
                             capture_output=True, text=True, check=True)
     assert theirs.stdout.split()[1] == "2"
+
+
+def test_a_check_that_keeps_nothing_makes_no_record_shares_and_a_cold_check_keeps_whole_summaries(tmp_path, monkeypatch):
+    # what `check` is given: findings and pattern keys; with nothing kept, no aircraft's record share is
+    # made (it went nowhere), while a check that fills a cache keeps whole summaries, so that a build
+    # afterwards reuses them and publishes what a plain build does (internal behaviour, no source)
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1764806400")
+    made: list[str] = []
+    real = evaluate.record.aircraft_record
+
+    def counting(aircraft, *args, **kwargs):
+        made.append(aircraft.id)
+        return real(aircraft, *args, **kwargs)
+
+    monkeypatch.setattr(evaluate.record, "aircraft_record", counting)
+    plain = pipeline.run(DEMO, workers=1, lazy=True)
+    assert made == [] and plain.discrepancies
+    assert all(summary.record is None for summary in plain.results.summaries.values())
+    cache = tmp_path / "c"
+    kept = pipeline.run(DEMO, cache_dir=cache, workers=1, lazy=True)
+    assert sorted(made) == sorted(plain.fleet.aircraft)
+    assert [d.id for d in kept.discrepancies] == [d.id for d in plain.discrepancies]
+    pipeline.build(DEMO, tmp_path / "site", cache_dir=cache, workers=1)
+    assert_same_as_plain_build(DEMO, tmp_path / "site", tmp_path)

@@ -21,7 +21,6 @@ from datetime import date
 from pathlib import Path
 from typing import Any, NamedTuple
 
-import fastjsonschema
 
 from registry import __version__
 from registry.core.errors import AerialbookError
@@ -336,14 +335,19 @@ def _fast_validator() -> Callable[[Any], Any]:
     """The record schema compiled to Python (fastjsonschema): a 1,000-aircraft record is checked in
     seconds where the reference validator takes minutes. The schema uses only keywords draft 7 shares
     with 2020-12, so it is compiled as draft 7; a record it refuses is checked again by jsonschema,
-    whose messages name every problem."""
+    whose messages name every problem. Imported here: a build that reads no record never needs it."""
+    import fastjsonschema
     return fastjsonschema.compile({**schema(), "$schema": "http://json-schema.org/draft-07/schema#"})
 
 
-def validate(record: Any, where: str) -> dict[str, Any]:
-    """`record` if it is a record this version can read; RecordError naming `where` and the first problem."""
-    import jsonschema
+def _fast_error() -> type[Exception]:
+    import fastjsonschema
+    return fastjsonschema.JsonSchemaException
 
+
+def validate(record: Any, where: str) -> dict[str, Any]:
+    """`record` if it is a record this version can read; RecordError naming `where` and the first problem.
+    The reference validator (jsonschema, a tenth of a second to import) is imported only to word a refusal."""
     if not isinstance(record, dict):
         raise RecordError(f"{where}: found {type(record).__name__}, expected a JSON object (a build record)")
     version = record.get("format_version")
@@ -353,8 +357,9 @@ def validate(record: Any, where: str) -> dict[str, Any]:
     try:
         _fast_validator()(record)
         return record
-    except fastjsonschema.JsonSchemaException:
+    except _fast_error():
         pass  # worded below by the reference validator, which lists every problem
+    import jsonschema
     validator = jsonschema.Draft202012Validator(schema())
     problems = sorted(validator.iter_errors(record), key=lambda error: list(map(str, error.absolute_path)))
     if problems:

@@ -356,3 +356,31 @@ def test_a_check_that_keeps_nothing_makes_no_record_shares_and_a_cold_check_keep
     assert [d.id for d in kept.discrepancies] == [d.id for d in plain.discrepancies]
     pipeline.build(DEMO, tmp_path / "site", cache_dir=cache, workers=1)
     assert_same_as_plain_build(DEMO, tmp_path / "site", tmp_path)
+
+
+def test_cache_entries_read_back_equal_whichever_way_their_dataclasses_are_made(tmp_path):
+    # a dataclass whose __init__ dataclasses wrote is filled field by field without it; one with a
+    # __post_init__ still goes through __init__ (internal behaviour, no source)
+    from dataclasses import dataclass
+
+    from registry.incremental import codec
+
+    made = []
+
+    @dataclass(frozen=True, kw_only=True, slots=True)
+    class Plain:
+        name: str
+        size: float
+
+    @dataclass(frozen=True)
+    class Checked:
+        name: str
+
+        def __post_init__(self):
+            made.append(self.name)
+
+    fleet = pipeline.load(DEMO)
+    aircraft = list(fleet.aircraft.values())
+    assert codec.loads(codec.dumps(aircraft, list[type(aircraft[0])]), list[type(aircraft[0])]) == aircraft
+    assert codec.loads(codec.dumps(Plain(name="a", size=1.5), Plain), Plain) == Plain(name="a", size=1.5)
+    assert codec.loads(codec.dumps(Checked("b"), Checked), Checked) == Checked("b") and made == ["b", "b", "b"]

@@ -171,7 +171,7 @@ def _record(cls: type, records: dict[type, Record]) -> None:
         make = functools.partial(tuple.__new__, cls)
     elif dataclasses.is_dataclass(cls):
         fields, hints = tuple(field.name for field in dataclasses.fields(cls)), typing.get_type_hints(cls)
-        make = lambda values: cls(**dict(zip(fields, values)))  # noqa: E731
+        make = _dataclass_maker(cls, fields)
     elif hasattr(cls, "__slots__"):
         fields = tuple(inspect.signature(cls.__init__).parameters)[1:]
         hints = typing.get_type_hints(cls.__init__)
@@ -186,6 +186,24 @@ def _record(cls: type, records: dict[type, Record]) -> None:
                                          deep=deep, interned=fields.index(INTERNED[cls]) if cls in INTERNED else None,
                                          flat=all(found is not None and set(found) <= SCALARS for found in classes),
                                          shared=cls in SHARED)
+
+
+def _dataclass_maker(cls: type, fields: tuple[str, ...]) -> Callable[[list], Any]:
+    """A dataclass from its fields' values in order. Set field by field as its own __init__ does
+    (`object.__setattr__`, which a frozen dataclass's __init__ uses too), without building keyword
+    arguments: a model entry holds thousands of objects. A class with a __post_init__ or an __init__ of
+    its own goes through __init__."""
+    generated = getattr(getattr(cls.__init__, "__code__", None), "co_filename", "") == "<string>"  # dataclasses' own
+    if hasattr(cls, "__post_init__") or not generated:
+        return lambda values: cls(**dict(zip(fields, values)))
+    new, put = object.__new__, object.__setattr__
+
+    def make(values: list) -> Any:
+        made = new(cls)
+        for name, value in zip(fields, values):
+            put(made, name, value)
+        return made
+    return make
 
 
 # --- writing ----------------------------------------------------------------------------------------------

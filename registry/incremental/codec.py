@@ -25,9 +25,7 @@ come out of an entry.
 from __future__ import annotations
 
 import base64
-import dataclasses
 import functools
-import inspect
 import json
 import math
 import sys
@@ -43,6 +41,7 @@ import numpy as np
 
 from registry.core.errors import Src
 from registry.core.base import FieldIndex, FrozenMap
+from registry.incremental.makers import fields_and_maker
 from registry.core.model import Aircraft, Installation
 
 FIELD_HINTS: dict[type, dict[str, Any]] = {Aircraft: {"installations": Mapping[str, Installation]}}
@@ -166,18 +165,7 @@ def _record(cls: type, records: dict[type, Record]) -> None:
     """Add `cls` (a NamedTuple, a dataclass or a plain class whose __init__ takes its fields)."""
     if cls in records:
         return
-    if issubclass(cls, tuple) and hasattr(cls, "_fields"):
-        fields, hints = tuple(cls._fields), typing.get_type_hints(cls)
-        make = functools.partial(tuple.__new__, cls)
-    elif dataclasses.is_dataclass(cls):
-        fields, hints = tuple(field.name for field in dataclasses.fields(cls)), typing.get_type_hints(cls)
-        make = _dataclass_maker(cls, fields)
-    elif hasattr(cls, "__slots__"):
-        fields = tuple(inspect.signature(cls.__init__).parameters)[1:]
-        hints = typing.get_type_hints(cls.__init__)
-        make = lambda values: cls(*values)  # noqa: E731
-    else:
-        raise TypeError(f"cache entries cannot hold a {cls.__qualname__}")
+    fields, hints, make = fields_and_maker(cls)
     records[cls] = Record(cls, cls.__qualname__, fields, (), (), make)  # first: hints may lead back here
     hints.update(FIELD_HINTS.get(cls, {}))
     classes = tuple(_classes(hints.get(name, Any), records) for name in fields)
@@ -186,24 +174,6 @@ def _record(cls: type, records: dict[type, Record]) -> None:
                                          deep=deep, interned=fields.index(INTERNED[cls]) if cls in INTERNED else None,
                                          flat=all(found is not None and set(found) <= SCALARS for found in classes),
                                          shared=cls in SHARED)
-
-
-def _dataclass_maker(cls: type, fields: tuple[str, ...]) -> Callable[[list], Any]:
-    """A dataclass from its fields' values in order. Set field by field as its own __init__ does
-    (`object.__setattr__`, which a frozen dataclass's __init__ uses too), without building keyword
-    arguments: a model entry holds thousands of objects. A class with a __post_init__ or an __init__ of
-    its own goes through __init__."""
-    generated = getattr(getattr(cls.__init__, "__code__", None), "co_filename", "") == "<string>"  # dataclasses' own
-    if hasattr(cls, "__post_init__") or not generated:
-        return lambda values: cls(**dict(zip(fields, values)))
-    new, put = object.__new__, object.__setattr__
-
-    def make(values: list) -> Any:
-        made = new(cls)
-        for name, value in zip(fields, values):
-            put(made, name, value)
-        return made
-    return make
 
 
 # --- writing ----------------------------------------------------------------------------------------------

@@ -21,7 +21,6 @@ from datetime import date
 from pathlib import Path
 from typing import Any, NamedTuple
 
-
 from registry import __version__
 from registry.core.errors import AerialbookError
 from registry.core.results import Figure
@@ -340,14 +339,10 @@ def _fast_validator() -> Callable[[Any], Any]:
     return fastjsonschema.compile({**schema(), "$schema": "http://json-schema.org/draft-07/schema#"})
 
 
-def _fast_error() -> type[Exception]:
-    import fastjsonschema
-    return fastjsonschema.JsonSchemaException
-
-
 def validate(record: Any, where: str) -> dict[str, Any]:
     """`record` if it is a record this version can read; RecordError naming `where` and the first problem.
     The reference validator (jsonschema, a tenth of a second to import) is imported only to word a refusal."""
+    from fastjsonschema import JsonSchemaException
     if not isinstance(record, dict):
         raise RecordError(f"{where}: found {type(record).__name__}, expected a JSON object (a build record)")
     version = record.get("format_version")
@@ -357,7 +352,7 @@ def validate(record: Any, where: str) -> dict[str, Any]:
     try:
         _fast_validator()(record)
         return record
-    except _fast_error():
+    except JsonSchemaException:
         pass  # worded below by the reference validator, which lists every problem
     import jsonschema
     validator = jsonschema.Draft202012Validator(schema())

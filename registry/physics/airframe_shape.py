@@ -273,8 +273,8 @@ _LOCATED: ByIdentity[SkinPoint | None] = ByIdentity(limit=8_192)
 
 def _read_only_hit(hit: SkinPoint | None) -> SkinPoint | None:
     if hit is not None:
-        hit.normal.setflags(write=False)
-        hit.on_skin_m.setflags(write=False)
+        _read_only(hit.normal)
+        _read_only(hit.on_skin_m)
     return hit
 
 

@@ -96,8 +96,7 @@ def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incr
         results = evaluate.finish(plan)
     pieces = {}
     for aircraft_id, (entry, made) in rendered.items():
-        site.aircraft.keep(aircraft_id, entry, made)
-        pieces[aircraft_id] = made
+        pieces[aircraft_id] = site.aircraft.keep(aircraft_id, entry, made)
     return _outcome(fleet, plan.as_of, results), site, pieces
 
 

@@ -6,6 +6,7 @@ which is how "not rewritten" is observed (POSIX link(2)).
 """
 import json
 import os
+import re
 import shutil
 import subprocess
 import sys
@@ -109,6 +110,51 @@ def test_unchanged_pages_are_kept_and_a_changed_aircraft_is_rendered_again(tmp_p
     # rendered again with its aircraft, but byte-identical: linked, not rewritten
     assert (out / "aircraft/qx-tcb/ELT.html").stat().st_ino == inode["aircraft/qx-tcb/ELT.html"]
 
+    assert_same_as_plain_build(data, out, tmp_path)
+
+
+def test_a_kept_aircraft_s_report_carries_the_new_build_s_date(tmp_path, monkeypatch):
+    """A report's title block states the build it came from on every printed page (common practice for a
+    controlled document, no source). An aircraft whose pages are kept gets its report from its kept text
+    with this build's date in it; the site is what a plain build publishes."""
+    monkeypatch.delenv("SOURCE_DATE_EPOCH")  # the build date is then the newest data file's time
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    for path in data.rglob("*"):
+        os.utime(path, (1_790_000_000, 1_790_000_000))
+    out, cache = tmp_path / "site", tmp_path / "cache"
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    page = out / "aircraft/qx-tca/VHF1.html"
+    inode = page.stat().st_ino
+    assert "<dt>Build date</dt><dd>2026-09-21 14:13:20 UTC</dd>" in (out / "reports/qx-tca.html").read_text()
+
+    reviews = data / "reviews.yaml"  # a comment: no page shows it, but it is a newer file
+    reviews.write_text(reviews.read_text(encoding="utf-8") + "\n# a comment\n", encoding="utf-8")
+    os.utime(reviews, (1_790_086_400, 1_790_086_400))
+    pipeline.build(data, out, cache_dir=cache, workers=1)
+    assert page.stat().st_ino == inode  # kept
+    report = (out / "reports/qx-tca.html").read_text()
+    assert "<dt>Build date</dt><dd>2026-09-22 14:13:20 UTC</dd>" in report
+    assert "\x00" not in report
+    assert_same_as_plain_build(data, out, tmp_path)
+
+
+def test_a_report_whose_text_holds_a_stamp_placeholder_is_stamped_all_the_same(tmp_path):
+    """A review comment holding the placeholder a kept report's build date goes in (a hostile colleague's
+    text; from memory, no source): that report is rendered with the date itself, and the site is what a
+    plain build publishes."""
+    from registry.site.pages_print import STAMP
+    data, out, cache = built_copy(tmp_path)
+    reviews = data / "reviews.yaml"
+    text = reviews.read_text(encoding="utf-8")
+    hostile = "see " + STAMP["built"].replace("\x00", "\\u0000") + " here"
+    text = re.sub(r"    comment: >-\n(      .*\n)+", lambda _: f'    comment: "{hostile}"\n', text, count=1)
+    reviews.write_text(text, encoding="utf-8")
+    for _ in range(2):  # rendered, then kept
+        pipeline.build(data, out, cache_dir=cache, workers=1)
+        report = (out / "reports/qx-tcc.html").read_text(encoding="utf-8")
+        assert STAMP["built"] in report  # the comment, as written
+        assert "<dt>Build date</dt><dd>2026-12-02 00:00:00 UTC</dd>" in report
     assert_same_as_plain_build(data, out, tmp_path)
 
 

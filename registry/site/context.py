@@ -231,8 +231,11 @@ class AircraftPieces(NamedTuple):
 
     `uses` maps "antenna/<id>" and "cable/<id>" to (installations, rows of the "where used" table);
     `service_links` maps a service id to (installations, links on the services page); `search` holds
-    the search-index entries of the aircraft and its installations."""
+    the search-index entries of the aircraft and its installations; `report` the aircraft's printable
+    report with placeholders for the build's revision and dates (`pages_print.stamped`), or "" when
+    it cannot be kept so."""
 
     uses: dict[str, tuple[int, str]]
     service_links: dict[str, tuple[int, str]]
     search: tuple[dict[str, str], ...]
+    report: str = ""

@@ -2,15 +2,17 @@
 
 Each report carries a title block (operator, aircraft or fleet, data revision, build date, the register's
 as-of date) that print.css repeats at the head of every printed page, the installation schedule, and
-every finding with its disposition and review trail. They are made of the model and the findings only
-(no computed figures), so they are rendered with the fleet-wide pages, every build: the title block's
-revision and date are the build's, which an aircraft's reused pages could not promise.
+every finding with its disposition and review trail. The title block's revision and dates are the
+build's; the rest of an aircraft's report shows nothing its pages' key does not hold. So an aircraft's
+report is rendered with its pages, with placeholders in the title block (`STAMP`), kept with them, and
+stamped with each build's revision and dates (`stamped`): an aircraft whose pages are reused gets its
+report without rendering it again.
 """
 from __future__ import annotations
 
-import functools
-from collections.abc import Callable
 from typing import Any
+
+from markupsafe import escape
 
 from registry.check.reviews import stale_reviews
 from registry.core.model import Aircraft
@@ -18,7 +20,7 @@ from registry.core.results import Discrepancy
 from registry.core.rulebook import SEVERITIES
 from registry.site.context import SiteData
 from registry.site.format import NONE_TEXT, exact
-from registry.site.pages import Output, page
+from registry.site.pages import Output, Page, page
 from registry.site.pages_fleet import aircraft_row
 from registry.site.pages_registry import line_href
 from registry.site.paths import aircraft_path
@@ -37,28 +39,43 @@ aircraft sections hold their modifications and findings, and each aircraft's own
 (a thousand aircraft's schedules would print to a thousand pages)."""
 
 
-def report_pages(data: SiteData) -> list[Output]:
-    """The fleet's report and each aircraft's."""
-    return [fleet_report_page(data)] + [make() for make in aircraft_report_pages(data)]
+STAMP = {name: f"\x00aerialbook report {name}\x00" for name in ("revision", "built", "as_of")}
+"""Placeholders for what an aircraft's report shows of the build (its title block's revision, build date
+and as-of date), each replaced by the build's value as the template would write it (`stamped`)."""
 
 
-def aircraft_report_pages(data: SiteData) -> list[Callable[[], Output]]:
-    """Each aircraft's report, as a function that makes it: the page's content is worked out where it is
-    rendered (in the workers, for a fleet), not all in this process first."""
-    as_of = data.as_of_text()
-    stale = stale_reviews(list(data.discrepancies), data.fleet.reviews)
-    return [functools.partial(aircraft_report_page, data, aircraft, as_of, stale)
-            for aircraft in data.fleet.aircraft.values()]
-
-
-def aircraft_report_page(data: SiteData, aircraft: Aircraft, as_of: str, stale: list) -> Output:
-    """One aircraft's printable report."""
+def aircraft_report_page(data: SiteData, aircraft: Aircraft) -> Page:
+    """One aircraft's printable report, with `STAMP` in its title block. Needs the aircraft's findings in
+    `data.by_aircraft` only: the reviews on file whose finding has gone are those of the aircraft whose
+    discrepancy is not among them."""
+    found = {item.id for item in data.by_aircraft.get(aircraft.id, [])}
+    stale = [review for review in data.reviews_of.get(aircraft.id, ()) if review.discrepancy not in found]
     section = aircraft_section(data, aircraft, stale)
     return page(aircraft_report_path(aircraft.id), "report.html", "fleet",
                 f"{aircraft.registration}: printable report",
                 [("Fleet", "index.html"), (aircraft.registration, aircraft_path(aircraft.id)), ("Printable report", None)],
-                block=title_block(data, aircraft.registration, as_of, section["identity"]),
+                block={**title_block(data, aircraft.registration, "", section["identity"]), **STAMP},
                 fleet=None, sections=[section], screen_link=(aircraft_path(aircraft.id), "aircraft page"))
+
+
+def stamped(data: SiteData, text: str) -> str | None:
+    """An aircraft's report (`aircraft_report_page`, rendered) with this build's revision and dates in
+    place of the placeholders; None unless each placeholder is there exactly once (a text field that
+    holds one: the report is then rendered with the values, `unstamped`)."""
+    if any(text.count(mark) != 1 for mark in STAMP.values()):
+        return None
+    for name, value in stamp_values(data).items():
+        text = text.replace(STAMP[name], str(escape(value)))
+    return text
+
+
+def unstamped(data: SiteData, output: Page) -> Page:
+    """An aircraft's report page with this build's revision and dates themselves in its title block."""
+    return output._replace(context={**output.context, "block": {**output.context["block"], **stamp_values(data)}})
+
+
+def stamp_values(data: SiteData) -> dict[str, str]:
+    return {"revision": data.build.revision, "built": data.build.time, "as_of": data.as_of_text()}
 
 
 def fleet_report_page(data: SiteData) -> Output:

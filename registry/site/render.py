@@ -39,7 +39,8 @@ from registry.site.pages_cosite import cosite_outputs, type_cosite_pages
 from registry.site.pages_catalogue import antenna_pages, cable_pages, services_page
 from registry.site.pages_fleet import audit_pages, fleet_page, search_pages
 from registry.site.pages_methods import methods_page
-from registry.site.pages_print import aircraft_report_pages, fleet_report_page
+from registry.site.pages_print import (aircraft_report_page, aircraft_report_path, fleet_report_page, stamped,
+                                      unstamped)
 from registry.site.paths import SEARCH_PATHS, aircraft_path, installation_path
 from registry.site.views import installation_row
 
@@ -128,7 +129,6 @@ def finish_site(site: SiteRun, discrepancies: Iterable[Discrepancy], pieces: dic
     pieces.update(site.aircraft.render_all(files, workers, progress, skip=set(pieces)))
     progress.stage("rendering fleet pages", 1)
     files.update(render_one_by_one(site, fleet_wide_pages(data, pieces, site.store)))
-    files.update(render_shared_out(site, aircraft_report_pages(data), workers))
     return dict(sorted(files.items()))
 
 
@@ -142,17 +142,6 @@ def render_one_by_one(site: SiteRun, outputs: Iterable[Output]) -> dict[str, str
     for output in outputs:
         for path, content in site.put([output]).items():
             site.aircraft.writer(path, content)
-    return {}
-
-
-def render_shared_out(site: SiteRun, makers: list[Callable[[], Output]], workers: int) -> dict[str, str | bytes]:
-    """Make and render each output of `makers`: over worker processes that hand each file to the writer
-    when there is one (the aircraft's printable reports, made again every build), else here; the files not
-    yet written."""
-    if site.aircraft.writer is None:
-        return render_one_by_one(site, (make() for make in makers))
-    for _ in ordered_map(lambda n: render_one_by_one(site, [makers[n]()]), range(len(makers)), workers):
-        pass
     return {}
 
 
@@ -207,15 +196,15 @@ class AircraftRun:
         entries = ordered_map(lambda aircraft: self.render(aircraft, files),
                               todo, workers if self.writer else 1, progress, warm_by=lambda aircraft: aircraft.airframe)
         for (entry, made), aircraft in zip(entries, todo):
-            pieces[aircraft.id] = made
-            self.keep(aircraft.id, entry, made)
+            pieces[aircraft.id] = self.keep(aircraft.id, entry, made)
         return pieces
 
-    def keep(self, aircraft_id: str, entry: dict[str, Any] | None, made: AircraftPieces) -> None:
-        """Remember an aircraft's rendered pages and pieces for the next build (in the parent)."""
+    def keep(self, aircraft_id: str, entry: dict[str, Any] | None, made: AircraftPieces) -> AircraftPieces:
+        """Remember, in the parent, which pages an aircraft rendered in a worker has, for the next build
+        (its pieces are in the cache already: `render`); its pieces."""
         if entry is not None:
             self.incremental.current[aircraft_id] = entry
-            self.incremental.pieces.put(entry["key"], made)
+        return made
 
     def render_fresh(self, aircraft: Aircraft, part: AircraftPart, findings: list[Discrepancy]
                      ) -> tuple[dict[str, Any] | None, AircraftPieces]:
@@ -246,11 +235,16 @@ class AircraftRun:
         if not key or not before or before.get("key") != key:
             return False
         kept = self.incremental.pieces.get(key)
-        if not isinstance(kept, AircraftPieces):
+        report = stamped(self.data, kept.report) if isinstance(kept, AircraftPieces) else None
+        if report is None:
             return False
-        pieces[aircraft.id] = kept
+        pieces[aircraft.id] = kept._replace(report="")
         for path in before["files"]:
             files[path] = REUSE
+        if self.writer is None:
+            files[aircraft_report_path(aircraft.id)] = report
+        else:  # now: a thousand reports are not held until the end
+            self.writer(aircraft_report_path(aircraft.id), report)
         self.incremental.current[aircraft.id] = before
         return True
 
@@ -268,6 +262,7 @@ class AircraftRun:
                 self.pairs_of[(pair.aircraft, pair.position_b)].append(pair)
         outputs = aircraft_outputs(self.data, aircraft, self.pairs_of) + cosite_outputs(self.data, aircraft)
         produced = self.put(outputs)
+        produced[aircraft_report_path(aircraft.id)], report = self.report(aircraft)
         key = self.page_key(aircraft)
         if self.incremental is not None and key:
             self.incremental.current[aircraft.id] = {"key": key, "files": output_paths(outputs)}
@@ -279,10 +274,24 @@ class AircraftRun:
             for path, content in produced.items():
                 self.writer(path, content)
         entry = self.incremental.current.get(aircraft.id) if self.incremental is not None else None
-        return entry, self.pieces_of(aircraft)
+        made = self.pieces_of(aircraft, report)
+        if entry is not None:  # kept here, in the worker: a thousand reports do not cross to the parent
+            self.incremental.pieces.put(entry["key"], made)
+        return entry, made._replace(report="")
 
-    def pieces_of(self, aircraft: Aircraft) -> AircraftPieces:
-        """The aircraft's rows in the "where used" tables, links on the services page and search entries."""
+    def report(self, aircraft: Aircraft) -> tuple[str, str]:
+        """The aircraft's printable report as this build publishes it, and as its pieces keep it (with
+        placeholders for the build's revision and dates; "" when it cannot be kept so: `stamped`)."""
+        output = aircraft_report_page(self.data, aircraft)
+        text = self.put([output])[output.path]
+        ready = stamped(self.data, text)
+        if ready is None:
+            return self.put([unstamped(self.data, output)])[output.path], ""
+        return ready, text
+
+    def pieces_of(self, aircraft: Aircraft, report: str = "") -> AircraftPieces:
+        """The aircraft's rows in the "where used" tables, links on the services page, search entries and
+        report (`report`)."""
         rows: dict[str, list[str]] = defaultdict(list)
         links: dict[str, list[str]] = defaultdict(list)
         for installation in aircraft.installations.values():
@@ -294,7 +303,8 @@ class AircraftRun:
         return AircraftPieces(
             uses={key: (len(items), "\n".join(items)) for key, items in rows.items()},
             service_links={key: (len(items), ", ".join(items)) for key, items in links.items()},
-            search=tuple(sitesearch.aircraft_entries(self.data.fleet, aircraft, plain_text, SEARCH_PATHS)))
+            search=tuple(sitesearch.aircraft_entries(self.data.fleet, aircraft, plain_text, SEARCH_PATHS)),
+            report=report)
 
     def page_key(self, aircraft: Aircraft) -> str:
         """Key of everything an aircraft's pages show, or "" when its figures' inputs are not keyed."""

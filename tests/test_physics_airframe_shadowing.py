@@ -205,3 +205,57 @@ def test_points_in_a_concave_polygon_against_the_closed_form_region():
     assert np.array_equal(inside_polygon(pts, poly), expected)
     assert np.array_equal(inside_polygon(pts.reshape(5, -1, 2), poly).ravel(), expected)
     assert [bool(inside_polygon(p, poly)) for p in pts[:40]] == list(expected[:40])
+
+
+def test_a_polygon_padded_with_its_first_vertex_and_one_polygon_per_point_give_the_same_answers():
+    """`inside_polygon` with a polygon per point (..., n, 2), as `plates_block` calls it for faces of
+    fewer vertices than the most: padding with the first vertex adds edges of no length, which no point
+    crosses. Reference: the L-shaped hexagon's closed-form region (exact geometry, no source needed)."""
+    from registry.physics.airframe_shape import inside_polygon
+    poly = np.array([[0.0, 0.0], [2.0, 0.0], [2.0, 1.0], [1.0, 1.0], [1.0, 2.0], [0.0, 2.0]])
+    padded = np.vstack([poly, poly[:1], poly[:1]])
+    rng = np.random.default_rng(11)
+    pts = rng.uniform(-0.5, 2.5, size=(3000, 2))
+    x, y = pts[:, 0], pts[:, 1]
+    keep = np.min(np.abs(np.stack([x, x - 1, x - 2, y, y - 1, y - 2])), axis=0) > 1e-6
+    pts, x, y = pts[keep], x[keep], y[keep]
+    expected = (x > 0) & (x < 2) & (y > 0) & (y < 2) & ~((x > 1) & (y > 1))
+    assert np.array_equal(inside_polygon(pts, padded), expected)
+    each = np.where(np.arange(len(pts))[:, None, None] % 2 == 0, padded[None, :, :], np.vstack([poly, poly[:2]])[None])
+    assert np.array_equal(inside_polygon(pts, each), expected)
+
+
+@pytest.mark.parametrize("name, scale_m", [("tc-44", 0.0254), ("tj-88", 0.001)])
+def test_rays_against_every_face_at_once_agree_with_each_face_s_half_plane_test(name, scale_m):
+    """`plates_block` (bounding cones, then every (ray, face) pair at once, even-odd test) against a plain
+    loop over the faces: the plane crossing t = ((o − p)·n)/(d·n) and, for a convex face, the crossing
+    point on the inner side of every edge ((b − a) × (x − a)·n ≥ 0 counter-clockwise about n), a
+    different test of the same region (exact geometry, no source needed). Random points about the demo
+    airframes' wing and fin and random rays, cut short or not."""
+    from registry.physics.shadowing import plates_block
+    data = _fleet(name)
+    shape = shape_from_outline(data["fuselage"], scale_m, data["wing"], data["fin"])
+    assert len(shape.plates) > 10 and len({len(f.vertices_m) for f in shape.plates}) > 1  # quads and more
+    rng = np.random.default_rng(5)
+    low, high = shape.sta_m[0], shape.sta_m[-1]
+    span = max(abs(float(v)) for f in shape.plates for v in f.vertices_m[:, 1])
+    hits = 0
+    for n in range(120):
+        p = np.array([rng.uniform(low, high), rng.uniform(-span, span), rng.uniform(-2.0, 6.0)])
+        d = rng.normal(size=(300, 3))
+        d /= np.linalg.norm(d, axis=1)[:, None]
+        t_max = None if n % 2 else rng.uniform(1.0, 20.0)
+        expected = np.zeros(len(d), dtype=bool)
+        for face in shape.plates:
+            v, normal = face.vertices_m, face.normal
+            edges = np.roll(v, -1, axis=0) - v
+            assert all(np.cross(edges[k], edges[(k + 1) % len(v)]) @ normal > -1e-12 for k in range(len(v)))  # convex
+            denom = d @ normal
+            with np.errstate(divide="ignore", invalid="ignore"):
+                t = ((v[0] - p) @ normal) / denom
+            x = p + t[:, None] * d
+            inner = np.all([np.cross(edges[k], x - v[k]) @ normal > 0 for k in range(len(v))], axis=0)
+            expected |= (np.abs(denom) > 1e-12) & (t > 1e-9) & (t < (np.inf if t_max is None else t_max)) & inner
+        assert np.array_equal(plates_block(shape, p, d, 1e-9, t_max), expected)
+        hits += int(expected.sum())
+    assert hits > 500  # rays that cross a face occur

@@ -22,6 +22,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from functools import cached_property
+from typing import NamedTuple
 
 import numpy as np
 
@@ -64,6 +65,25 @@ class Plate:
         return all(lo - margin_m <= c <= hi + margin_m for lo, c, hi in zip(low, point_m, high))
 
 
+class Faces(NamedTuple):
+    """A shape's F faces as arrays (metres): each face's outward unit normal, first vertex (its origin)
+    and in-plane axes u, v (F, 3); its polygon in (u, v) from the origin (F, n, 2; a face of fewer than
+    n vertices padded with its first vertex, edges of no length that no ray crosses); its bounding
+    sphere (centres (F, 3), radii (F,)); the index of its slab (F,), and each slab's bounding sphere
+    (centres (G, 3), radii (G,))."""
+
+    normal: np.ndarray
+    origin: np.ndarray
+    u: np.ndarray
+    v: np.ndarray
+    poly: np.ndarray
+    centre: np.ndarray
+    radius: np.ndarray
+    group: np.ndarray
+    group_centre: np.ndarray
+    group_radius: np.ndarray
+
+
 @dataclass(frozen=True)
 class AirframeShape:
     """Fuselage sections (metres, all (K,)) and flat faces. `from_outline` says the sections were
@@ -78,14 +98,33 @@ class AirframeShape:
     assumptions: tuple[str, ...] = ()
 
     @cached_property
-    def plate_groups(self) -> tuple[tuple[tuple[Plate, ...], np.ndarray, float], ...]:
-        """The faces by slab (group, else the face's own name), in order of first appearance, each with
-        the bounding sphere of all its vertices (centre, radius; metres); worked out once per shape."""
-        groups: dict[str, list[Plate]] = {}
-        for plate in self.plates:
-            groups.setdefault(plate.group or plate.name, []).append(plate)
-        return tuple((tuple(faces), *bounding_sphere(np.concatenate([f.vertices_m for f in faces])))
-                     for faces in groups.values())
+    def faces(self) -> Faces:
+        """Every face as arrays, for testing many rays against all of them at once (`Faces`); worked out
+        once per shape."""
+        groups: dict[str, list[int]] = {}
+        for k, plate in enumerate(self.plates):
+            groups.setdefault(plate.group or plate.name, []).append(k)
+        group_of = np.zeros(len(self.plates), dtype=np.intp)
+        spheres = []
+        for g, members in enumerate(groups.values()):
+            group_of[members] = g
+            spheres.append(bounding_sphere(np.concatenate([self.plates[k].vertices_m for k in members])))
+        most = max((len(plate.vertices_m) for plate in self.plates), default=3)
+        polys = np.zeros((len(self.plates), most, 2))
+        for k, plate in enumerate(self.plates):
+            poly = plate.frame_m[2]
+            polys[k, :len(poly)], polys[k, len(poly):] = poly, poly[0]  # padded with edges of no length
+
+        def rows(values, width: int | None = 3) -> np.ndarray:
+            array = np.array(values, dtype=float)
+            return _read_only(array.reshape(-1, width) if width else array.reshape(-1))
+
+        return Faces(normal=rows([pl.normal for pl in self.plates]),
+                     origin=rows([pl.vertices_m[0] for pl in self.plates]),
+                     u=rows([pl.frame_m[0] for pl in self.plates]), v=rows([pl.frame_m[1] for pl in self.plates]),
+                     poly=_read_only(polys), centre=rows([pl.sphere_m[0] for pl in self.plates]),
+                     radius=rows([pl.sphere_m[1] for pl in self.plates], None), group=_read_only(group_of),
+                     group_centre=rows([s[0] for s in spheres]), group_radius=rows([s[1] for s in spheres], None))
 
     @cached_property
     def segments(self) -> tuple[np.ndarray, ...]:
@@ -220,13 +259,14 @@ def _fuselage_skin(shape: AirframeShape, p: np.ndarray) -> SkinPoint | None:
 
 
 def inside_polygon(points_2d: np.ndarray, poly_2d: np.ndarray) -> np.ndarray:
-    """Even-odd (crossing number) test of points (..., 2) against a polygon (n, 2); boolean (...).
+    """Even-odd (crossing number) test of points (..., 2) against a polygon (n, 2), or each point against
+    its own polygon (..., n, 2); boolean (...).
 
     Every edge k (a = vertex k, b = vertex k + 1) at once: a point is inside when an odd number of edges
     satisfy (y_a > y) != (y_b > y) and x < x_a + (y − y_a)(x_b − x_a)/(y_b − y_a)."""
     px, py = np.asarray(points_2d[..., 0])[..., None], np.asarray(points_2d[..., 1])[..., None]
-    xa, ya = poly_2d[:, 0], poly_2d[:, 1]
-    xb, yb = np.roll(xa, -1), np.roll(ya, -1)
+    xa, ya = poly_2d[..., 0], poly_2d[..., 1]
+    xb, yb = np.roll(xa, -1, axis=-1), np.roll(ya, -1, axis=-1)
     crosses = (ya > py) != (yb > py)
     with np.errstate(divide="ignore", invalid="ignore"):
         x_cross = xa + (py - ya) * (xb - xa) / (yb - ya)

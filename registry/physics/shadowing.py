@@ -140,39 +140,43 @@ def _fuselage_hits(x0, x1, w0, dw, c0, dc, q, p: np.ndarray, d: np.ndarray, t_mi
     return ok & (np.minimum(np.minimum(f_lo, f_hi), f_v) < -tol)
 
 
-def _cone_filter(centre: np.ndarray, radius: float, p: np.ndarray, d: np.ndarray, idx: np.ndarray) -> np.ndarray:
-    """The indices among idx of the rays inside the cone from p holding a bounding sphere (centre,
-    radius) of some vertices (a pre-filter that never drops a hit: every point of a convex hull lies
-    inside that sphere)."""
+def _in_cones(centre: np.ndarray, radius: np.ndarray, p: np.ndarray, d: np.ndarray) -> np.ndarray:
+    """Boolean (N, C): ray n from p lies inside the cone from p holding bounding sphere c (centres (C, 3),
+    radii (C,)); a pre-filter that never drops a hit, every point of a convex hull lying inside its
+    sphere: d . (c - p)/|c - p| >= sqrt(1 - (r/|c - p|)^2), and every ray when p is inside the sphere."""
     to_c = centre - p
-    dist = math.sqrt(float(to_c @ to_c))
-    if dist <= radius:
-        return idx
-    return idx[d[idx] @ (to_c / dist) >= np.sqrt(1 - (radius / dist) ** 2) - 1e-12]
+    dist = np.sqrt(np.einsum("ij,ij->i", to_c, to_c))
+    outside = dist > radius
+    safe = np.where(outside, dist, 1.0)
+    least = np.sqrt(np.clip(1 - (radius / safe) ** 2, 0.0, None)) - 1e-12
+    return (d @ (to_c / safe[:, None]).T >= least) | ~outside
 
 
 def plates_block(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:
     """Boolean (N,): the rays p + t d (t_min < t < t_max) cross one of the shape's faces inside its polygon.
 
-    Rays are first filtered by the cone of each group's (slab's) bounding sphere, then of each face's
-    (spheres and in-plane frames are worked out once per shape, `AirframeShape.plate_groups`).
+    Each ray is tried against the faces whose bounding sphere's cone, and its slab's, holds it; those
+    (ray, face) pairs all at once: t = ((o − p)·n) / (d·n) for the face's plane (origin o, normal n), the
+    point p + t d − o in the face's (u, v) axes, and the even-odd test against its polygon
+    (`AirframeShape.faces`, worked out once per shape).
     """
     hit = np.zeros(d.shape[0], dtype=bool)
+    faces = shape.faces
+    if faces.normal.shape[0] == 0 or d.shape[0] == 0:
+        return hit
     upper = np.inf if t_max is None else t_max
-    for faces, centre, radius in shape.plate_groups:
-        in_group = _cone_filter(centre, radius, p, d, np.flatnonzero(~hit))
-        for pl in faces:
-            idx = _cone_filter(*pl.sphere_m, p, d, in_group[~hit[in_group]])
-            if idx.size == 0:
-                continue
-            dd = d[idx]
-            u, v, poly = pl.frame_m
-            origin = pl.vertices_m[0]
-            denom = dd @ pl.normal
-            t = ((origin - p) @ pl.normal) / np.where(np.abs(denom) > 1e-12, denom, 1.0)
-            cand = (np.abs(denom) > 1e-12) & (t > t_min) & (t < upper)
-            rel = p[None, :] + t[:, None] * dd - origin
-            hit[idx] = cand & inside_polygon(np.stack([rel @ u, rel @ v], axis=-1), poly)
+    near = _in_cones(faces.centre, faces.radius, p, d) & _in_cones(faces.group_centre, faces.group_radius, p,
+                                                                   d)[:, faces.group]
+    ray, face = np.nonzero(near)
+    if ray.size == 0:
+        return hit
+    dd, normal, origin = d[ray], faces.normal[face], faces.origin[face]
+    denom = np.einsum("ij,ij->i", dd, normal)
+    t = np.einsum("ij,ij->i", origin - p, normal) / np.where(np.abs(denom) > 1e-12, denom, 1.0)
+    cand = (np.abs(denom) > 1e-12) & (t > t_min) & (t < upper)
+    rel = p + t[:, None] * dd - origin
+    flat = np.stack([np.einsum("ij,ij->i", rel, faces.u[face]), np.einsum("ij,ij->i", rel, faces.v[face])], axis=-1)
+    hit[ray[cand & inside_polygon(flat, faces.poly[face])]] = True
     return hit
 
 

@@ -32,7 +32,7 @@ from registry.core.model import Aircraft, Fleet
 from registry.core.progress import QUIET, Progress
 from registry.core.results import (AircraftPart, AircraftSummary, FleetResults, PatternResult, cosite_cells,
                                    figure_uses)
-from registry.incremental import DiskCache, key_of, ordered_map
+from registry.incremental import DiskCache, keep_in, key_of, ordered_map
 from registry.output import record
 
 
@@ -129,6 +129,7 @@ def prepare(fleet: Fleet, as_of: date, cache_dir: Path | None = None, lazy: bool
     work out in this process what the aircraft still to compute share (patterns, modelled impedances), so
     that workers forked afterwards inherit it. Every pattern the fleet shows is then in `results.patterns`,
     named after the first model that uses it."""
+    keep_in(cache_dir)  # resonant lengths and impedance sweeps kept between runs (`incremental.kept`)
     plan = Plan(fleet, as_of, FleetResults(cables=cable_results(fleet)), Stores.at(cache_dir), {}, {}, [], lazy, {})
     plan.todo.extend(_reuse(fleet, as_of, plan.stores, plan.results, plan.known, lazy, brief))
     for pattern_key, pattern in shared_figures(fleet, [aircraft_id for aircraft_id, _ in plan.todo]).items():

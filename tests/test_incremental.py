@@ -12,6 +12,7 @@ import subprocess
 import sys
 from pathlib import Path
 
+import numpy as np
 import pytest
 import yaml
 
@@ -210,6 +211,40 @@ def test_full_figures_gone_from_the_cache_are_computed_again(tmp_path):
     accept_to_no_fault(data)
     pipeline.build(data, out, cache_dir=cache, workers=1)
     assert_same_as_plain_build(data, out, tmp_path)
+
+
+def test_resonant_lengths_and_impedance_sweeps_are_read_back_from_the_cache_folder(tmp_path, monkeypatch):
+    """`incremental.kept`: a later process reads the answer from the cache folder instead of solving again
+    (the moment-method solver is made to fail here, so an answer can only come from the folder), and it
+    reads back equal, the slopes as complex numbers (common practice for a content-keyed cache, no source)."""
+    from registry.compute import antenna, element
+    from registry.incremental import keep_in
+    from registry.physics import impedance, wave
+    fleet = pipeline.load(DEMO)
+    model = next(m for m in fleet.antennas.values() if antenna.physics_geometry(m)[0] in {"dipole", "monopole"})
+    keep_in(tmp_path)
+    try:
+        for memo in (element._straight_rule, antenna._impedance):
+            memo.cache_clear()
+        length = element._straight_rule(118e6, 0.02, "half_wave")  # L/D outside the fit: moment method
+        sweep = antenna.impedance_sweep(model, (110.0, 118.0, 126.0), 118.0, (118.0,))
+        assert length.method == "MoM" and sweep.reason == "" and isinstance(sweep.slopes[0][1], complex)
+        for memo in (element._straight_rule, antenna._impedance):
+            memo.cache_clear()  # as a fresh process
+
+        def refuse(*_args, **_kwargs):
+            raise AssertionError("solved again")
+        monkeypatch.setattr(wave, "resonant_length_rule", refuse)
+        monkeypatch.setattr(impedance, "solve_with_resonance", refuse)
+        assert element._straight_rule(118e6, 0.02, "half_wave") == length
+        again = antenna.impedance_sweep(model, (110.0, 118.0, 126.0), 118.0, (118.0,))
+        assert np.array_equal(again.z, sweep.z) and again.slopes == sweep.slopes
+        assert (again.resonance_mhz, again.r_design, again.segments) == (sweep.resonance_mhz, sweep.r_design,
+                                                                        sweep.segments)
+    finally:
+        keep_in(None)
+        for memo in (element._straight_rule, antenna._impedance):
+            memo.cache_clear()
 
 
 def test_cache_entries_of_earlier_code_are_removed(tmp_path):

@@ -14,7 +14,7 @@ import numpy as np
 
 from registry.core import figure_keys as FK
 from registry.core.model import AntennaModel
-from registry.incremental import repr_key
+from registry.incremental import kept, repr_key
 from registry.compute.kinds import PATTERN_METHODS, kind_of
 from registry.physics import impedance, patterns
 from registry.physics import kinds as physics_kinds
@@ -160,7 +160,28 @@ def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mh
     return _impedance(kind, geometry, freqs_mhz, float(design_mhz), centres_mhz)
 
 
-@functools.lru_cache(maxsize=None)
+class ImpedanceEntry(NamedTuple):
+    """A `WireImpedance` as the cache keeps it: the slopes as a complex array (n, 2)."""
+
+    z: np.ndarray | None
+    resonance_mhz: float
+    r_design: float
+    slopes: np.ndarray
+    segments: Figure | None
+    reason: str
+
+
+def _impedance_entry(found: WireImpedance) -> ImpedanceEntry:
+    return ImpedanceEntry(found.z, found.resonance_mhz, found.r_design,
+                          np.array(found.slopes, dtype=complex).reshape(-1, 2), found.segments, found.reason)
+
+
+def _from_impedance_entry(entry: ImpedanceEntry) -> WireImpedance:
+    return WireImpedance(entry.z, entry.resonance_mhz, entry.r_design,
+                         tuple((complex(z), complex(slope)) for z, slope in entry.slopes), entry.segments, entry.reason)
+
+
+@kept("impedances", ImpedanceEntry, _impedance_entry, _from_impedance_entry)
 def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_mhz: float,
                centres_mhz: tuple[float, ...]) -> WireImpedance:
     steps = [1e-3 * centre for centre in centres_mhz]

@@ -9,6 +9,7 @@ import numpy as np
 
 from registry.core import figure_keys as FK
 from registry.core.memo import ByIdentity
+from registry.incremental import kept
 from registry.compute import antenna as cache
 from registry.compute.kinds import kind_of
 from registry.core.model import AntennaModel, Cable, Installation, Policy, Service
@@ -84,12 +85,12 @@ def _resonant_rule(model: AntennaModel, freq_hz: float, element: str) -> wave.Re
     return _straight_rule(freq_hz, diameter_m, element)
 
 
-@functools.lru_cache(maxsize=None)
+@kept("resonant-lengths", wave.ResonantLength)
 def _straight_rule(freq_hz: float, diameter_m: float, element: str) -> wave.ResonantLength:
     return wave.resonant_length_rule(freq_hz, diameter_m, element)
 
 
-@functools.lru_cache(maxsize=None)
+@kept("folded-lengths", wave.ResonantLength)
 def _folded_rule(freq_hz: float, diameter_m: float, spacing_m: float) -> wave.ResonantLength:
     return wave.folded_resonant_length_rule(freq_hz, diameter_m, spacing_m)
 

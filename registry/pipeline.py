@@ -96,7 +96,8 @@ def _compute_and_render(plan: evaluate.Plan, info, cache_root: Path | None, incr
         results = evaluate.finish(plan)
     pieces = {}
     for aircraft_id, (entry, made) in rendered.items():
-        pieces[aircraft_id] = site.aircraft.keep(aircraft_id, entry, made)
+        site.aircraft.keep(aircraft_id, entry)
+        pieces[aircraft_id] = made
     return _outcome(fleet, plan.as_of, results), site, pieces
 
 

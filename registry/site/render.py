@@ -196,15 +196,15 @@ class AircraftRun:
         entries = ordered_map(lambda aircraft: self.render(aircraft, files),
                               todo, workers if self.writer else 1, progress, warm_by=lambda aircraft: aircraft.airframe)
         for (entry, made), aircraft in zip(entries, todo):
-            pieces[aircraft.id] = self.keep(aircraft.id, entry, made)
+            pieces[aircraft.id] = made
+            self.keep(aircraft.id, entry)
         return pieces
 
-    def keep(self, aircraft_id: str, entry: dict[str, Any] | None, made: AircraftPieces) -> AircraftPieces:
-        """Remember, in the parent, which pages an aircraft rendered in a worker has, for the next build
-        (its pieces are in the cache already: `render`); its pieces."""
+    def keep(self, aircraft_id: str, entry: dict[str, Any] | None) -> None:
+        """Remember, in the parent, the pages an aircraft rendered in a worker has, for the next build (its
+        pieces are in the cache already: `render`)."""
         if entry is not None:
             self.incremental.current[aircraft_id] = entry
-        return made
 
     def render_fresh(self, aircraft: Aircraft, part: AircraftPart, findings: list[Discrepancy]
                      ) -> tuple[dict[str, Any] | None, AircraftPieces]:

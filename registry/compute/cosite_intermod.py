@@ -32,8 +32,8 @@ def intermod_products(aircraft_id: str, transmitters: list[Side], receivers: lis
     one suppression line are marked excused (and get no level)."""
     out = []
     rating = Rating(geometry)
-    tx_bands = [tuple(tuple(band) for band in side.value("tx_bands_mhz")) for side in transmitters]
-    rx_bands = [tuple(tuple(band) for band in side.value("rx_bands_mhz")) for side in receivers]
+    tx_bands = [_band_set(side.value("tx_bands_mhz")) for side in transmitters]
+    rx_bands = [_band_set(side.value("rx_bands_mhz")) for side in receivers]
     for i, one in enumerate(transmitters):
         for j in range(i + 1, len(transmitters)):
             two = transmitters[j]
@@ -95,17 +95,23 @@ def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz
     is missing (the figures end with the conversion loss then). `parts` keeps the feeder figures and the
     labelled coupling for the aircraft's other products (both orders of a pair share them)."""
     parts = {} if parts is None else parts
-    power = figure_of(intruder, "tx_peak_power_dbm", FK.COSITE_TX_POWER_DBM, f"Peak power of {intruder.position}",
-                      "dBm")
+    key = ("power", intruder.position)
+    if key not in parts:
+        parts[key] = figure_of(intruder, "tx_peak_power_dbm", FK.COSITE_TX_POWER_DBM,
+                               f"Peak power of {intruder.position}", "dBm")
+    power = parts[key]
     intruder_feeder = _feeder(intruder, parts)
     key = ("into", intruder.position, generator.position, intruder_lo_mhz)
     if key not in parts:
-        parts[key] = tuple(f._replace(label=f"{f.label}, {intruder.position} → {generator.position}")
+        parts[key] = tuple(_relabelled(f, f"{f.label}, {intruder.position} → {generator.position}")
                            for f in coupling_figures(intruder, generator, geometry, intruder_lo_mhz))
     into = parts[key]
     generator_feeder = _feeder(generator, parts)
-    conversion = figure_of(generator, f"im{order}_conversion_loss_db", FK.COSITE_CONVERSION_LOSS_DB,
-                           f"Conversion loss of {generator.position}, order {order}", "dB")
+    key = ("conversion", generator.position, order)
+    if key not in parts:
+        parts[key] = figure_of(generator, f"im{order}_conversion_loss_db", FK.COSITE_CONVERSION_LOSS_DB,
+                               f"Conversion loss of {generator.position}, order {order}", "dB")
+    conversion = parts[key]
     figures = (power, intruder_feeder, *into, generator_feeder, conversion)
     if power.value is None or conversion.value is None:
         return figures, None
@@ -115,6 +121,11 @@ def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz
                      "P_I − L_I + C_IG − L_G − L_conv", (("coupled in", f"{tx.coupled_in_dbm:.1f} dBm"),),
                      INTERMOD_SOURCE, conversion.src)
     return (*figures, product), tx
+
+
+def _relabelled(f: Figure, label: str) -> Figure:
+    """`f` with another label (as `_replace` gives it, without its keyword handling: thousands a build)."""
+    return Figure(f.key, label, f.value, f.unit, f.formula, f.inputs, f.source, f.src)
 
 
 def _feeder(side: Side, parts: dict[tuple, Any]) -> Figure:
@@ -129,19 +140,36 @@ def receiver_figures(generator: Side, rx: Side, product_lo_mhz: float,
                      geometry: Geometry) -> tuple[tuple[Figure, ...], tuple[Figure, ...], str, float]:
     """From the generator's port to the receiver: the coupling (at the product's lowest frequency), the
     receive figures and the threshold's plane, and the generator's feeder loss (dB) the product passes."""
-    out = tuple(f._replace(label=f"{f.label}, {generator.position} → {rx.position}")
+    out = tuple(_relabelled(f, f"{f.label}, {generator.position} → {rx.position}")
                 for f in coupling_figures(generator, rx, geometry, product_lo_mhz))
     receive, plane = receive_figures(rx)
     feeder = feeder_figure(FK.COSITE_TX_FEEDER_LOSS_DB, "", generator).value
     return out, tuple(receive), plane, feeder
 
 
+_BAND_SETS: dict[tuple[tuple[float, float], ...], int] = {}
+_BAND_SET_LIST: list[tuple[tuple[float, float], ...]] = []
+
+
+def _band_set(bands) -> int:
+    """A number for a side's set of ranges (MHz), the same for the same ranges in this process: an
+    aircraft asks `_ranges_hits` for about a thousand (transmitter, transmitter, receiver) sets, and
+    three numbers are quicker to look up than three tuples of tuples. A fleet's services hold a few
+    dozen sets."""
+    ranges = tuple(tuple(band) for band in bands)
+    found = _BAND_SETS.get(ranges)
+    if found is None:
+        found = _BAND_SETS[ranges] = len(_BAND_SET_LIST)
+        _BAND_SET_LIST.append(ranges)
+    return found
+
+
 @lru_cache(maxsize=4096)
-def _ranges_hits(f1_ranges: tuple[tuple[float, float], ...], f2_ranges: tuple[tuple[float, float], ...],
-                 victims: tuple[tuple[float, float], ...]) -> tuple:
-    """`_intermod_hits` over every range of two transmitters and a receiver, in that order (first
-    transmitter's ranges, the second's, the receiver's): once per set of services in a process, where
-    an aircraft asks for a few thousand (range, range, band) sets, most of them without a product."""
+def _ranges_hits(f1_set: int, f2_set: int, victim_set: int) -> tuple:
+    """`_intermod_hits` over every range of two transmitters and a receiver (`_band_set` numbers), in
+    that order (first transmitter's ranges, the second's, the receiver's): once per set of services in
+    a process, where an aircraft asks for a thousand sets, most of them without a product."""
+    f1_ranges, f2_ranges, victims = (_BAND_SET_LIST[n] for n in (f1_set, f2_set, victim_set))
     return tuple(hit for f1 in f1_ranges for f2 in f2_ranges for victim in victims
                  for hit in _intermod_hits(f1, f2, victim))
 

@@ -87,6 +87,21 @@ class Geometry:
         self.unit = unit
         self.isolation = {frozenset((pair.position_a, pair.position_b)): pair for pair in pairs}
         self.couplings: dict[tuple[str, str, float], tuple[Figure, ...]] = {}
+        self.between: dict[tuple[str, str], tuple[Figure | None, Figure | None, float]] = {}
+        """Per (transmitter, receiver): the pair's isolation and its frequency figures, and the distance (m)."""
+
+    def path(self, tx: Side, rx: Side) -> tuple[Figure | None, Figure | None, float]:
+        """What a coupling between the two sides rests on at any frequency, worked out once per path."""
+        key = (tx.position, rx.position)
+        found = self.between.get(key)
+        if found is None:
+            pair = self.isolation.get(frozenset(key))
+            a, b = tx.installation.location, rx.installation.location
+            found = self.between[key] = (
+                pair.figure(FK.PAIR_ISOLATION_DB) if pair is not None else None,
+                pair.figure(FK.PAIR_FREQ_MHZ) if pair is not None else None,
+                distance_m((a.sta, a.bl, a.wl), (b.sta, b.bl, b.wl), self.unit))
+        return found
 
 
 def coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) -> list[Figure]:
@@ -98,9 +113,7 @@ def coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) ->
 
 
 def _coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) -> list[Figure]:
-    pair = geometry.isolation.get(frozenset((tx.position, rx.position)))
-    iso = pair.figure(FK.PAIR_ISOLATION_DB) if pair is not None else None
-    at = pair.figure(FK.PAIR_FREQ_MHZ) if pair is not None else None
+    iso, at, d = geometry.path(tx, rx)
     if iso is not None and at is not None and isinstance(iso.value, float):
         scaled = iso.value + 20.0 * math.log10(freq_mhz / float(at.value))
         return [Figure(FK.COSITE_COUPLING_DB, "Coupling between the antennas", -scaled, "dB",
@@ -108,8 +121,6 @@ def _coupling_figures(tx: Side, rx: Side, geometry: Geometry, freq_mhz: float) -
                        (("I_pair", f"{iso.value:.1f} dB"), ("f_pair", f"{float(at.value):g} MHz"),
                         ("f", f"{freq_mhz:.3f} MHz")),
                        f"the pair's isolation figure scaled by the free-space law, gains held; {FRIIS}", iso.src)]
-    a, b = tx.installation.location, rx.installation.location
-    d = distance_m((a.sta, a.bl, a.wl), (b.sta, b.bl, b.wl), geometry.unit)
     loss = free_space_loss_db(freq_mhz * 1e6, d) if d > 0 else 0.0
     return [
         Figure(FK.COSITE_DISTANCE_M, "Distance between the antennas", d, "m", "|P_RX − P_TX| from STA/BL/WL",

@@ -1,10 +1,14 @@
 """The memo by identity (core.memo) and the computations that use it: a remembered answer is the one
 worked out afresh, found again only for the very same objects, and cannot be changed by a caller.
 Common practice, no source: these are properties of the code, not of the physics."""
+from pathlib import Path
+
 import numpy as np
 import pytest
 
 from registry.core.memo import ByIdentity, by_unordered
+
+DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 
 
 class Thing:
@@ -71,3 +75,21 @@ def test_the_modelled_vswr_is_the_callers_own_list_and_a_read_only_curve():
     assert again == fresh and curve_again is curve
     with pytest.raises(ValueError):
         curve.y[0] = 1.0
+
+
+def test_an_airframe_and_an_antenna_model_hash_once_and_equal_objects_hash_equal():
+    """`hash_once` keeps the rule of the Python Language Reference (Data model, object.__hash__): objects
+    that compare equal have the same hash value. Checked for two loads of the demo registry (equal, distinct
+    objects), and the value is the hash of the fields the dataclass compares, as its own __hash__ gave."""
+    from dataclasses import fields
+
+    from registry import pipeline
+    from registry.core import memo
+    one, two = pipeline.load(DEMO), pipeline.load(DEMO)
+    for kind in ("airframes", "antennas"):
+        for key, item in getattr(one, kind).items():
+            other = getattr(two, kind)[key]
+            assert item is not other and item == other and hash(item) == hash(other)
+            compared = tuple(getattr(item, f.name) for f in fields(item) if (f.compare if f.hash is None else f.hash))
+            assert hash(item) == hash(compared)
+            assert memo._HASHES.get((item,), None, lambda: -1) == hash(item)  # worked out once, kept

@@ -3,6 +3,7 @@ those objects' identity (and any plain, hashable arguments by value)."""
 from __future__ import annotations
 
 from collections.abc import Callable, Hashable
+from dataclasses import fields
 from typing import Any, Generic, TypeVar
 
 T = TypeVar("T")
@@ -47,3 +48,14 @@ def by_unordered(items: tuple[Any, ...], field: str) -> dict[tuple, Any]:
             index.setdefault(tuple(sorted(getattr(item, field))), item)
         return index
     return _UNORDERED.get((items,), field, make)
+
+
+_HASHES: ByIdentity[int] = ByIdentity(limit=4_096)
+
+
+def hash_once(item: Any) -> int:
+    """A frozen dataclass's hash of the fields it compares, worked out once per object: a `__hash__` for
+    the few large model objects that key the per-process caches (an airframe, hashed hundreds of times an
+    aircraft, walks every section, zone and surface each time). Equal objects still hash equal."""
+    return _HASHES.get((item,), None, lambda: hash(tuple(getattr(item, f.name) for f in fields(item)
+                                                         if (f.compare if f.hash is None else f.hash))))

@@ -14,7 +14,7 @@ from datetime import date
 from pathlib import Path
 
 from registry.core.base import FrozenMap, Sourced
-from registry.core.memo import by_unordered
+from registry.core.memo import by_unordered, hash_once
 from registry.core.hardware import (AdapterPart, Amplifier, Bonding, ConnectorEnd, ManualRef,  # noqa: F401
                                     RadioUnit, Splitter)
 
@@ -228,6 +228,8 @@ class AntennaModel(Sourced):
     description: str = ""
 
 
+Airframe.__hash__ = AntennaModel.__hash__ = hash_once  # type: ignore[method-assign]  # they key every cache
+
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Cable(Sourced):
     """A cable type. `attenuation_db_per_100m` is per 100 m; `declared_unit` the file's, db_per_100m or db_per_100ft."""
@@ -367,8 +369,7 @@ class Review(Sourced):
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Fleet(Sourced):
-    """The whole registry. Every mapping is keyed by id and iterates in sorted id order;
-    `reviews` is keyed by discrepancy id."""
+    """The whole registry. Every mapping is keyed by id and iterates in sorted id order; `reviews` by discrepancy id."""
 
     operator: str
     data_dir: Path
@@ -386,9 +387,7 @@ class Fleet(Sourced):
     """Each aircraft's inputs (its file, its sweeps, the shared files) as one key (`load.inputs`)."""
     modifications: tuple = ()  # effectivity.FleetModification of modifications.yaml, in the file's order
 
-    @property
-    def site_title(self) -> str:
-        return self.title or self.operator
+    site_title = property(lambda self: self.title or self.operator)
 
     def installations(self) -> Iterator[tuple[Aircraft, Installation]]:
         """Every (aircraft, installation), by aircraft id then position."""

@@ -92,8 +92,9 @@ def product_figures(intruder: Side, generator: Side, order: int, intruder_lo_mhz
     """The product at the generator's port, step by step: the intruder's power and feeder, the coupling
     into the generator (at the lowest frequency of the intruder's range), the generator's feeder and its
     conversion loss for the order, then the product; None for the level when a power or the conversion loss
-    is missing (the figures end with the conversion loss then). `parts` keeps the feeder figures and the
-    labelled coupling for the aircraft's other products (both orders of a pair share them)."""
+    is missing (the figures end with the conversion loss then). `parts` keeps what the aircraft's other
+    products share: the powers, feeder figures, conversion losses and labelled couplings (each looked up
+    in place rather than through a helper taking a closure: this runs hundreds of times an aircraft)."""
     parts = {} if parts is None else parts
     key = ("power", intruder.position)
     if key not in parts:

@@ -8,7 +8,7 @@ import math
 import numpy as np
 
 from registry.core import figure_keys as FK
-from registry.core.memo import ByIdentity
+from registry.core.memo import ByIdentity, read_only
 from registry.incremental import kept
 from registry.compute import antenna as cache
 from registry.compute.kinds import kind_of
@@ -189,8 +189,8 @@ _MODELLED: ByIdentity[tuple[tuple[Figure, ...], Curve | None]] = ByIdentity(limi
 
 def _read_only_curve(figures: list[Figure], curve: Curve | None) -> tuple[tuple[Figure, ...], Curve | None]:
     if curve is not None:
-        curve.x.setflags(write=False)
-        curve.y.setflags(write=False)
+        read_only(curve.x)
+        read_only(curve.y)
     return tuple(figures), curve
 
 

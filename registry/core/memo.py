@@ -35,6 +35,13 @@ class ByIdentity(Generic[T]):
         return value
 
 
+def read_only(values: Any) -> Any:
+    """A numpy array made read-only in place, and returned: a remembered value is handed to every
+    caller, so none of them may change it."""
+    values.setflags(write=False)
+    return values
+
+
 _UNORDERED: ByIdentity[dict[tuple, Any]] = ByIdentity(limit=64)
 
 

@@ -230,6 +230,7 @@ class AntennaModel(Sourced):
 
 Airframe.__hash__ = AntennaModel.__hash__ = hash_once  # type: ignore[method-assign]  # they key every cache
 
+
 @dataclass(frozen=True, kw_only=True, slots=True)
 class Cable(Sourced):
     """A cable type. `attenuation_db_per_100m` is per 100 m; `declared_unit` the file's, db_per_100m or db_per_100ft."""

@@ -26,7 +26,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from registry.core.memo import ByIdentity
+from registry.core.memo import ByIdentity, read_only
 
 #: half-width of the fore-body and tail-cone tips relative to the maximum, for outlines (assumed)
 TIP_FRACTION = 0.12
@@ -117,13 +117,13 @@ class AirframeShape:
 
         def rows(values, width: int | None = 3) -> np.ndarray:
             array = np.array(values, dtype=float)
-            return _read_only(array.reshape(-1, width) if width else array.reshape(-1))
+            return read_only(array.reshape(-1, width) if width else array.reshape(-1))
 
         return Faces(normal=rows([pl.normal for pl in self.plates]),
                      origin=rows([pl.vertices_m[0] for pl in self.plates]),
                      u=rows([pl.frame_m[0] for pl in self.plates]), v=rows([pl.frame_m[1] for pl in self.plates]),
-                     poly=_read_only(polys), centre=rows([pl.sphere_m[0] for pl in self.plates]),
-                     radius=rows([pl.sphere_m[1] for pl in self.plates], None), group=_read_only(group_of),
+                     poly=read_only(polys), centre=rows([pl.sphere_m[0] for pl in self.plates]),
+                     radius=rows([pl.sphere_m[1] for pl in self.plates], None), group=read_only(group_of),
                      group_centre=rows([s[0] for s in spheres]), group_radius=rows([s[1] for s in spheres], None))
 
     @cached_property
@@ -132,12 +132,7 @@ class AirframeShape:
         x, c, w, h = self.sta_m, self.centre_wl_m, self.half_width_m, self.half_height_m
         dx = np.diff(x)
         found = (x[:-1], x[1:], w[:-1], np.diff(w) / dx, c[:-1], np.diff(c) / dx, (h[:-1] + h[1:]) / (w[:-1] + w[1:]))
-        return tuple(_read_only(np.array(part)) for part in found)
-
-
-def _read_only(values: np.ndarray) -> np.ndarray:
-    values.setflags(write=False)
-    return values
+        return tuple(read_only(np.array(part)) for part in found)
 
 
 def bounding_sphere(vertices_m: np.ndarray) -> tuple[np.ndarray, float]:
@@ -313,8 +308,8 @@ _LOCATED: ByIdentity[SkinPoint | None] = ByIdentity(limit=8_192)
 
 def _read_only_hit(hit: SkinPoint | None) -> SkinPoint | None:
     if hit is not None:
-        _read_only(hit.normal)
-        _read_only(hit.on_skin_m)
+        read_only(hit.normal)
+        read_only(hit.on_skin_m)
     return hit
 
 

@@ -27,6 +27,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from registry.core.memo import read_only
 from registry.physics.airframe_shape import (AirframeShape, inside_polygon, locate_on_skin, segment_coefficients,
                                              to_metres)
 
@@ -75,9 +76,7 @@ def body_directions(dirs_fru: np.ndarray, bank_deg: float = 0.0, pitch_deg: floa
 def _grid_body_directions(step_deg: float, bank_deg: float, pitch_deg: float) -> np.ndarray:
     """(E * A, 3) body-axis directions of the grid for one attitude (cached, read-only)."""
     az, el = direction_grid(step_deg)
-    d = body_directions(earth_directions(az, el), bank_deg, pitch_deg).reshape(-1, 3)
-    d.setflags(write=False)
-    return d
+    return read_only(body_directions(earth_directions(az, el), bank_deg, pitch_deg).reshape(-1, 3))
 
 
 def fuselage_blocks(shape: AirframeShape, p: np.ndarray, d: np.ndarray, t_min: float, t_max=None) -> np.ndarray:

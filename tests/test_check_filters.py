@@ -87,3 +87,26 @@ def test_one_order_on_terminal_exports_record_and_site(demo_data, demo_site, cap
         html = (demo_site / "aircraft" / f"{aircraft_id}.html").read_text(encoding="utf-8")
         shown = re.findall(r'<tr id="d-([^"]+)"', html.split('id="findings"', 1)[1])
         assert shown == [anchor(item) for item in by_json if item.startswith(aircraft_id + "/")], aircraft_id
+
+
+def test_the_command_line_entry_delivers_all_its_output_and_exit_code(demo_data, capsys, tmp_path):
+    # build.py ends its process without the interpreter's clean-up (os._exit): what main wrote must still
+    # reach a file (block-buffered: one aircraft's findings fit in the buffer, so nothing is written before
+    # the end) whole, with main's exit code (common practice, no source: a CLI's output and status are its
+    # contract)
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+    args = [str(demo_data), "--format", "json", "--no-cache", "--aircraft", "QX-TCC"]
+    code, expected = run(capsys, *args)
+    assert 0 < len(expected.encode()) < io.DEFAULT_BUFFER_SIZE
+    out = tmp_path / "findings.json"
+    env = {name: value for name, value in os.environ.items() if name != "PYTHONUNBUFFERED"}  # buffered, as usual
+    env["SOURCE_DATE_EPOCH"] = DEMO_DAY_EPOCH
+    with open(out, "w") as handle:
+        result = subprocess.run([sys.executable, str(Path(cli.__file__).parent.parent / "build.py"), "check", *args],
+                                stdout=handle, env=env)
+    assert result.returncode == code
+    assert out.read_text() == expected
+    assert json.loads(out.read_text())["discrepancies"]

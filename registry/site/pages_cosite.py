@@ -17,7 +17,7 @@ from registry.output.numbers import number_text
 from registry.output.report import format_value
 from registry.site.context import SiteData
 from registry.site.pages import Page, page
-from registry.site.paths import aircraft_path
+from registry.site.paths import aircraft_path, root_of
 from registry.site.svg import n
 
 INTERMOD_SHOWN = 60
@@ -243,6 +243,21 @@ def frequency_chart(cosite: AircraftCosite) -> Markup:
     return Markup("".join(parts))
 
 
+def _each_margin(links: list[str], cells: list, texts: dict[tuple, str]) -> Markup:
+    """Each aircraft's margin on one path, as the list items of the path's row (`links`: each aircraft's
+    item up to its margin; `texts`: the rest of an item by margin and words, as made so far). Made here
+    rather than by a template loop: a type's page lists every aircraft on every path it shares (55,000
+    items for a type of 500 aircraft), and most aircraft share their margins with others."""
+    out = []
+    for link, c in zip(links, cells):
+        text = texts.get((c.margin_db, c.what))
+        if text is None:
+            margin = "—" if c.margin_db is None else number_text(c.margin_db, "dB")
+            text = texts[(c.margin_db, c.what)] = f"{escape(margin)}{f' ({escape(c.what)})' if c.what else ''}</li>"
+        out.append(link + text)
+    return Markup("".join(out))
+
+
 def type_cosite_pages(data: SiteData) -> Iterator[Page]:
     """One page per airframe type, made as it is asked for: the transmitter → receiver paths every
     aircraft of the type has, with the worst margin over them and each aircraft's own (from the aircraft
@@ -255,19 +270,19 @@ def type_cosite_pages(data: SiteData) -> Iterator[Page]:
             continue
         cells = [{(c.tx, c.rx): c for c in summary.cosite} for summary in summaries]
         shared = sorted(set.intersection(*(set(c) for c in cells)))
-        rows = []
+        path = type_cosite_path(airframe.id)
+        links = [f'<li><a href="{escape(root_of(path) + cosite_path(a.id))}">{escape(a.registration)}</a>: '
+                 for a in members]
+        rows, texts = [], {}
         for key in shared:
-            each = [(aircraft, by_path[key]) for aircraft, by_path in zip(members, cells)]
-            rated = [c.margin_db for _, c in each if c.margin_db is not None]
+            each = [by_path[key] for by_path in cells]
+            rated = [c.margin_db for c in each if c.margin_db is not None]
             worst = min(rated) if rated else None
-            state = ("excused" if each[0][1].excused_by else "unrated" if worst is None else
+            state = ("excused" if each[0].excused_by else "unrated" if worst is None else
                      "unserviceable" if worst < 0 else "query" if worst < small else "ok")
-            rows.append({"tx": key[0], "rx": key[1], "services": f"{each[0][1].tx_service} → {each[0][1].rx_service}",
+            rows.append({"tx": key[0], "rx": key[1], "services": f"{each[0].tx_service} → {each[0].rx_service}",
                          "state": state, "worst": "—" if worst is None else number_text(worst, "dB"),
-                         "excused_by": each[0][1].excused_by,
-                         "each": [{"registration": a.registration, "href": cosite_path(a.id),
-                                   "margin": "—" if c.margin_db is None else number_text(c.margin_db, "dB"),
-                                   "what": c.what} for a, c in each]})
-        yield page(type_cosite_path(airframe.id), "cosite_type.html", "fleet",
+                         "excused_by": each[0].excused_by, "each": _each_margin(links, each, texts)})
+        yield page(path, "cosite_type.html", "fleet",
                    f"{airframe.name} interference", [("Fleet", "index.html"), (airframe.name, None)],
                    airframe=airframe, members=members, rows=rows, small_db=small)

@@ -193,3 +193,24 @@ def test_a_killed_build_leaves_nothing_the_next_build_does_not_remove(tmp_path):
     result = subprocess.run(command, cwd=ROOT, env=env, capture_output=True, text=True)
     assert result.returncode == 0, result.stderr
     assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]
+
+
+@pytest.mark.parametrize("previous, chunks, kept", [
+    ("{\"a\":1,\n\"b\":2}\n", ["{\"a\":1,", "\n\"b\":2}", "\n"], True),   # the same bytes in other pieces
+    ("{\"a\":1,\n\"b\":2}\n", ["{\"a\":1,", "\n\"b\":3}", "\n"], False),  # one byte differs
+    ("{\"a\":1,\n\"b\":2}\n", ["{\"a\":1,", "\n\"b\":2}"], False),        # the previous file is longer
+    ("{\"a\":1,\n\"b\":2}", ["{\"a\":1,", "\n\"b\":2}", "\n"], False),    # the previous file is shorter
+    (None, ["{}", "\n"], False),                                          # no previous file
+])
+def test_a_file_written_in_pieces_is_linked_only_when_it_equals_the_previous_one(tmp_path, previous, chunks, kept):
+    # place_chunks compares as it writes (the build record is written this way); hard links keep an unchanged
+    # file's inode (common practice for incremental publishing, no source)
+    old, stage = tmp_path / "old", tmp_path / "stage"
+    old.mkdir()
+    stage.mkdir()
+    if previous is not None:
+        (old / "record.json").write_text(previous)
+    publish.place_chunks(stage, old, "record.json", iter(chunks))
+    assert (stage / "record.json").read_text() == "".join(chunks)
+    if previous is not None:
+        assert ((stage / "record.json").stat().st_ino == (old / "record.json").stat().st_ino) is kept

@@ -16,14 +16,13 @@ from __future__ import annotations
 import contextlib
 import fcntl
 import json
-import filecmp
 import os
 import re
 import shutil
 import stat
 import tempfile
 from pathlib import Path
-from typing import Iterator
+from typing import BinaryIO, Iterable, Iterator
 
 from registry.core.errors import AerialbookError
 from registry.incremental import read_regular_file
@@ -136,22 +135,43 @@ def place(stage: Path, out_dir: Path, rel_path: str, content: str | bytes, reuse
         pass
 
 
-def place_chunks(stage: Path, out_dir: Path, rel_path: str, chunks: list[str]) -> None:
+def place_chunks(stage: Path, out_dir: Path, rel_path: str, chunks: Iterable[str]) -> None:
     """`place` for a file given as text in pieces (the build record): written piece by piece, never held
-    whole, then replaced by a hard link to the previous site's file when the two are byte-identical."""
+    whole, and compared with the previous site's file as it is written (up to the first difference: the
+    record runs to hundreds of megabytes); replaced by a hard link to that file when the two are
+    byte-identical."""
     target = os.path.join(stage, rel_path)
     os.makedirs(os.path.dirname(target), exist_ok=True)
-    with open(target, "xb") as out:
-        for chunk in chunks:
-            out.write(chunk.encode("utf-8"))
     old = os.path.join(out_dir, rel_path)
+    with open(target, "xb") as out, _open_regular(old) as previous:
+        same = previous is not None
+        for chunk in chunks:
+            data = chunk.encode("utf-8")
+            out.write(data)
+            same = same and previous.read(len(data)) == data
+        same = same and not previous.read(1)
+    if not same:
+        return
     try:
-        if os.path.isfile(old) and filecmp.cmp(old, target, shallow=False):
-            os.unlink(target)
-            os.link(old, target)
-    except OSError:  # no link across file systems: the written copy stays
+        os.unlink(target)
+        os.link(old, target)
+    except OSError:  # no link across file systems: a copy of the same bytes
         if not os.path.exists(target):
             shutil.copyfile(old, target)
+
+
+@contextlib.contextmanager
+def _open_regular(path: str) -> Iterator[BinaryIO | None]:
+    """The regular file at `path` open for reading, or None (absent, a link, anything else)."""
+    try:
+        handle = open(path, "rb") if stat.S_ISREG(os.lstat(path).st_mode) else None
+    except OSError:
+        handle = None
+    try:
+        yield handle
+    finally:
+        if handle is not None:
+            handle.close()
 
 
 _MADE: set[str] = set()

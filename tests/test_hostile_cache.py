@@ -358,3 +358,16 @@ def test_an_index_of_positions_with_bad_rows_falls_back_to_the_objects_own_line(
     assert back.where("feeder.length_m") == own
     top = codec.loads(codec.dumps(Locator(FieldIndex("fleet_data/policy.yaml", rows), (), own), Locator), Locator)
     assert top.where("vswr_limit") == own  # a file's own locator (no prefix) with no root row: still an answer
+
+
+def test_a_complex_number_reads_back_exactly_and_a_bad_one_is_refused():
+    # complex numbers are kept as ["c", re, im] (the plate models' input impedances): floats repr exactly
+    # in JSON (from memory: a float's repr reads back to the same float, Python tutorial, "Floating Point Arithmetic")
+    kind = tuple[float, float, complex]
+    value = (-3.25, 12.5, complex(36.51234567891234, -21.000000000000004))
+    payload = codec.dumps(value, kind)
+    assert codec.loads(payload, kind) == value
+    for bad in (b'["t",-3.25,12.5,["c","36.5",-21.0]]', b'["t",-3.25,12.5,["c",36.5]]',
+                b'["t",-3.25,12.5,["c",36.5,-21.0,1.0]]', b'["t",-3.25,12.5,36.5]'):
+        with pytest.raises(codec.BadEntry):
+            codec.loads(bad, kind)

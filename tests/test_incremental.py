@@ -247,6 +247,42 @@ def test_resonant_lengths_and_impedance_sweeps_are_read_back_from_the_cache_fold
             memo.cache_clear()
 
 
+def test_plate_models_and_pattern_grids_are_read_back_from_the_cache_folder(tmp_path, monkeypatch):
+    """The plate models' answers (monopole on a disc, on a square plate, on infinite ground) and the pattern
+    grid a pair's gain is read from are kept like the resonant lengths: a later process reads them back equal
+    with the solvers made to fail (common practice for a content-keyed cache, no source)."""
+    from registry.compute import antenna, element
+    from registry.incremental import keep_in
+    from registry.physics import finite_ground, impedance, patterns, square_plate
+    fleet = pipeline.load(DEMO)
+    model = next(m for m in fleet.antennas.values() if antenna.physics_geometry(m)[0] == "monopole")
+    memos = (element._on_disc, element._on_square, element._on_infinite_ground, antenna._raw_grid)
+    freq_hz, lam = 118e6, 299792458.0 / 118e6
+    keep_in(tmp_path)
+    try:
+        for memo in memos:
+            memo.cache_clear()
+        answers = (element._on_disc(lam / 4, lam / 2, 0.003, freq_hz), element._on_square(lam / 4, lam, 0.003, freq_hz),
+                   element._on_infinite_ground(*antenna.physics_geometry(model), freq_hz))
+        grid = antenna._raw_grid(*antenna.physics_geometry(model), 118.0)
+        assert isinstance(answers[0][2], complex) and isinstance(answers[2], complex)
+        for memo in memos:
+            memo.cache_clear()  # as a fresh process
+
+        def refuse(*_args, **_kwargs):
+            raise AssertionError("solved again")
+        for module, name in ((finite_ground, "monopole_on_disc"), (square_plate, "monopole_on_square"),
+                             (impedance, "solve_wire_antenna"), (patterns, "pattern_for_kind")):
+            monkeypatch.setattr(module, name, refuse)
+        assert (element._on_disc(lam / 4, lam / 2, 0.003, freq_hz), element._on_square(lam / 4, lam, 0.003, freq_hz),
+                element._on_infinite_ground(*antenna.physics_geometry(model), freq_hz)) == answers
+        assert all(np.array_equal(a, b) for a, b in zip(antenna._raw_grid(*antenna.physics_geometry(model), 118.0), grid))
+    finally:
+        keep_in(None)
+        for memo in memos:
+            memo.cache_clear()
+
+
 def test_cache_entries_of_earlier_code_are_removed(tmp_path):
     # entries made by other code can never be read (their keys hold that code), so a build removes them
     cache = tmp_path / "cache"

@@ -125,7 +125,7 @@ def gain_toward_dbi(model: AntennaModel, freq_mhz: float, theta_rad: float, phi_
     return float(gain[i, j])
 
 
-@functools.lru_cache(maxsize=None)
+@kept("pattern-grids", tuple[np.ndarray, np.ndarray, np.ndarray])
 def _raw_grid(kind: str, geometry: tuple, freq_mhz: float):
     try:
         raw = patterns.pattern_for_kind(kind, geometry, freq_mhz * MHZ)

@@ -2,7 +2,6 @@
 ground plane. Pure functions of the model objects; physics from registry.physics."""
 from __future__ import annotations
 
-import functools
 import math
 
 import numpy as np
@@ -281,16 +280,16 @@ SQUARE_SIDE_MAX_WAVELENGTHS = 3.0
 fourth power of the side)."""
 
 
-@functools.lru_cache(maxsize=256)
+@kept("disc-monopoles", tuple[float, float, complex])
 def _on_disc(height_m: float, radius_m: float, wire_radius_m: float, freq_hz: float):
-    """finite_ground.monopole_on_disc, cached per content: (horizon dBi, peak elevation deg, Z_in)."""
+    """finite_ground.monopole_on_disc, kept per content: (horizon dBi, peak elevation deg, Z_in)."""
     res = finite_ground.monopole_on_disc(height_m, radius_m, wire_radius_m, freq_hz)
     return res.horizon_gain_dbi, res.peak_elevation_deg, complex(res.z_in_ohm)
 
 
-@functools.lru_cache(maxsize=64)
+@kept("square-monopoles", tuple[float, float, complex])
 def _on_square(height_m: float, side_m: float, wire_radius_m: float, freq_hz: float):
-    """square_plate.monopole_on_square, cached per content: (horizon dBi, peak elevation deg, Z_in)."""
+    """square_plate.monopole_on_square, kept per content: (horizon dBi, peak elevation deg, Z_in)."""
     side_lambda = side_m / wave.wavelength_m(freq_hz)
     if side_lambda > SQUARE_SIDE_MAX_WAVELENGTHS:
         raise impedance.Unmodellable(f"a square plate {side_lambda:.1f} λ across is past the "
@@ -302,7 +301,7 @@ def _on_square(height_m: float, side_m: float, wire_radius_m: float, freq_hz: fl
     return res.horizon_gain_dbi, res.peak_elevation_deg, complex(res.z_in_ohm)
 
 
-@functools.lru_cache(maxsize=256)
+@kept("ground-impedances", complex)
 def _on_infinite_ground(kind: str, geometry: tuple, freq_hz: float) -> complex:
     return complex(impedance.solve_wire_antenna(kind, geometry, [freq_hz]).z_in_ohm[0])
 

@@ -12,7 +12,7 @@ Encoding (every value that is not a JSON scalar is a list whose first item is a 
          file's `FieldIndex`, is written once
     ["R", "Src", key, [field, ...], ...] a dict whose values are all of one record type with scalar
          fields (a file's index of positions): each value's fields without a tag
-    ["m", k, v, ...] FrozenMap   ["D", "2025-02-11"] date     ["p", "text"] Path
+    ["m", k, v, ...] FrozenMap   ["D", "2025-02-11"] date     ["p", "text"] Path   ["c", re, im] complex
     ["a", "<f8", [shape], "base64 of the little-endian bytes"] numpy array (float64, int64,
          complex128 or bool)      ["n", "<f8", value] numpy scalar
     ["<record class name>", field, field, ...] one of the allowed record types, fields in order
@@ -156,7 +156,7 @@ def _classes(hint: Any, records: dict[type, Record]) -> tuple[type, ...] | None:
         return None
     if hint is float:
         return (float, int)
-    if hint not in (str, int, bool, bytes, date, Path, np.ndarray, FrozenMap, tuple, list, dict):
+    if hint not in (str, int, bool, bytes, complex, date, Path, np.ndarray, FrozenMap, tuple, list, dict):
         _record(hint, records)
     return (hint,)
 
@@ -244,6 +244,8 @@ class _Encoder:
             return out
         if type(value) is date:
             return ["D", value.isoformat()]
+        if type(value) is complex:
+            return ["c", value.real, value.imag]
         if isinstance(value, PurePath):
             return ["p", str(value)]
         if isinstance(value, np.ndarray) and value.dtype.newbyteorder("<").str in DTYPES:
@@ -370,6 +372,8 @@ class _Decoder:
             return date.fromisoformat(item[1])
         if tag == "p" and len(item) == 2 and type(item[1]) is str:
             return Path(item[1])
+        if tag == "c" and len(item) == 3 and type(item[1]) is float and type(item[2]) is float:
+            return complex(item[1], item[2])
         if tag == "a" and len(item) == 4:
             return _array(*item[1:])
         if tag == "n" and len(item) == 3 and item[1] in DTYPES and type(item[2]) in (int, float, bool):

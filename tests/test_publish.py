@@ -4,6 +4,7 @@ Behaviour follows POSIX rename(2) semantics (IEEE Std 1003.1, rename: atomic rep
 directory entry); the tests check our use of it, not the operating system.
 """
 import fcntl
+import json
 import os
 import shutil
 import signal
@@ -214,3 +215,18 @@ def test_a_file_written_in_pieces_is_linked_only_when_it_equals_the_previous_one
     assert (stage / "record.json").read_text() == "".join(chunks)
     if previous is not None:
         assert ((stage / "record.json").stat().st_ino == (old / "record.json").stat().st_ino) is kept
+
+
+def test_a_previous_aircraft_is_reused_only_with_every_file_present_and_inside_the_site(tmp_path):
+    # the marker file is input: an entry listing a path that leaves the site ("../x"), a missing file or a
+    # folder in place of a file is not reused (common practice for path handling, no source)
+    out = tmp_path / "site"
+    (out / "aircraft" / "a").mkdir(parents=True)
+    (out / "aircraft" / "a" / "p.html").write_text("page")
+    (out / "aircraft" / "a" / "folder.html").mkdir()
+    (tmp_path / "beside.html").write_text("not the site's")
+    files = ["aircraft/a/p.html", "../beside.html", "aircraft/../../beside.html", "/etc/hostname",
+             "aircraft/a/./p.html", "aircraft/a/gone.html", "aircraft/a/folder.html"]
+    entries = {f"craft{n}": {"key": "k", "files": [path]} for n, path in enumerate(files)}
+    (out / publish.MARKER).write_text(json.dumps({"aircraft": entries, "files": {path: 4 for path in files}}))
+    assert list(publish.previous_aircraft(out)) == ["craft0"]

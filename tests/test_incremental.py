@@ -140,23 +140,35 @@ def test_a_kept_aircraft_s_report_carries_the_new_build_s_date(tmp_path, monkeyp
     assert_same_as_plain_build(data, out, tmp_path)
 
 
-def test_a_report_whose_text_holds_a_stamp_placeholder_is_stamped_all_the_same(tmp_path):
-    """A review comment holding the placeholder a kept report's build date goes in (a hostile colleague's
-    text; from memory, no source): that report is rendered with the date itself, and the site is what a
-    plain build publishes."""
+def test_a_comment_holding_a_stamp_placeholder_is_refused_and_the_site_kept(tmp_path):
+    """A review comment holding the placeholder a kept report's build date goes in (a hostile colleague's text,
+    its NULs written as YAML escapes; from memory, no source): the loader refuses the control character with its
+    line, as it refuses one written raw, and the published site stays as it was."""
+    from registry.core.errors import DataError
     from registry.site.pages_print import STAMP
     data, out, cache = built_copy(tmp_path)
+    before = {path: path.read_bytes() for path in out.rglob("*.html")}
     reviews = data / "reviews.yaml"
     text = reviews.read_text(encoding="utf-8")
     hostile = "see " + STAMP["built"].replace("\x00", "\\u0000") + " here"
     text = re.sub(r"    comment: >-\n(      .*\n)+", lambda _: f'    comment: "{hostile}"\n', text, count=1)
     reviews.write_text(text, encoding="utf-8")
-    for _ in range(2):  # rendered, then kept
+    line = next(n for n, row in enumerate(text.splitlines(), 1) if hostile in row)
+    with pytest.raises(DataError) as refused:
         pipeline.build(data, out, cache_dir=cache, workers=1)
-        report = (out / "reports/qx-tcc.html").read_text(encoding="utf-8")
-        assert STAMP["built"] in report  # the comment, as written
-        assert "<dt>Build date</dt><dd>2026-12-02 00:00:00 UTC</dd>" in report
-    assert_same_as_plain_build(data, out, tmp_path)
+    assert f"reviews.yaml:{line}:" in str(refused.value.problems[0])
+    assert "found the control character U+0000 (written as an escape)" in str(refused.value.problems[0])
+    assert {path: path.read_bytes() for path in out.rglob("*.html")} == before
+
+
+def test_a_report_text_holding_a_placeholder_other_than_once_is_not_stamped():
+    """The guard behind kept reports (defence in depth now that registry text cannot hold a NUL): a report
+    whose text holds a placeholder twice, or not at all, is not stamped (`stamped` gives None) and is rendered
+    with the values instead (from memory, no source)."""
+    from registry.site.pages_print import STAMP, stamped
+    once = "".join(STAMP.values())
+    for text in (once + STAMP["built"], once.replace(STAMP["as_of"], "")):
+        assert stamped(None, text) is None  # decided before the build's values are asked for
 
 
 def test_removed_aircraft_pages_disappear(tmp_path):

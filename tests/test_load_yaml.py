@@ -194,3 +194,14 @@ def test_deep_block_nesting_is_refused_where_it_passes_the_limit(tmp_path):
     assert messages(tmp_path, deep) == [
         f"doc.yaml:{MAX_DEPTH + 1}:{2 * MAX_DEPTH + 1}: error: (file): found lists and mappings nested more than "
         f"{MAX_DEPTH} deep, expected at most {MAX_DEPTH} levels"]
+
+
+def test_control_characters_written_as_escapes_are_refused_like_raw_ones(tmp_path):
+    # YAML 1.2.2 §5.1 (c-printable): a stream holds printable characters only; PyYAML's reader enforces that on the
+    # raw file, and double-quoted escapes (§5.7, escaped characters) could still put a NUL or an ESC into a value:
+    # refused the same way, the rest of the file read on
+    assert messages(tmp_path, 'a: "ok\\u0000"\nb: "\\e[31mred"\nc: "tab\\there, line\\nbreak"\n', read_on=True) == [
+        "doc.yaml:1:4: error: a: found the control character U+0000 (written as an escape), expected printable text",
+        "doc.yaml:2:4: error: b: found the control character U+001B (written as an escape), expected printable text"]
+    doc, _ = read(tmp_path, 'c: "tab\\there, line\\nbreak"\n')
+    assert doc.data == {"c": "tab\there, line\nbreak"}

@@ -33,6 +33,9 @@ _YAML_TAG = "tag:yaml.org,2002:"
 _SCALAR_TAGS = {_YAML_TAG + name for name in ("str", "int", "float", "bool", "null")}
 _TIMESTAMP = _YAML_TAG + "timestamp"
 _MERGE = _YAML_TAG + "merge"
+_NON_PRINTABLE = yaml.reader.Reader.NON_PRINTABLE
+"""What a YAML file may not hold as it is (PyYAML's reader refuses it): refused in text written as an escape
+("\\u0000", "\\e") too, so no control character reaches the pages or the exports."""
 _LINE_BREAKS = "\n\r\x85\u2028\u2029"
 
 # What PyYAML's parse contexts mean, in words a technician knows.
@@ -307,6 +310,11 @@ class _Builder:
             return None
         if isinstance(value, float) and not math.isfinite(value):
             self.problems.append(Problem.at(here, format_path(parts), node.value, "a finite number"))
+            return None
+        control = _NON_PRINTABLE.search(value) if type(value) is str else None
+        if control:
+            self.problems.append(Problem.at(here, format_path(parts), f"the control character "
+                                            f"U+{ord(control.group()):04X} (written as an escape)", "printable text"))
             return None
         return value
 

@@ -147,6 +147,31 @@ def test_wrong_types_with_correct_checksums_give_the_plain_build(cache, tmp_path
     assert_every_entry_reads_back(cache)
 
 
+def test_a_cached_document_holding_what_its_schema_refuses_is_a_miss(cache, tmp_path, reference):
+    # a files entry of the right type, correctly signed, whose data holds a date, a complex number or a text
+    # where the schema wants a number (a document's data is plain values of any type): each is read back,
+    # checked against its schema again, refused and the file parsed afresh (common practice for untrusted
+    # caches, no source), so the site is the plain build's
+    import datetime
+    from registry.load.fleet import Parsed
+
+    forged = 0
+    for path in entries(cache, "files"):
+        doc, problems = codec.loads(store.checked_payload(path.stem, path.read_bytes()), Parsed)
+        if doc is None or not isinstance(doc.data, dict):
+            continue
+        for item, bad in zip(doc.data.get("cables", ()), (datetime.date(2026, 1, 1), complex(0.7, 0.1), "0.66")):
+            item["velocity_factor"] = bad
+        for item in doc.data.get("models", ())[:1]:
+            item["geometry"] = {1: 2.0}  # a key that is not a text
+        if "cables" in doc.data or "models" in doc.data:
+            path.write_bytes(signed(path.stem, codec.dumps((doc, problems), Parsed)))
+            forged += 1
+    assert forged == 2
+    assert rebuild(cache, tmp_path) == reference
+    assert_every_entry_reads_back(cache)
+
+
 def test_a_cached_document_whose_positions_are_garbage_still_builds(cache, tmp_path, reference):
     # a files entry of the right type, correctly signed, whose index of positions is rows of another
     # shape: the rows are left out, the objects take the file's first line, and the build runs through

@@ -63,7 +63,27 @@ def parse(file: Path, kind: str, cache: DiskCache) -> Parsed:
 def parse_many(files: list[Path], kind: str, cache: DiskCache, workers: int = 1) -> list[Parsed]:
     """`parse` for each file, in order; files not in the cache are shared out over `workers` processes."""
     keys = [_file_key(kind, file) if cache.folder is not None else None for file in files]
-    return cached_map(lambda file: _parse_fresh(file, kind), files, keys, cache, workers)
+    return cached_map(lambda file: _parse_fresh(file, kind), files, keys, _Rechecked(cache, kind), workers)
+
+
+class _Rechecked:
+    """The parsed files' cache, each document without problems checked against its schema again as it is
+    read back: a document's data is plain values of any type (`YamlDoc.data`), so an entry forged with a
+    correct checksum could hold a date or a text where the schema wants a number, which the builders would
+    stumble on. Such an entry is a miss (removed, the file parsed again), as a damaged one is."""
+
+    def __init__(self, cache: DiskCache, kind: str):
+        self.cache, self.kind = cache, kind
+
+    def get(self, key: str) -> Parsed | None:
+        found = self.cache.get(key)
+        if found is not None and found[0] is not None and not found[1] and not schemacheck.passes(found[0], self.kind):
+            self.cache.discard(key)
+            return None
+        return found
+
+    def put(self, key: str, value: Parsed) -> None:
+        self.cache.put(key, value)
 
 
 def _file_key(kind: str, file: Path) -> str | None:

@@ -113,6 +113,15 @@ def check(doc: YamlDoc, kind: str) -> list[Problem]:
     return problems
 
 
+def passes(doc: YamlDoc, kind: str) -> bool:
+    """Whether `doc` has no schema problem. A document read back from the cache may hold any values at all
+    (a forged entry), so any failure to check it counts as a problem."""
+    try:
+        return not check(doc, kind)
+    except Exception:  # noqa: BLE001 - whatever the values, the document is refused, never the build
+        return False
+
+
 def suggest(word: str, choices: Iterable[str]) -> str:
     """` (did you mean 'x'?)` for the closest choice, ignoring case, or nothing."""
     by_folded = {choice.casefold(): choice for choice in choices}

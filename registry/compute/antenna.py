@@ -145,7 +145,7 @@ class WireImpedance(NamedTuple):
     z: np.ndarray | None
     resonance_mhz: float
     r_design: float
-    slopes: tuple
+    slopes: tuple[tuple[complex, complex], ...]
     segments: Figure | None
     reason: str = ""
 
@@ -160,28 +160,7 @@ def impedance_sweep(model: AntennaModel, freqs_mhz: tuple[float, ...], design_mh
     return _impedance(kind, geometry, freqs_mhz, float(design_mhz), centres_mhz)
 
 
-class ImpedanceEntry(NamedTuple):
-    """A `WireImpedance` as the cache keeps it: the slopes as a complex array (n, 2)."""
-
-    z: np.ndarray | None
-    resonance_mhz: float
-    r_design: float
-    slopes: np.ndarray
-    segments: Figure | None
-    reason: str
-
-
-def _impedance_entry(found: WireImpedance) -> ImpedanceEntry:
-    return ImpedanceEntry(found.z, found.resonance_mhz, found.r_design,
-                          np.array(found.slopes, dtype=complex).reshape(-1, 2), found.segments, found.reason)
-
-
-def _from_impedance_entry(entry: ImpedanceEntry) -> WireImpedance:
-    return WireImpedance(entry.z, entry.resonance_mhz, entry.r_design,
-                         tuple((complex(z), complex(slope)) for z, slope in entry.slopes), entry.segments, entry.reason)
-
-
-@kept("impedances", ImpedanceEntry, _impedance_entry, _from_impedance_entry)
+@kept("impedances", WireImpedance)
 def _impedance(kind: str, geometry: tuple, freqs_mhz: tuple[float, ...], design_mhz: float,
                centres_mhz: tuple[float, ...]) -> WireImpedance:
     steps = [1e-3 * centre for centre in centres_mhz]

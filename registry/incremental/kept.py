@@ -28,12 +28,11 @@ def keep_in(cache_dir: Path | None) -> None:
     _FOLDER[0] = cache_dir
 
 
-def kept(namespace: str, kind: Any, to_entry: Callable[[Any], Any] | None = None,
-         from_entry: Callable[[Any], Any] | None = None) -> Callable[[Callable[..., T]], Callable[..., T]]:
+def kept(namespace: str, kind: Any) -> Callable[[Callable[..., T]], Callable[..., T]]:
     """Decorator for a pure function of hashable arguments with exact reprs: its answers memoised in
-    this process and kept in the cache folder (`keep_in`) as entries of type `kind`, turned into one by
-    `to_entry` and back by `from_entry` when the answer's own type cannot be an entry. An exception is
-    not kept: the function runs again next time, as lru_cache does."""
+    this process and kept in the cache folder (`keep_in`) as entries of type `kind` (the answer's own
+    type, which the cache codec must be able to hold: `codec.py`). An exception is not kept: the function
+    runs again next time, as lru_cache does."""
     def wrap(function: Callable[..., T]) -> Callable[..., T]:
         @functools.lru_cache(maxsize=None)
         def memo(*args: Any) -> T:
@@ -41,9 +40,9 @@ def kept(namespace: str, kind: Any, to_entry: Callable[[Any], Any] | None = None
             key = key_of(namespace, repr(args))
             found = store.get(key)
             if found is not None:
-                return from_entry(found) if from_entry else found
+                return found
             answer = function(*args)
-            store.put(key, to_entry(answer) if to_entry else answer)
+            store.put(key, answer)
             return answer
         return functools.wraps(function)(memo)
     return wrap

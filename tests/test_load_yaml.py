@@ -205,3 +205,11 @@ def test_control_characters_written_as_escapes_are_refused_like_raw_ones(tmp_pat
         "doc.yaml:2:4: error: b: found the control character U+001B (written as an escape), expected printable text"]
     doc, _ = read(tmp_path, 'c: "tab\\there, line\\nbreak"\n')
     assert doc.data == {"c": "tab\there, line\nbreak"}
+
+
+def test_a_key_written_with_an_escaped_control_character_is_refused(tmp_path):
+    # the same rule for keys as for values (YAML 1.2.2 §5.1, c-printable): the member is left out, the rest read on
+    assert messages(tmp_path, 'a: 1\n"b\\x07": 2\nc: 3\n', read_on=True) == [
+        "doc.yaml:2:1: error: (file): found the control character U+0007 (written as an escape), expected printable text"]
+    doc, _ = read(tmp_path, 'a: 1\n"b\\x07": 2\nc: 3\n')
+    assert doc.data == {"a": 1, "c": 3}

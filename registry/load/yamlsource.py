@@ -264,6 +264,8 @@ class _Builder:
                                                 "a plain name before the ':'"))
                 continue
             name = key_node.value
+            if self.printable(name, parts, key_src) is None:
+                continue
             if name in result:
                 if not merged:  # keys written in the mapping win over keys merged in with <<
                     self.problems.append(Problem.at(
@@ -311,12 +313,17 @@ class _Builder:
         if isinstance(value, float) and not math.isfinite(value):
             self.problems.append(Problem.at(here, format_path(parts), node.value, "a finite number"))
             return None
-        control = _NON_PRINTABLE.search(value) if type(value) is str else None
-        if control:
-            self.problems.append(Problem.at(here, format_path(parts), f"the control character "
-                                            f"U+{ord(control.group()):04X} (written as an escape)", "printable text"))
-            return None
-        return value
+        return self.printable(value, parts, here) if type(value) is str else value
+
+    def printable(self, text: str, parts: tuple[str | int, ...], here: Src) -> str | None:
+        """`text`, or None (and a problem) when it holds a character the file itself may not (`_NON_PRINTABLE`):
+        in a value or a key written as an escape."""
+        control = _NON_PRINTABLE.search(text)
+        if control is None:
+            return text
+        self.problems.append(Problem.at(here, format_path(parts), f"the control character "
+                                        f"U+{ord(control.group()):04X} (written as an escape)", "printable text"))
+        return None
 
 
 def _short_tag(tag: str) -> str:

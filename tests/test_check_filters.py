@@ -6,7 +6,11 @@ from __future__ import annotations
 import csv
 import io
 import json
+import os
 import re
+import subprocess
+import sys
+from pathlib import Path
 
 import pytest
 
@@ -94,10 +98,6 @@ def test_the_command_line_entry_delivers_all_its_output_and_exit_code(demo_data,
     # reach a file (block-buffered: one aircraft's findings fit in the buffer, so nothing is written before
     # the end) whole, with main's exit code (common practice, no source: a CLI's output and status are its
     # contract)
-    import os
-    import subprocess
-    import sys
-    from pathlib import Path
     args = [str(demo_data), "--format", "json", "--no-cache", "--aircraft", "QX-TCC"]
     code, expected = run(capsys, *args)
     assert 0 < len(expected.encode()) < io.DEFAULT_BUFFER_SIZE

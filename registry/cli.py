@@ -168,8 +168,7 @@ def run(args: argparse.Namespace) -> int:
         return EXIT_OK
     data_dir = Path(args.data_dir)
     if args.command == "check":
-        cache_dir = None if args.no_cache else Path(args.cache or os.environ.get("AERIALBOOK_CACHE_DIR")
-                                                   or ".aerialbook-cache")
+        cache_dir = cache_folder(args, ".aerialbook-cache")
         # the findings of unchanged aircraft come from the cache; --details computes the figures of the
         # aircraft it prints only (`run_check`)
         return run_check(args, pipeline.run(data_dir, cache_dir=cache_dir, lazy=True))
@@ -181,8 +180,7 @@ def run(args: argparse.Namespace) -> int:
                                       as_of=pipeline.as_of_date(data_dir))
         out = Path(args.out)
         naive = os.environ.get("AERIALBOOK_NAIVE") == "1"  # the benchmark's baseline: no reuse at all
-        default_cache = os.environ.get("AERIALBOOK_CACHE_DIR") or out.parent / ".aerialbook-cache"
-        cache_dir = None if args.no_cache or naive else Path(args.cache or default_cache)
+        cache_dir = None if naive else cache_folder(args, out.parent / ".aerialbook-cache")
         from registry.core.progress import Progress
         out_dir, written = pipeline.build(data_dir, out, baseline=baseline, cache_dir=cache_dir, naive=naive,
                                           progress=Progress(sys.stderr))
@@ -275,8 +273,7 @@ def run_history(args: argparse.Namespace) -> int:
     except ValueError:
         print(terminal_text(f"error: history: --on: found {args.on!r}, expected a date YYYY-MM-DD"), file=sys.stderr)
         return EXIT_DATA
-    cache_dir = None if args.no_cache else Path(args.cache or os.environ.get("AERIALBOOK_CACHE_DIR")
-                                               or ".aerialbook-cache")
+    cache_dir = cache_folder(args, ".aerialbook-cache")
     item = history.aircraft_timeline(Path(args.data_dir), args.aircraft,
                                      with_findings=not args.no_findings and day is None, cache_dir=cache_dir)
     if args.format == "json":
@@ -284,6 +281,18 @@ def run_history(args: argparse.Namespace) -> int:
     else:
         sys.stdout.write(terminal_text(history_text.on_text(item, day) if day else history_text.as_text(item)))
     return EXIT_OK
+
+
+def cache_folder(args: argparse.Namespace, default: Path | str) -> Path | None:
+    """The cache folder a command uses (`--cache`, `$AERIALBOOK_CACHE_DIR`, else `default`; None with
+    `--no-cache`). When its entries cannot be signed with a key kept between runs, a note says why."""
+    if args.no_cache:
+        return None
+    from registry.incremental import signing_key
+    note = signing_key().note
+    if note:
+        print(terminal_text(f"note: {note}"), file=sys.stderr)
+    return Path(args.cache or os.environ.get("AERIALBOOK_CACHE_DIR") or default)
 
 
 def run_registry(*args, **kwargs):

@@ -155,8 +155,8 @@ def test_a_shallow_clone_is_marked_cut(scripted, tmp_path):
 
 
 def test_the_cache_gives_the_same_history_and_a_forged_entry_is_read_again(scripted, tmp_path):
-    """Each file content's reading is kept by blob id; an entry of the wrong shape (forged with a valid
-    checksum, since whoever writes the folder can compute it) is a miss, never a wrong timeline."""
+    """Each file content's reading is kept by blob id; an entry of the wrong shape (even one signed
+    with the user's key) is a miss, never a wrong timeline."""
     import json
 
     from registry.incremental import DiskCache

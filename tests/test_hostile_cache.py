@@ -60,7 +60,8 @@ def entries(cache: Path, namespace: str) -> list[Path]:
 
 
 def signed(key: str, payload: bytes) -> bytes:
-    """An entry with a correct checksum: what someone who knows the format could write."""
+    """An entry signed with this user's key (`signing.py`): the checks behind the signature must still
+    refuse what it holds (a key can leak; the build's own bugs can write a bad entry)."""
     return store.MAGIC + store.checksum(key, payload) + b"\n" + payload
 
 

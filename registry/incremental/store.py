@@ -5,21 +5,22 @@ an aircraft's computed figures, a drawn plot. A key is the SHA-256 of the tool (
 templates and libraries) and the inputs, so new code or any changed input simply misses.
 
 The folder is treated as untrusted input: whoever can write into it must not be able to run code in the
-build, crash it or exhaust its memory. An entry is
+build, crash it, exhaust its memory or put a figure of their own into the site. An entry is
 
-    aerialbook-cache 1 <SHA-256 of the key and the payload, hex>\n<payload>
+    aerialbook-cache 2 <HMAC-SHA-256 of the key and the payload, hex>\n<payload>
 
 where the payload is tagged JSON (`codec.py`: no pickle, nothing that can run code). Reading an entry
 refuses anything that is not a regular file (a symlink, a device, a pipe: never opened), anything over
-`MAX_ENTRY_BYTES`, a checksum that does not match (damage, or an entry copied under another key) and a
-payload that is not of the type the caller expects (`DiskCache(root, namespace, kind)`). Any such
-entry is a miss: it is removed and computed again, so a damaged cache gives the same output as none.
+`MAX_ENTRY_BYTES`, a checksum that does not match (damage, an entry copied under another key, or one
+signed without this user's key: `signing.py`) and a payload that is not of the type the caller expects
+(`DiskCache(root, namespace, kind)`). Any such entry is a miss: it is removed and computed again, so a damaged cache gives the same output as none.
 Entries are written whole (temporary file, then rename), so an interrupted or concurrent build never
 reads half an entry.
 """
 from __future__ import annotations
 
 import hashlib
+import hmac
 import os
 import re
 import shutil
@@ -30,8 +31,10 @@ from typing import Any
 
 from registry.incremental import codec
 from registry.incremental.keys import code_key
+from registry.incremental.signing import signing_key
 
-MAGIC = b"aerialbook-cache 1 "
+MAGIC = b"aerialbook-cache 2 "
+"""Version 2: the checksum is keyed (HMAC); version 1's was a plain SHA-256 anyone could compute."""
 SUFFIX = ".entry"
 MAX_ENTRY_BYTES = 16 * 1024 * 1024
 """The largest entry read back: 16 MiB, a hundred times what an aircraft of 30 installations takes
@@ -71,6 +74,8 @@ class DiskCache:
     def __init__(self, root: Path | None, namespace: str, kind: Any, also: tuple[type, ...] = ()):
         self.folder = Path(root) / namespace if root is not None else None
         self.kind, self.also = kind, also
+        if root is not None:
+            signing_key()  # found here, in the process that starts the work: workers forked later inherit it
 
     def path(self, key: str) -> Path:
         return self.folder / key[:2] / f"{key}{SUFFIX}"
@@ -102,8 +107,9 @@ class DiskCache:
 
 
 def checksum(key: str, payload: bytes) -> bytes:
-    """SHA-256 (hex) of the key and the payload: detects a damaged entry and one moved to another key."""
-    digest = hashlib.sha256(key.encode("utf-8") + b"\0")
+    """HMAC-SHA-256 (hex) of the key and the payload under this user's signing key (`signing.py`): detects
+    a damaged entry, one moved to another key, and one written by anyone who does not hold the key."""
+    digest = hmac.new(signing_key().secret, key.encode("utf-8") + b"\0", hashlib.sha256)
     digest.update(payload)
     return digest.hexdigest().encode("ascii")
 

@@ -61,14 +61,15 @@ def resolve(data_dir: Path, name: str) -> tuple[str, str, str]:
 def aircraft_timeline(data_dir: Path, name: str, with_findings: bool, cache_dir: Path | None) -> AircraftTimeline:
     """The aircraft's history; NoHistory when git cannot give one, UnknownAircraft when it has none."""
     aircraft_id, registration, path = resolve(data_dir, name)
-    fleet = timeline.fleet_history(data_dir, (path,), max_commits=timeline.MAX_CHANGES, shown=str(data_dir),
-                                   shared=SHARED if with_findings else ())
+    # the whole aircraft folder's log, so that a rename is seen; only this file's contents are read
+    fleet = timeline.fleet_history(data_dir, shown=str(data_dir), shared=SHARED if with_findings else (), only=path)
     if fleet.note and not fleet.aircraft:
         raise NoHistory(fleet.note)
-    history = fleet.aircraft.get(path)
+    history = next(iter(fleet.aircraft.values()), None)  # the file's, under its name now if it was renamed
     if history is None:
         raise UnknownAircraft(f"{name}: no aircraft of that id or registration in {data_dir / 'aircraft'}, "
                               f"and no file {path} in its git history")
+    path = history.path
     findings = change_findings(data_dir, aircraft_id, path, history, cache_dir) if with_findings else None
     return AircraftTimeline(aircraft_id, registration, history, fleet.note, path in fleet.uncommitted, findings)
 
@@ -81,14 +82,34 @@ def change_findings(data_dir: Path, aircraft_id: str, path: str, history: timeli
         return [ChangeFindings(problem=checkout) for _ in history.changes]
     found = []
     with tempfile.TemporaryDirectory(prefix="aerialbook-history-") as temp:
-        for change in history.changes:
+        for change, after_path in zip(history.changes, paths_after(history, path)):
             day = change.commit.day
-            after = findings_at(checkout, change.commit.hash, path, day, Path(temp), cache_dir)
+            after = findings_at(checkout, change.commit.hash, after_path, day, Path(temp), cache_dir)
             before: dict | str = {}
             if change.kind != "added":  # an added file had no findings before
-                before = findings_at(checkout, change.commit.hash + "^", path, day, Path(temp), cache_dir)
+                before = findings_at(checkout, change.commit.hash + "^", change.renamed_from or after_path, day,
+                                     Path(temp), cache_dir)
+            if change.renamed_from and isinstance(before, dict):  # the same airframe: its findings under its new id
+                before = renamed(before, Path(change.renamed_from).stem, Path(after_path).stem)
             found.append(compared(before, after))
     return found
+
+
+def renamed(found: dict[str, tuple[str, str, str]], old_id: str, new_id: str) -> dict[str, tuple[str, str, str]]:
+    """Findings keyed as the aircraft's new id would have them (an aircraft id is its file's name, and a
+    finding's id starts with it), so that a rename alone makes none appear or clear."""
+    prefix = f"{old_id}/"
+    return {(f"{new_id}/{key[len(prefix):]}" if key.startswith(prefix) else key): row for key, row in found.items()}
+
+
+def paths_after(history: timeline.AircraftHistory, path: str) -> list[str]:
+    """The aircraft file's path after each change, oldest first: `path` back to its last rename, the name
+    it had before that further back."""
+    paths = []
+    for change in reversed(history.changes):
+        paths.append(path)
+        path = change.renamed_from or path
+    return paths[::-1]
 
 
 def compared(before: dict | str, after: dict | str) -> ChangeFindings:

@@ -15,7 +15,8 @@ from pathlib import Path
 import pytest
 
 from registry import cli
-from registry.load.history import fitted_on, fleet_history
+from registry.load import git
+from registry.load.history import fitted_on, fleet_history, parse_log
 from registry.site import render
 
 from tests.test_render import BUILD, small_discrepancies, small_fleet, small_results
@@ -24,9 +25,11 @@ HOSTILE = '<script>alert("x")</script>'
 
 
 def aircraft_text(antenna: str = "TCA-120-BLD", cable: str = "RG-400", positions: tuple[str, ...] = ("VHF1", "VHF2"),
-                  mods: tuple[str, ...] = ("MOD-1",)) -> str:
-    """A minimal aircraft file (history reads it without validating it)."""
-    lines = ["id: qx-tqa", "registration: QX-TQA", "airframe: tq-20", "modifications:"]
+                  mods: tuple[str, ...] = ("MOD-1",), ident: str = "qx-tqa", serial: str = "") -> str:
+    """A minimal aircraft file (history reads it without validating it); no serial number unless given."""
+    lines = [f"id: {ident}", f"registration: {ident.upper()}", "airframe: tq-20"]
+    lines += [f"serial: '{serial}'"] if serial else []
+    lines.append("modifications:")
     lines += [f"  - {{ref: {ref}, date: 2026-01-01, summary: x}}" for ref in mods]
     lines.append("installations:")
     for position in positions:
@@ -170,3 +173,52 @@ def test_the_cache_gives_the_same_history_and_a_forged_entry_is_read_again(scrip
     for entry in entries:
         store.put(entry.stem, json.dumps([{"VHF1": [["antenna", 5]]}, [], ""]))
     assert fleet_history(scripted, cache_root=cache) == plain
+
+
+def renames_git_found(repo: Path) -> list[tuple[str, str]]:
+    """(old, new) of every rename git reports in the aircraft folder's log: the tests below must not pass
+    because git saw no rename at all."""
+    commits, touched, _ = parse_log(git.first_parent_log(repo, ["aircraft/"], 100), "")
+    return [(item.source, item.path) for commit in commits for item in touched[commit.hash] if item.status == "R"]
+
+
+def test_a_renamed_file_keeps_its_history_when_it_names_the_same_serial(tmp_path, capsys):
+    # an airframe is its manufacturer's serial number: a re-registration changes the marks (and here the
+    # file's name), not the serial (common practice, no source)
+    repo = tmp_path / "registry"
+    repo.mkdir()
+    commit(repo, "2026-03-01T09:00:00+00:00", "Delivery", {"aircraft/qx-tqa.yaml": aircraft_text(serial="2000101")})
+    commit(repo, "2026-05-10T12:00:00+00:00", "MOD-2: new blades",
+           {"aircraft/qx-tqa.yaml": aircraft_text(antenna="TCA-122-LP", mods=("MOD-1", "MOD-2"), serial="2000101")})
+    commit(repo, "2026-07-01T08:00:00+00:00", "Re-registered QX-TQZ",
+           {"aircraft/qx-tqa.yaml": None, "aircraft/qx-tqz.yaml": aircraft_text(
+               antenna="TCA-122-LP", mods=("MOD-1", "MOD-2"), ident="qx-tqz", serial="2000101")})
+    assert renames_git_found(repo) == [("aircraft/qx-tqa.yaml", "aircraft/qx-tqz.yaml")]
+    found = fleet_history(repo).aircraft
+    assert list(found) == ["aircraft/qx-tqz.yaml"]
+    history = found["aircraft/qx-tqz.yaml"]
+    assert [change.kind for change in history.changes] == ["added", "changed", "renamed"]
+    assert history.changes[2].renamed_from == "aircraft/qx-tqa.yaml" and history.changes[2].positions == ()
+    assert antenna_on(history, date(2026, 4, 1)) == "TCA-120-BLD"  # fitted under its old marks
+    assert [(span.start, span.end) for span in history.spans if span.position == "VHF1"] == [(0, 1), (1, None)]
+    assert cli.main(["history", "QX-TQZ", str(repo), "--no-findings"]) == 0
+    out = capsys.readouterr().out
+    assert "file renamed from aircraft/qx-tqa.yaml (the same serial number)" in out and "Delivery" in out
+    assert cli.main(["history", "QX-TQA", str(repo), "--no-findings"]) == 0  # asked by its old marks
+    assert capsys.readouterr().out.splitlines()[0].startswith("QX-TQA (qx-tqa): aircraft/qx-tqz.yaml, 3 changes")
+
+
+@pytest.mark.parametrize("serials", [("2000101", "2000102"), ("", "")])
+def test_files_git_finds_alike_are_not_joined_without_the_same_serial(tmp_path, serials):
+    # one aircraft leaves and another of the same standard joins in one commit: git calls that a rename,
+    # but two airframes' histories must stay apart
+    repo = tmp_path / "registry"
+    repo.mkdir()
+    commit(repo, "2026-03-01T09:00:00+00:00", "Delivery", {"aircraft/qx-tqa.yaml": aircraft_text(serial=serials[0])})
+    commit(repo, "2026-07-01T08:00:00+00:00", "QX-TQA out, QX-TQB in",
+           {"aircraft/qx-tqa.yaml": None, "aircraft/qx-tqb.yaml": aircraft_text(ident="qx-tqb", serial=serials[1])})
+    assert renames_git_found(repo) == [("aircraft/qx-tqa.yaml", "aircraft/qx-tqb.yaml")]
+    found = fleet_history(repo).aircraft
+    assert [change.kind for change in found["aircraft/qx-tqa.yaml"].changes] == ["added", "removed"]
+    assert [change.kind for change in found["aircraft/qx-tqb.yaml"].changes] == ["added"]
+    assert found["aircraft/qx-tqb.yaml"].changes[0].commit.subject == "QX-TQA out, QX-TQB in"

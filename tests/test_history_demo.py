@@ -115,3 +115,33 @@ def test_a_modifications_file_change_is_a_change_of_the_aircraft_history(tmp_pat
     assert last["kind"] == "shared" and last["subject"] == "MOD-2019-011 embodied on QX-TJB"
     assert {row[0] for row in last["findings"]["appeared"]} & {"qx-tjb/VHF1/embodiment",
                                                                "qx-tjb/MOD-2019-011/embodiment-record"}
+
+
+def test_a_re_registered_aircraft_keeps_its_history_and_its_findings(tmp_path, capsys):
+    """QX-TJB re-registered QX-TJZ: its file renamed (same serial number), the modifications and reviews
+    that name it updated in the same commit. Its history runs on through the rename, each earlier change's
+    findings are still compared (at the file's old name), and the rename itself makes no finding appear or
+    clear (the findings' ids follow the aircraft's id)."""
+    from tests.test_history import commit
+
+    repo = tmp_path / "registry"
+    demo_history.make(DEMO, repo)
+    aircraft = (repo / "aircraft" / "qx-tjb.yaml").read_text(encoding="utf-8")
+    mods = (repo / "modifications.yaml").read_text(encoding="utf-8")
+    reviews = (repo / "reviews.yaml").read_text(encoding="utf-8")
+    commit(repo, "2026-10-01T08:00:00+00:00", "QX-TJB re-registered QX-TJZ", {
+        "aircraft/qx-tjb.yaml": None,
+        "aircraft/qx-tjz.yaml": aircraft.replace("id: qx-tjb", "id: qx-tjz").replace("registration: QX-TJB",
+                                                                                  "registration: QX-TJZ"),
+        "modifications.yaml": mods.replace("registration: QX-TJB", "registration: QX-TJZ"),
+        "reviews.yaml": reviews.replace("qx-tjb/", "qx-tjz/")})
+    assert cli.main(["history", "QX-TJZ", str(repo), "--format", "json", "--cache", str(tmp_path / "cache")]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["file"] == "aircraft/qx-tjz.yaml"
+    assert [change["kind"] for change in doc["changes"]] == ["added", "changed", "changed", "renamed"]
+    opened, modified, fixed, rename = doc["changes"]
+    assert rename["renamed_from"] == "aircraft/qx-tjb.yaml" and rename["positions"] == {}
+    assert rename["findings"] == {"appeared": [], "cleared": [], "problem": ""}
+    assert "qx-tjb/SAT/cable-frequency" in {row[0] for row in modified["findings"]["appeared"]}
+    assert "qx-tjb/SAT/cable-frequency" in {row[0] for row in fixed["findings"]["cleared"]}
+    assert [span["fitted"]["cable"] for span in doc["positions"]["SAT"]] == ["RG-58", "TCX-LL7"]

@@ -81,10 +81,11 @@ def checkout_of(data_dir: Path, shown: str = "") -> Checkout | str:
 def first_parent_log(data_dir: Path, paths: list[str], limit: int) -> str | None:
     """`git log` of the mainline (first parents, merges compared with their first parent) for `paths`
     inside `data_dir`: per commit a line `\\x1e<hash>\\x1f<commit time>\\x1f<subject>`, then the raw changes
-    (`:mode mode blob blob status\\tpath`, blob ids in full, paths from the repository's top). Newest first,
-    at most `limit` commits; None when git fails."""
+    (`:mode mode blob blob status\\tpath`, or `...Rnnn\\told path\\tnew path` for a file git finds renamed
+    inside `paths`; blob ids in full, paths from the repository's top). Newest first, at most `limit`
+    commits; None when git fails."""
     done = git(data_dir, "log", "--first-parent", "--diff-merges=first-parent", "--raw", "--no-abbrev",
-               "--no-renames", f"--max-count={limit}", "--format=%x1e%H%x1f%ct%x1f%s", "--", *paths, timeout=120)
+               "--find-renames", f"--max-count={limit}", "--format=%x1e%H%x1f%ct%x1f%s", "--", *paths, timeout=120)
     if done is None or done.returncode != 0:
         return None
     return done.stdout.decode(errors="replace")

@@ -53,6 +53,7 @@ def notes(item: AircraftTimeline) -> list[str]:
 def change_line(change: Change) -> str:
     """What a change did, in one line."""
     parts = {"added": ["file added"], "removed": ["file removed: the aircraft left the register"],
+             "renamed": [f"file renamed from {change.renamed_from} (the same serial number)"],
              "shared": [f"only files it depends on changed ({', '.join(change.files)}): nothing fitted changed"],
              "unreadable": [f"file unreadable at this commit: {change.problem}"]}.get(change.kind, [])
     if change.mods_added:
@@ -60,6 +61,8 @@ def change_line(change: Change) -> str:
     if change.kind == "changed":
         parts.append("; ".join(f"{position} {what}" for position, what in change.positions)
                      or "no fitted change (measurements, notes or other fields)")
+    elif change.kind == "renamed" and change.positions:
+        parts.append("; ".join(f"{position} {what}" for position, what in change.positions))
     elif change.kind == "added":
         parts.append(f"{len(change.positions)} positions")
     return "; ".join(parts)
@@ -154,6 +157,8 @@ def as_json(item: AircraftTimeline, day: date | None = None) -> str:
     for index, change in enumerate(history.changes):
         entry = {**commit_json(change), "modifications_added": list(change.mods_added),
                  "positions": dict(change.positions), "problem": change.problem}
+        if change.renamed_from:
+            entry["renamed_from"] = change.renamed_from
         if item.findings is not None:
             found = item.findings[index]
             entry["findings"] = {"appeared": [list(f) for f in found.appeared],

@@ -117,7 +117,8 @@ def test_a_key_that_cannot_be_kept_or_is_too_short_signs_for_this_run_only(fresh
 
     with monkeypatch.context() as patch:
         patch.setattr(signing.tempfile, "mkstemp", full_disk)
-        assert signing.find_key(None).note.endswith(f"cannot make {fresh_key} (No space left on device)")
+        note = signing.find_key(None).note
+        assert f"cannot make {fresh_key} (No space left on device); to keep one, set $XDG_CONFIG_HOME" in note
     (tmp_path / "a file").write_text("a file where the config folder belongs")
     monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "a file"))
     assert signing.find_key(None).note.endswith("aerialbook/cache-key cannot be read (Not a directory)")

@@ -30,6 +30,7 @@ from typing import NamedTuple
 KEY_ENV = "AERIALBOOK_CACHE_KEY"
 MIN_ENV_KEY_CHARS = 32
 _KEY_TEXT = re.compile(rb"[0-9a-f]{64}\n?")
+_KEEP_ONE = f"; to keep one, set $XDG_CONFIG_HOME to a folder of yours or ${KEY_ENV} to a secret"
 
 
 class Key(NamedTuple):
@@ -60,7 +61,7 @@ def find_key(from_env: str | None) -> Key:
     try:
         path = key_file()
     except RuntimeError:  # no home folder to be found
-        return _this_run_only("no home folder to keep the key in (set $XDG_CONFIG_HOME)")
+        return _this_run_only(f"no home folder to keep the key in{_KEEP_ONE}")
     found = _read_key(path)
     if found is None:
         problem = _make_key(path)
@@ -105,7 +106,7 @@ def _make_key(path: Path) -> str:
         path.parent.mkdir(mode=0o700, parents=True, exist_ok=True)
         handle, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-")  # mode 0600
     except OSError as error:
-        return f"cannot make {path} ({error.strerror})"
+        return f"cannot make {path} ({error.strerror}){_KEEP_ONE}"
     try:
         with os.fdopen(handle, "w", encoding="ascii") as out:
             out.write(secrets.token_hex(32) + "\n")
@@ -113,7 +114,7 @@ def _make_key(path: Path) -> str:
     except FileExistsError:
         pass
     except OSError as error:
-        return f"cannot make {path} ({error.strerror})"
+        return f"cannot make {path} ({error.strerror}){_KEEP_ONE}"
     finally:
         Path(tmp).unlink(missing_ok=True)
     return ""

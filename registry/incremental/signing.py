@@ -14,7 +14,7 @@ signed with HMAC-SHA-256 (RFC 2104; FIPS 198-1) under a secret key that never li
 A key file that someone else could have written or read (another owner, a mode other than 0600 or stricter,
 a link, not a key) is not used, and neither is a key that cannot be made (a read-only home): the build then
 signs with a key of its own process only, so it trusts what it wrote itself during this run and nothing
-from an earlier one (slower, never wrong), and `key_note` says why.
+from an earlier one (slower, never wrong), and the key's `note` says why.
 """
 from __future__ import annotations
 

@@ -13,7 +13,8 @@ where the payload is tagged JSON (`codec.py`: no pickle, nothing that can run co
 refuses anything that is not a regular file (a symlink, a device, a pipe: never opened), anything over
 `MAX_ENTRY_BYTES`, a checksum that does not match (damage, an entry copied under another key, or one
 signed without this user's key: `signing.py`) and a payload that is not of the type the caller expects
-(`DiskCache(root, namespace, kind)`). Any such entry is a miss: it is removed and computed again, so a damaged cache gives the same output as none.
+(`DiskCache(root, namespace, kind)`). Any such entry is a miss: it is removed and computed again, so a
+damaged cache gives the same output as none.
 Entries are written whole (temporary file, then rename), so an interrupted or concurrent build never
 reads half an entry.
 """

@@ -57,9 +57,8 @@ def from_json(text: str | None) -> Parsed | None:
         fitted, mods, problem, serial = json.loads(text) if text is not None else (None, None, None, None)
     except (ValueError, TypeError):
         return None
-    if not isinstance(problem, str) or not isinstance(mods, list) or not all(isinstance(m, str) for m in mods):
-        return None
-    if not isinstance(serial, str):
+    if not isinstance(problem, str) or not isinstance(serial, str) or not isinstance(mods, list) \
+            or not all(isinstance(m, str) for m in mods):
         return None
     if fitted is None:
         return None, tuple(mods), problem, serial

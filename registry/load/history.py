@@ -127,13 +127,13 @@ def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_c
     whole = len(commits) <= max_commits
     commits = commits[:max_commits]
     renames = [item for commit in commits for item in touched[commit.hash] if item.status == "R"]
-    serials = read_contents(checkout.top, {blob for item in renames for blob in (item.blob, item.source_blob)},
-                            cache_root)
+    readings = read_contents(checkout.top, {blob for item in renames for blob in (item.blob, item.source_blob)},
+                             cache_root)
     order = {commit.hash: n for n, commit in enumerate(reversed(commits))}
     by_file: dict[str, list[tuple[Commit, str, str, str]]] = defaultdict(list)
     renamed_to: dict[str, str] = {}
     for commit in reversed(commits):  # oldest first
-        moves = [step for item in touched[commit.hash] for step in same_airframe(item, serials)]
+        moves = [step for item in touched[commit.hash] for step in same_airframe(item, readings)]
         mine = {item.path for item in moves} | {item.source for item in moves}
         for path, steps in by_file.items():
             if others[commit.hash] and path not in mine and steps[-1][1] != "D":
@@ -149,7 +149,7 @@ def fleet_history(data_dir: Path, paths: tuple[str, ...] = ("aircraft/",), max_c
         only = renamed_to[only]
     kept = {path: steps[-max_changes:] for path, steps in by_file.items() if not only or path == only}
     wanted = {blob for steps in kept.values() for _, status, blob, _ in steps if status != "D"}
-    parsed = serials | read_contents(checkout.top, wanted - set(serials), cache_root)
+    parsed = readings | read_contents(checkout.top, wanted - set(readings), cache_root)
     histories = {}
     for path, steps in sorted(kept.items()):
         cut = checkout.shallow or len(steps) < len(by_file[path]) or (not whole and steps[0][1] != "A")

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import hashlib
 import os
-import shutil
 import stat
 import subprocess
 import sys
@@ -21,13 +20,10 @@ import pytest
 from registry import pipeline
 from registry.incremental import DiskCache, signing, store, version_folder
 
+from tests.test_hostile_cache import tree
+
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "fleet_data"
-
-
-def tree(folder: Path) -> dict[str, bytes]:
-    return {str(p.relative_to(folder)): p.read_bytes() for p in sorted(folder.rglob("*"))
-            if p.is_file() and p.name != ".aerialbook-site"}
 
 
 def plain_checksum(key: str, payload: bytes) -> bytes:
@@ -47,27 +43,28 @@ def fresh_key(monkeypatch, tmp_path):
     signing.signing_key.cache_clear()
 
 
-def test_a_plausible_figure_forged_with_a_checksum_anyone_can_compute_never_reaches_the_site(tmp_path, monkeypatch):
-    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1796169600")
-    cache = tmp_path / "cache"
-    pipeline.build(DEMO, tmp_path / "first", cache_dir=cache, workers=1)
-    # QX-TCA's cached model, with a feeder 12 m long where the file says 9.5 m: well formed, the right types
+def forge_feeder(cache: Path, sign) -> int:
+    """QX-TCA's cached models given a feeder 12 m long where the file says 9.5 m (well formed, the right
+    types), signed with `sign(key, payload)`; how many entries were forged."""
     forged = 0
     for path in (version_folder(cache) / "models").rglob("*" + store.SUFFIX):
         payload = path.read_bytes().partition(b"\n")[2]
         if b'qx-tca.yaml' in payload and b'"TCX-LL10",9.5,' in payload:
             payload = payload.replace(b'"TCX-LL10",9.5,', b'"TCX-LL10",12.0,', 1)
-            path.write_bytes(store.MAGIC + plain_checksum(path.stem, payload) + b"\n" + payload)
+            path.write_bytes(store.MAGIC + sign(path.stem, payload) + b"\n" + payload)
             forged += 1
-    assert forged == 1
+    return forged
+
+
+def test_a_plausible_figure_forged_with_a_checksum_anyone_can_compute_never_reaches_the_site(tmp_path, monkeypatch):
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1796169600")
+    cache = tmp_path / "cache"
+    pipeline.build(DEMO, tmp_path / "first", cache_dir=cache, workers=1)
+    assert forge_feeder(cache, plain_checksum) == 1
     assert pipeline.build(DEMO, tmp_path / "again", cache_dir=cache, workers=1).written
     assert tree(tmp_path / "again") == tree(tmp_path / "first")
     # the same entry signed with the key does change the site: the signature is what kept it out
-    for path in (version_folder(cache) / "models").rglob("*" + store.SUFFIX):
-        payload = path.read_bytes().partition(b"\n")[2]
-        if b'qx-tca.yaml' in payload and b'"TCX-LL10",9.5,' in payload:
-            payload = payload.replace(b'"TCX-LL10",9.5,', b'"TCX-LL10",12.0,', 1)
-            path.write_bytes(store.MAGIC + store.checksum(path.stem, payload) + b"\n" + payload)
+    assert forge_feeder(cache, store.checksum) == 1
     pipeline.build(DEMO, tmp_path / "signed", cache_dir=cache, workers=1)
     assert tree(tmp_path / "signed")["aircraft/qx-tca.html"] != tree(tmp_path / "first")["aircraft/qx-tca.html"]
 
@@ -142,4 +139,3 @@ def test_check_says_when_entries_are_trusted_for_this_run_only(tmp_path):
     plain = subprocess.run(command[:-2] + ["--no-cache"], cwd=tmp_path, env=env, capture_output=True, text=True,
                            timeout=300)
     assert plain.stdout == run.stdout and "note:" not in plain.stderr
-    shutil.rmtree(tmp_path / "cache")
